@@ -1,0 +1,3 @@
+import { buildProgram } from './program.js';
+
+await buildProgram().parseAsync(process.argv);

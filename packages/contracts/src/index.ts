@@ -1,0 +1,6 @@
+export * from './roles.js';
+export * from './problem.js';
+export * from './auth.js';
+export * from './projects.js';
+export * from './users.js';
+export * from './builds.js';
