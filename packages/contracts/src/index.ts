@@ -4,3 +4,4 @@ export * from './auth.js';
 export * from './projects.js';
 export * from './users.js';
 export * from './builds.js';
+export * from './stimulus.js';

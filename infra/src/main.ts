@@ -1,0 +1,18 @@
+import { dbCommand } from './commands/db.command.js';
+
+const [command, ...args] = process.argv.slice(2);
+const commands: Record<string, (args: string[]) => Promise<number>> = {
+  db: dbCommand,
+};
+
+const handler = command ? commands[command] : undefined;
+if (!handler) {
+  console.error(`unknown infra command: ${command ?? '(none)'}; expected one of ${Object.keys(commands).join(', ')}`);
+  process.exit(2);
+}
+try {
+  process.exitCode = await handler(args);
+} catch (error) {
+  console.error(`earmark: ${error instanceof Error ? error.message : String(error)}`);
+  process.exitCode = 1;
+}

@@ -1,0 +1,23 @@
+import { randomBytes } from 'node:crypto';
+import fs from 'node:fs';
+import path from 'node:path';
+import { dataDir } from './paths.js';
+
+export interface LocalSecrets {
+  pgPassword: string;
+  jwtSecret: string;
+}
+
+const secretsFile = path.join(dataDir, 'secrets.json');
+
+/** Development secrets, generated once and kept under .data/ (mode 600, gitignored). */
+export function loadLocalSecrets(): LocalSecrets {
+  if (fs.existsSync(secretsFile)) return JSON.parse(fs.readFileSync(secretsFile, 'utf8')) as LocalSecrets;
+  fs.mkdirSync(dataDir, { recursive: true });
+  const secrets: LocalSecrets = {
+    pgPassword: randomBytes(18).toString('base64url'),
+    jwtSecret: randomBytes(48).toString('base64url'),
+  };
+  fs.writeFileSync(secretsFile, JSON.stringify(secrets, null, 2), { mode: 0o600 });
+  return secrets;
+}

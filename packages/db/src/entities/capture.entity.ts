@@ -1,0 +1,48 @@
+import { EntitySchema } from '@mikro-orm/core';
+import { BaseEntity, baseProperties } from './base.js';
+import { Build } from './build.entity.js';
+import { Project } from './project.entity.js';
+import { Target } from './target.entity.js';
+import { TestCase } from './test-case.entity.js';
+
+export const captureStatuses = ['queued', 'analysing', 'done', 'error'] as const;
+export type CaptureStatus = (typeof captureStatuses)[number];
+
+/** One uploaded buffer for (build, test case, target); the bytes live in object storage. */
+export class Capture extends BaseEntity {
+  project!: Project;
+  build!: Build;
+  testCase!: TestCase;
+  target!: Target;
+  objectKey!: string;
+  sha256!: string;
+  sizeBytes!: number;
+  format: Record<string, unknown> = {};
+  sampleRate!: number;
+  channelCount!: number;
+  frames!: number;
+  status: CaptureStatus = 'queued';
+  idempotencyKey: string | null = null;
+}
+
+export const CaptureSchema = new EntitySchema<Capture, BaseEntity>({
+  class: Capture,
+  properties: {
+    ...baseProperties,
+    project: { kind: 'm:1', entity: () => Project, deleteRule: 'cascade' },
+    build: { kind: 'm:1', entity: () => Build, deleteRule: 'cascade', index: true },
+    testCase: { kind: 'm:1', entity: () => TestCase },
+    target: { kind: 'm:1', entity: () => Target },
+    objectKey: { type: 'string', length: 300 },
+    sha256: { type: 'string', length: 64 },
+    sizeBytes: { type: 'integer' },
+    format: { type: 'json' },
+    sampleRate: { type: 'integer' },
+    channelCount: { type: 'integer' },
+    frames: { type: 'integer' },
+    status: { enum: true, items: () => [...captureStatuses], type: 'string', default: 'queued' },
+    idempotencyKey: { type: 'string', length: 200, nullable: true },
+  },
+  // An Idempotency-Key names one capture per project, never a duplicate.
+  uniques: [{ properties: ['project', 'idempotencyKey'] }],
+});

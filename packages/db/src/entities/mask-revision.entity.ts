@@ -1,0 +1,51 @@
+import { EntitySchema } from '@mikro-orm/core';
+import { BaseEntity, baseProperties } from './base.js';
+import { Target } from './target.entity.js';
+import { TestCase } from './test-case.entity.js';
+import { User } from './user.entity.js';
+
+export const maskRevisionStates = ['draft', 'in_review', 'approved', 'superseded', 'rejected'] as const;
+export type MaskRevisionState = (typeof maskRevisionStates)[number];
+
+/**
+ * One revision of a test case's tolerance mask, optionally for one target only.
+ * Exactly one approved revision is in force per (test case, target): a partial unique
+ * index in the migration enforces it.
+ */
+export class MaskRevision extends BaseEntity {
+  testCase!: TestCase;
+  target: Target | null = null;
+  revision!: number;
+  state: MaskRevisionState = 'draft';
+  checks: unknown[] = [];
+  note = '';
+  author!: User;
+  reviewer: User | null = null;
+  submittedAt: Date | null = null;
+  decidedAt: Date | null = null;
+}
+
+export const MaskRevisionSchema = new EntitySchema<MaskRevision, BaseEntity>({
+  class: MaskRevision,
+  properties: {
+    ...baseProperties,
+    testCase: { kind: 'm:1', entity: () => TestCase, deleteRule: 'cascade' },
+    target: { kind: 'm:1', entity: () => Target, nullable: true, deleteRule: 'cascade' },
+    revision: { type: 'integer' },
+    state: { enum: true, items: () => [...maskRevisionStates], type: 'string', default: 'draft' },
+    checks: { type: 'json' },
+    note: { type: 'text', default: '' },
+    author: { kind: 'm:1', entity: () => User },
+    reviewer: { kind: 'm:1', entity: () => User, nullable: true },
+    submittedAt: { type: 'datetime', nullable: true },
+    decidedAt: { type: 'datetime', nullable: true },
+  },
+  uniques: [{ properties: ['testCase', 'revision'] }],
+  indexes: [
+    {
+      name: 'mask_revision_one_approved_idx',
+      expression:
+        'create unique index "mask_revision_one_approved_idx" on "mask_revision" ("test_case_id", coalesce("target_id", \'00000000-0000-0000-0000-000000000000\'::uuid)) where "state" = \'approved\'',
+    },
+  ],
+});

@@ -1,0 +1,23 @@
+import { EntitySchema } from '@mikro-orm/core';
+import { projectRoles, type ProjectRole } from '@earmark/contracts';
+import { BaseEntity, baseProperties } from './base.js';
+import { Project } from './project.entity.js';
+import { User } from './user.entity.js';
+
+/** A user's role in one project. */
+export class Membership extends BaseEntity {
+  user!: User;
+  project!: Project;
+  role!: ProjectRole;
+}
+
+export const MembershipSchema = new EntitySchema<Membership, BaseEntity>({
+  class: Membership,
+  properties: {
+    ...baseProperties,
+    user: { kind: 'm:1', entity: () => User, deleteRule: 'cascade' },
+    project: { kind: 'm:1', entity: () => Project, deleteRule: 'cascade' },
+    role: { enum: true, items: () => [...projectRoles], type: 'string' },
+  },
+  uniques: [{ properties: ['user', 'project'] }],
+});

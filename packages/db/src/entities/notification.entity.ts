@@ -1,0 +1,34 @@
+import { EntitySchema } from '@mikro-orm/core';
+import { BaseEntity, baseProperties } from './base.js';
+
+export const notificationStates = ['pending', 'sent', 'failed'] as const;
+export type NotificationState = (typeof notificationStates)[number];
+
+/** The mail outbox: written in the same transaction as its cause, sent later with retries. */
+export class Notification extends BaseEntity {
+  kind!: string;
+  recipient!: string;
+  subject!: string;
+  body!: string;
+  payload: Record<string, unknown> = {};
+  state: NotificationState = 'pending';
+  attempts = 0;
+  lastError: string | null = null;
+  sentAt: Date | null = null;
+}
+
+export const NotificationSchema = new EntitySchema<Notification, BaseEntity>({
+  class: Notification,
+  properties: {
+    ...baseProperties,
+    kind: { type: 'string', length: 60 },
+    recipient: { type: 'string', length: 254 },
+    subject: { type: 'string', length: 300 },
+    body: { type: 'text' },
+    payload: { type: 'json' },
+    state: { enum: true, items: () => [...notificationStates], type: 'string', default: 'pending', index: 'notification_state_idx' },
+    attempts: { type: 'integer', default: 0 },
+    lastError: { type: 'text', nullable: true },
+    sentAt: { type: 'datetime', nullable: true },
+  },
+});

@@ -1,0 +1,34 @@
+import { EntitySchema } from '@mikro-orm/core';
+import { BaseEntity, baseProperties } from './base.js';
+import { Project } from './project.entity.js';
+
+/**
+ * A test case: key, stimulus spec, analysis settings and channel map. The JSON columns
+ * are validated by the contracts' zod schemas at the API boundary before they get here.
+ */
+export class TestCase extends BaseEntity {
+  project!: Project;
+  key!: string;
+  name!: string;
+  description = '';
+  stimulus!: Record<string, unknown>;
+  analysis: Record<string, unknown> = {};
+  channelMap: number[] = [];
+  updatedAt: Date = new Date();
+}
+
+export const TestCaseSchema = new EntitySchema<TestCase, BaseEntity>({
+  class: TestCase,
+  properties: {
+    ...baseProperties,
+    project: { kind: 'm:1', entity: () => Project, deleteRule: 'cascade' },
+    key: { type: 'string', length: 80 },
+    name: { type: 'string', length: 160 },
+    description: { type: 'text', default: '' },
+    stimulus: { type: 'json' },
+    analysis: { type: 'json' },
+    channelMap: { type: 'json' },
+    updatedAt: { type: 'datetime', onCreate: () => new Date(), onUpdate: () => new Date() },
+  },
+  uniques: [{ properties: ['project', 'key'] }],
+});

@@ -1,0 +1,28 @@
+import { EntitySchema } from '@mikro-orm/core';
+import { BaseEntity, baseProperties } from './base.js';
+
+export class User extends BaseEntity {
+  email!: string;
+  displayName!: string;
+  passwordHash!: string;
+  isAdmin = false;
+  disabled = false;
+  /** Bumped on sign-out and password change; refresh tokens carry it, so old ones die. */
+  tokenVersion = 0;
+  lastLoginAt: Date | null = null;
+}
+
+export const UserSchema = new EntitySchema<User, BaseEntity>({
+  class: User,
+  tableName: 'app_user',
+  properties: {
+    ...baseProperties,
+    email: { type: 'string', length: 254, unique: true },
+    displayName: { type: 'string', length: 120 },
+    passwordHash: { type: 'string', length: 100, hidden: true },
+    isAdmin: { type: 'boolean', default: false },
+    disabled: { type: 'boolean', default: false },
+    tokenVersion: { type: 'integer', default: 0 },
+    lastLoginAt: { type: 'datetime', nullable: true },
+  },
+});

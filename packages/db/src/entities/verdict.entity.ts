@@ -1,0 +1,36 @@
+import { EntitySchema } from '@mikro-orm/core';
+import { BaseEntity, baseProperties } from './base.js';
+import { Capture } from './capture.entity.js';
+import { MaskRevision } from './mask-revision.entity.js';
+
+export const verdictOutcomes = ['pass', 'fail', 'error'] as const;
+export type VerdictOutcome = (typeof verdictOutcomes)[number];
+
+/** The verdict for one capture under one mask revision, reproducible from both versions. */
+export class Verdict extends BaseEntity {
+  capture!: Capture;
+  maskRevision: MaskRevision | null = null;
+  outcome!: VerdictOutcome;
+  reason: string | null = null;
+  engineVersion!: string;
+}
+
+export const VerdictSchema = new EntitySchema<Verdict, BaseEntity>({
+  class: Verdict,
+  properties: {
+    ...baseProperties,
+    capture: { kind: 'm:1', entity: () => Capture, deleteRule: 'cascade' },
+    maskRevision: { kind: 'm:1', entity: () => MaskRevision, nullable: true },
+    outcome: { enum: true, items: () => [...verdictOutcomes], type: 'string' },
+    reason: { type: 'text', nullable: true },
+    engineVersion: { type: 'string', length: 40 },
+  },
+  // NULLS NOT DISTINCT: a capture judged with no mask in force still gets one verdict only.
+  indexes: [
+    {
+      name: 'verdict_capture_mask_revision_unique',
+      expression:
+        'create unique index "verdict_capture_mask_revision_unique" on "verdict" ("capture_id", "mask_revision_id") nulls not distinct',
+    },
+  ],
+});

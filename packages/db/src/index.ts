@@ -1,0 +1,3 @@
+export * from './entities/index.js';
+export * from './config.js';
+export * from './orm.js';
