@@ -1,8 +1,10 @@
 import { defineConfig } from 'vitest/config';
 
-// One project per package/app; each has its own vitest.config.ts (defineProject).
+// One project per package/app (each has a defineProject config). The global setup
+// starts the private test PostgreSQL once per run and migrates a template database.
 export default defineConfig({
   test: {
     projects: ['packages/*', 'apps/*', 'tests'],
+    globalSetup: ['./tests/setup/postgres.global.ts'],
   },
 });

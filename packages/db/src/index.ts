@@ -1,3 +1,5 @@
 export * from './entities/index.js';
 export * from './config.js';
 export * from './orm.js';
+export * from './security/index.js';
+export * from './seeders/index.js';

@@ -8,7 +8,7 @@ import { User } from './user.entity.js';
  * A CI token scoped to one project. Only the SHA-256 of the secret is stored; the short
  * public prefix finds the row without scanning hashes.
  */
-export class ApiToken extends BaseEntity {
+export class ApiToken extends BaseEntity<'scopes' | 'lastUsedAt' | 'revokedAt'> {
   project!: Project;
   name!: string;
   prefix!: string;

@@ -3,7 +3,7 @@ import { BaseEntity, baseProperties } from './base.js';
 import { Project } from './project.entity.js';
 
 /** An append-only record of who did what; actors are `user:<email>` or `token:<prefix>`. */
-export class AuditEvent extends BaseEntity {
+export class AuditEvent extends BaseEntity<'project' | 'details'> {
   actor!: string;
   action!: string;
   subject!: string;

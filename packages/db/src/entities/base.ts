@@ -1,8 +1,10 @@
 import { randomUUID } from 'node:crypto';
-import type { EntitySchemaProperty } from '@mikro-orm/core';
+import { OptionalProps, type EntitySchemaProperty } from '@mikro-orm/core';
 
 /** Columns every entity carries: a UUID key and a creation time. */
-export abstract class BaseEntity {
+export abstract class BaseEntity<Optional extends string = never> {
+  /** Properties with defaults, so `em.create` does not demand them. */
+  declare [OptionalProps]?: 'id' | 'createdAt' | Optional;
   id: string = randomUUID();
   createdAt: Date = new Date();
 }

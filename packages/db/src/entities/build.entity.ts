@@ -6,7 +6,7 @@ import { Project } from './project.entity.js';
 export const buildStatuses = ['pending', 'running', 'pass', 'fail', 'error'] as const;
 
 /** A firmware build: project + commit SHA; its status aggregates its captures' verdicts. */
-export class Build extends BaseEntity {
+export class Build extends BaseEntity<'label' | 'branch' | 'pipelineUrl' | 'status' | 'updatedAt'> {
   project!: Project;
   sha!: string;
   label: string | null = null;

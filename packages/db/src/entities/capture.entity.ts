@@ -9,7 +9,7 @@ export const captureStatuses = ['queued', 'analysing', 'done', 'error'] as const
 export type CaptureStatus = (typeof captureStatuses)[number];
 
 /** One uploaded buffer for (build, test case, target); the bytes live in object storage. */
-export class Capture extends BaseEntity {
+export class Capture extends BaseEntity<'format' | 'status' | 'idempotencyKey'> {
   project!: Project;
   build!: Build;
   testCase!: TestCase;

@@ -3,7 +3,7 @@ import { BaseEntity, baseProperties } from './base.js';
 import { Verdict } from './verdict.entity.js';
 
 /** One evaluated check of a mask: measured value, limit, margin (positive = inside). */
-export class CheckResult extends BaseEntity {
+export class CheckResult extends BaseEntity<'measured' | 'limit' | 'margin' | 'worstHz' | 'details'> {
   verdict!: Verdict;
   checkId!: string;
   kind!: string;

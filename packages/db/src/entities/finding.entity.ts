@@ -9,7 +9,7 @@ export const findingStates = ['open', 'investigating', 'accepted_deviation', 'fi
 export type FindingState = (typeof findingStates)[number];
 
 /** A failing check that needs a human. */
-export class Finding extends BaseEntity {
+export class Finding extends BaseEntity<'checkResult' | 'state' | 'assignee' | 'commitLinks' | 'updatedAt'> {
   project!: Project;
   capture!: Capture;
   checkResult: CheckResult | null = null;

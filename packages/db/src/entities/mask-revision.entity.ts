@@ -12,7 +12,7 @@ export type MaskRevisionState = (typeof maskRevisionStates)[number];
  * Exactly one approved revision is in force per (test case, target): a partial unique
  * index in the migration enforces it.
  */
-export class MaskRevision extends BaseEntity {
+export class MaskRevision extends BaseEntity<'target' | 'state' | 'checks' | 'note' | 'reviewer' | 'submittedAt' | 'decidedAt'> {
   testCase!: TestCase;
   target: Target | null = null;
   revision!: number;

@@ -5,7 +5,7 @@ export const notificationStates = ['pending', 'sent', 'failed'] as const;
 export type NotificationState = (typeof notificationStates)[number];
 
 /** The mail outbox: written in the same transaction as its cause, sent later with retries. */
-export class Notification extends BaseEntity {
+export class Notification extends BaseEntity<'payload' | 'state' | 'attempts' | 'lastError' | 'sentAt'> {
   kind!: string;
   recipient!: string;
   subject!: string;

@@ -2,7 +2,7 @@ import { EntitySchema } from '@mikro-orm/core';
 import { BaseEntity, baseProperties } from './base.js';
 
 /** One firmware product line. */
-export class Project extends BaseEntity {
+export class Project extends BaseEntity<'description'> {
   key!: string;
   name!: string;
   description = '';

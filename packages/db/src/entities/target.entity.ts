@@ -3,7 +3,7 @@ import { BaseEntity, baseProperties } from './base.js';
 import { Project } from './project.entity.js';
 
 /** A hardware or configuration variant within a project (board rev, sample rate). */
-export class Target extends BaseEntity {
+export class Target extends BaseEntity<'description' | 'sampleRate'> {
   project!: Project;
   key!: string;
   name!: string;

@@ -6,7 +6,7 @@ import { Project } from './project.entity.js';
  * A test case: key, stimulus spec, analysis settings and channel map. The JSON columns
  * are validated by the contracts' zod schemas at the API boundary before they get here.
  */
-export class TestCase extends BaseEntity {
+export class TestCase extends BaseEntity<'description' | 'analysis' | 'channelMap' | 'updatedAt'> {
   project!: Project;
   key!: string;
   name!: string;

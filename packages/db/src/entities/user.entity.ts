@@ -1,7 +1,7 @@
 import { EntitySchema } from '@mikro-orm/core';
 import { BaseEntity, baseProperties } from './base.js';
 
-export class User extends BaseEntity {
+export class User extends BaseEntity<'isAdmin' | 'disabled' | 'tokenVersion' | 'lastLoginAt'> {
   email!: string;
   displayName!: string;
   passwordHash!: string;

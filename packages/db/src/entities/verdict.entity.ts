@@ -7,7 +7,7 @@ export const verdictOutcomes = ['pass', 'fail', 'error'] as const;
 export type VerdictOutcome = (typeof verdictOutcomes)[number];
 
 /** The verdict for one capture under one mask revision, reproducible from both versions. */
-export class Verdict extends BaseEntity {
+export class Verdict extends BaseEntity<'maskRevision' | 'reason'> {
   capture!: Capture;
   maskRevision: MaskRevision | null = null;
   outcome!: VerdictOutcome;

@@ -9,7 +9,7 @@ export const waiverStates = ['requested', 'approved', 'rejected', 'expired', 're
 export type WaiverState = (typeof waiverStates)[number];
 
 /** An accepted deviation of one check, approved by a QA manager, until it expires. */
-export class Waiver extends BaseEntity {
+export class Waiver extends BaseEntity<'target' | 'state' | 'approvedBy'> {
   project!: Project;
   testCase!: TestCase;
   target: Target | null = null;

@@ -1,0 +1,40 @@
+import type { EntityManager } from '@mikro-orm/postgresql';
+import { ApiToken, Membership, User, parseTokenPrefix, tokenMatches } from '@earmark/db';
+import type { Request } from 'express';
+import { AuthError } from '../errors.js';
+import type { TokenSigner } from './jwt.js';
+import type { Principal } from './principal.js';
+
+function bearer(req: Request): string | null {
+  const header = req.headers.authorization;
+  if (!header) return null;
+  const match = /^Bearer\s+(\S+)$/i.exec(header);
+  if (!match?.[1]) throw new AuthError('The Authorization header must be `Bearer <token>`.');
+  return match[1];
+}
+
+/**
+ * Resolves the caller from the Authorization header, or null when there is none.
+ * @throws AuthError for a malformed, expired, revoked or unknown credential.
+ */
+export async function authenticate(req: Request, em: EntityManager, signer: TokenSigner): Promise<Principal | null> {
+  const credential = bearer(req);
+  if (!credential) return null;
+
+  const prefix = parseTokenPrefix(credential);
+  if (prefix) {
+    const token = await em.findOne(ApiToken, { prefix }, { populate: ['project'] });
+    if (!token || !tokenMatches(credential, token.secretHash)) throw new AuthError('Unknown API token.');
+    if (token.revokedAt) throw new AuthError('This API token has been revoked.');
+    token.lastUsedAt = new Date();
+    await em.flush();
+    return { kind: 'token', token, project: token.project };
+  }
+
+  const claims = signer.verify(credential, 'access');
+  if (!claims) throw new AuthError('The access token is invalid or has expired; sign in again or refresh it.');
+  const user = await em.findOne(User, { id: claims.sub });
+  if (!user || user.disabled || user.tokenVersion !== claims.ver) throw new AuthError('This session has ended; sign in again.');
+  const memberships = await em.find(Membership, { user }, { populate: ['project'], orderBy: { project: { name: 'asc' } } });
+  return { kind: 'user', user, memberships };
+}

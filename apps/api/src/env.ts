@@ -1,0 +1,31 @@
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { z } from 'zod';
+
+const defaultWebDist = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../../web/dist');
+
+const Env = z.object({
+  EARMARK_DATABASE_URL: z.string().startsWith('postgres'),
+  EARMARK_JWT_SECRET: z.string().min(32, 'must be at least 32 characters'),
+  EARMARK_API_HOST: z.string().default('127.0.0.1'),
+  EARMARK_API_PORT: z.coerce.number().int().min(0).max(65535).default(4310),
+  /** Folder of the built web app; served at / when it exists. */
+  EARMARK_WEB_DIST: z.string().default(defaultWebDist),
+  EARMARK_ACCESS_TOKEN_TTL_S: z.coerce.number().int().min(30).default(900),
+  EARMARK_REFRESH_TOKEN_TTL_S: z.coerce.number().int().min(60).default(7 * 24 * 3600),
+  /** Sign-in attempts per address and e-mail in a 15-minute window. */
+  EARMARK_LOGIN_RATE_LIMIT: z.coerce.number().int().min(1).default(10),
+  EARMARK_LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
+  EARMARK_DB_POOL_MAX: z.coerce.number().int().min(1).default(10),
+});
+export type ApiEnv = z.infer<typeof Env>;
+
+/** The only place the API reads process.env. */
+export function loadApiEnv(env: NodeJS.ProcessEnv = process.env): ApiEnv {
+  const parsed = Env.safeParse(env);
+  if (!parsed.success) {
+    const issues = parsed.error.issues.map((i) => `${i.path.join('.')}: ${i.message}`).join('; ');
+    throw new Error(`Invalid API environment: ${issues}`);
+  }
+  return parsed.data;
+}

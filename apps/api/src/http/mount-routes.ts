@@ -1,0 +1,19 @@
+import type { MikroORM } from '@mikro-orm/postgresql';
+import type { Router } from 'express';
+import { authenticate } from '../auth/authenticate.js';
+import { authorize } from '../auth/authorize.js';
+import type { TokenSigner } from '../auth/jwt.js';
+import type { RouteDef } from './route.js';
+
+/** Mounts route definitions: authenticate → authorize (the permission matrix) → handler. */
+export function mountRoutes(router: Router, routes: RouteDef[], orm: MikroORM, signer: TokenSigner): void {
+  for (const route of routes) {
+    router[route.method](route.path, ...(route.before ?? []), async (req, res) => {
+      const em = orm.em.getContext() as typeof orm.em;
+      const principal = route.access.kind === 'public' ? null : await authenticate(req, em, signer);
+      const projectKey = typeof req.params.project === 'string' ? req.params.project : undefined;
+      const { project } = await authorize(route.access, principal, projectKey, em);
+      await route.handle({ req, res, em, principal, project });
+    });
+  }
+}

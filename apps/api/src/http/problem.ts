@@ -1,0 +1,62 @@
+import type { ErrorRequestHandler, RequestHandler, Response } from 'express';
+import type { Logger } from 'pino';
+import { PROBLEM_CONTENT_TYPE, type Problem } from '@earmark/contracts';
+import { HttpError } from '../errors.js';
+
+const typeFor = (status: number) => `https://earmark.dev/problems/${status}`;
+
+export function sendProblem(res: Response, problem: Problem, headers: Record<string, string> = {}): void {
+  for (const [k, v] of Object.entries(headers)) res.setHeader(k, v);
+  res.status(problem.status).type(PROBLEM_CONTENT_TYPE).send(JSON.stringify(problem));
+}
+
+/** Unknown routes under /api answer 404 problem+json, not an HTML page. */
+export const notFoundHandler: RequestHandler = (req, res) => {
+  sendProblem(res, {
+    type: typeFor(404),
+    title: 'Not found',
+    status: 404,
+    detail: `No route for ${req.method} ${req.path}`,
+    instance: req.originalUrl,
+  });
+};
+
+interface BodyParserError {
+  type?: string;
+  status?: number;
+  expose?: boolean;
+  message?: string;
+}
+
+/** The one error handler: domain errors → their status; parser errors → 400/413; the rest → generic 500. */
+export function errorHandler(logger: Logger): ErrorRequestHandler {
+  return (err: unknown, req, res, _next) => {
+    if (res.headersSent) {
+      logger.error({ err }, 'error after headers were sent');
+      return;
+    }
+    if (err instanceof HttpError) {
+      sendProblem(
+        res,
+        { type: typeFor(err.status), title: err.title, status: err.status, detail: err.message, instance: req.originalUrl, ...(err.extra.errors ? { errors: err.extra.errors } : {}) },
+        err.extra.headers,
+      );
+      return;
+    }
+    const parserError = err as BodyParserError;
+    if (parserError.type === 'entity.parse.failed') {
+      sendProblem(res, { type: typeFor(400), title: 'Malformed JSON', status: 400, detail: 'The request body is not valid JSON.', instance: req.originalUrl });
+      return;
+    }
+    if (parserError.type === 'entity.too.large') {
+      sendProblem(res, { type: typeFor(413), title: 'Body too large', status: 413, detail: 'The request body is larger than this route accepts.', instance: req.originalUrl });
+      return;
+    }
+    if (parserError.expose && parserError.status && parserError.status < 500) {
+      sendProblem(res, { type: typeFor(parserError.status), title: 'Bad request', status: parserError.status, detail: parserError.message ?? 'Bad request', instance: req.originalUrl });
+      return;
+    }
+    logger.error({ err, method: req.method, url: req.originalUrl }, 'unhandled error');
+    sendProblem(res, { type: typeFor(500), title: 'Internal error', status: 500, detail: 'Something went wrong on our side; it has been logged.', instance: req.originalUrl });
+  };
+}

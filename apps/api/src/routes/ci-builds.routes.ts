@@ -1,0 +1,97 @@
+import type { BuildRow } from '@earmark/contracts';
+import { CommitSha, UpsertBuildRequest } from '@earmark/contracts';
+import { Build, Capture, type Project } from '@earmark/db';
+import type { EntityManager } from '@mikro-orm/postgresql';
+import { z } from 'zod';
+import { actorName } from '../auth/principal.js';
+import { NotFoundError } from '../errors.js';
+import { parseWith } from '../http/validate.js';
+import { requireProject, type RouteDef } from '../http/route.js';
+import { recordAudit } from '../services/audit.service.js';
+
+const BuildListQuery = z.object({
+  page: z.coerce.number().int().min(1).default(1),
+  pageSize: z.coerce.number().int().min(1).max(200).default(50),
+  sha: z.string().regex(/^[0-9a-f]{1,64}$/).optional(),
+});
+const ShaParams = z.object({ sha: CommitSha });
+
+async function toBuildRow(em: EntityManager, build: Build, project: Project): Promise<BuildRow> {
+  return {
+    id: build.id,
+    projectKey: project.key,
+    sha: build.sha,
+    label: build.label,
+    branch: build.branch,
+    pipelineUrl: build.pipelineUrl,
+    status: build.status,
+    createdAt: build.createdAt.toISOString(),
+    captureCount: await em.count(Capture, { build }),
+  };
+}
+
+export function ciBuildRoutes(): RouteDef[] {
+  return [
+    {
+      method: 'post',
+      path: '/api/v1/projects/:project/builds',
+      access: { kind: 'ci', permission: 'build.submit' },
+      summary: 'Create a build, or update its label/branch/pipeline URL (upsert by commit SHA)',
+      async handle(ctx) {
+        const project = requireProject(ctx);
+        const body = parseWith(UpsertBuildRequest, ctx.req.body, 'body');
+        let build = await ctx.em.findOne(Build, { project, sha: body.sha });
+        const created = !build;
+        build ??= ctx.em.create(Build, { project, sha: body.sha });
+        if (body.label !== undefined) build.label = body.label;
+        if (body.branch !== undefined) build.branch = body.branch;
+        if (body.pipelineUrl !== undefined) build.pipelineUrl = body.pipelineUrl;
+        if (created && ctx.principal) {
+          recordAudit(ctx.em, { actor: actorName(ctx.principal), action: 'build.create', subject: `build:${body.sha}`, project });
+        }
+        // NOTE: two pipelines racing on one SHA hit the unique constraint; the loser re-reads.
+        try {
+          await ctx.em.flush();
+        } catch (error) {
+          if (!created) throw error;
+          ctx.em.clear();
+          const existing = await ctx.em.findOne(Build, { project: project.id, sha: body.sha });
+          if (!existing) throw error;
+          build = existing;
+        }
+        ctx.res.status(created ? 201 : 200).json(await toBuildRow(ctx.em, build, project));
+      },
+    },
+    {
+      method: 'get',
+      path: '/api/v1/projects/:project/builds',
+      access: { kind: 'ci', permission: 'build.read' },
+      summary: 'Builds of a project, newest first, paged; `sha` filters by prefix',
+      async handle(ctx) {
+        const project = requireProject(ctx);
+        const q = parseWith(BuildListQuery, ctx.req.query, 'query');
+        const where = q.sha ? { project, sha: { $like: `${q.sha}%` } } : { project };
+        const [builds, total] = await ctx.em.findAndCount(Build, where, {
+          orderBy: { createdAt: 'desc' },
+          limit: q.pageSize,
+          offset: (q.page - 1) * q.pageSize,
+        });
+        const items = await Promise.all(builds.map((b) => toBuildRow(ctx.em, b, project)));
+        ctx.res.json({ items, total, page: q.page, pageSize: q.pageSize });
+      },
+    },
+    {
+      method: 'get',
+      path: '/api/v1/projects/:project/builds/:sha',
+      access: { kind: 'ci', permission: 'build.read' },
+      summary: 'One build by commit SHA',
+      async handle(ctx) {
+        const project = requireProject(ctx);
+        const { sha } = parseWith(ShaParams, ctx.req.params, 'params');
+        const build = await ctx.em.findOne(Build, { project, sha });
+        if (!build) throw new NotFoundError(`There is no build ${sha} in ${project.key}.`);
+        ctx.res.json(await toBuildRow(ctx.em, build, project));
+      },
+    },
+  ];
+}

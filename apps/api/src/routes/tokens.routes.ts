@@ -1,0 +1,41 @@
+import { CreateApiTokenRequest } from '@earmark/contracts';
+import { z } from 'zod';
+import { parseWith } from '../http/validate.js';
+import { requireProject, requireUser, type RouteDef } from '../http/route.js';
+import type { TokenService } from '../services/token.service.js';
+
+const TokenParams = z.object({ tokenId: z.uuid() });
+
+export function tokenRoutes(tokens: TokenService): RouteDef[] {
+  return [
+    {
+      method: 'get',
+      path: '/api/projects/:project/tokens',
+      access: { kind: 'project', permission: 'project.administer' },
+      summary: "A project's CI tokens (never their secrets)",
+      async handle(ctx) {
+        ctx.res.json({ items: await tokens.list(ctx.em, requireProject(ctx)) });
+      },
+    },
+    {
+      method: 'post',
+      path: '/api/projects/:project/tokens',
+      access: { kind: 'project', permission: 'project.administer' },
+      summary: 'Create a CI token; the response is the only time its secret is shown',
+      async handle(ctx) {
+        const body = parseWith(CreateApiTokenRequest, ctx.req.body, 'body');
+        ctx.res.status(201).json(await tokens.create(ctx.em, requireProject(ctx), body, requireUser(ctx).user));
+      },
+    },
+    {
+      method: 'delete',
+      path: '/api/projects/:project/tokens/:tokenId',
+      access: { kind: 'project', permission: 'project.administer' },
+      summary: 'Revoke a CI token',
+      async handle(ctx) {
+        const { tokenId } = parseWith(TokenParams, ctx.req.params, 'params');
+        ctx.res.json(await tokens.revoke(ctx.em, requireProject(ctx), tokenId, requireUser(ctx).user));
+      },
+    },
+  ];
+}

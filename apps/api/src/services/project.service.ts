@@ -1,0 +1,96 @@
+import type { EntityManager } from '@mikro-orm/postgresql';
+import type { CreateProjectRequest, MemberRow, Project as ProjectDto, ProjectRole } from '@earmark/contracts';
+import { Membership, Project, User } from '@earmark/db';
+import type { Principal } from '../auth/principal.js';
+import { actorName } from '../auth/principal.js';
+import { ConflictError, NotFoundError } from '../errors.js';
+import { recordAudit } from './audit.service.js';
+
+interface ProjectCounts {
+  project_id: string;
+  targets: string;
+  test_cases: string;
+  builds: string;
+}
+
+/** Counts for the projects list in one query rather than three per project. */
+async function countsFor(em: EntityManager, projectIds: string[]): Promise<Map<string, ProjectCounts>> {
+  if (projectIds.length === 0) return new Map();
+  const rows = await em.getConnection().execute<ProjectCounts[]>(
+    `select p.id as project_id,
+            (select count(*) from target t where t.project_id = p.id) as targets,
+            (select count(*) from test_case c where c.project_id = p.id) as test_cases,
+            (select count(*) from build b where b.project_id = p.id) as builds
+       from project p where p.id in (${projectIds.map(() => '?').join(',')})`,
+    projectIds,
+  );
+  return new Map(rows.map((r) => [r.project_id, r]));
+}
+
+function toDto(project: Project, myRole: ProjectDto['myRole'], counts: ProjectCounts | undefined): ProjectDto {
+  return {
+    key: project.key,
+    name: project.name,
+    description: project.description,
+    createdAt: project.createdAt.toISOString(),
+    myRole,
+    targetCount: Number(counts?.targets ?? 0),
+    testCaseCount: Number(counts?.test_cases ?? 0),
+    buildCount: Number(counts?.builds ?? 0),
+  };
+}
+
+export class ProjectService {
+  /** Projects the user can see: all for admins, their memberships otherwise. */
+  async listFor(em: EntityManager, principal: Extract<Principal, { kind: 'user' }>): Promise<ProjectDto[]> {
+    const roleByProject = new Map(principal.memberships.map((m) => [m.project.id, m.role] as const));
+    const projects = principal.user.isAdmin
+      ? await em.find(Project, {}, { orderBy: { name: 'asc' } })
+      : principal.memberships.map((m) => m.project).sort((a, b) => a.name.localeCompare(b.name));
+    const counts = await countsFor(em, projects.map((p) => p.id));
+    return projects.map((p) => toDto(p, roleByProject.get(p.id) ?? 'admin', counts.get(p.id)));
+  }
+
+  async describe(em: EntityManager, project: Project, principal: Principal): Promise<ProjectDto> {
+    const counts = await countsFor(em, [project.id]);
+    const role =
+      principal.kind === 'user' ? (principal.memberships.find((m) => m.project.id === project.id)?.role ?? 'admin') : 'viewer';
+    return toDto(project, role, counts.get(project.id));
+  }
+
+  /** @throws ConflictError when the key is taken. */
+  async create(em: EntityManager, input: CreateProjectRequest, principal: Principal): Promise<ProjectDto> {
+    if (await em.findOne(Project, { key: input.key })) throw new ConflictError(`A project with key ${input.key} already exists.`);
+    const project = em.create(Project, { key: input.key, name: input.name, description: input.description });
+    recordAudit(em, { actor: actorName(principal), action: 'project.create', subject: `project:${input.key}`, project });
+    await em.flush();
+    return toDto(project, 'admin', undefined);
+  }
+
+  async members(em: EntityManager, project: Project): Promise<MemberRow[]> {
+    const rows = await em.find(Membership, { project }, { populate: ['user'], orderBy: { user: { displayName: 'asc' } } });
+    return rows.map((m) => ({ userId: m.user.id, email: m.user.email, displayName: m.user.displayName, role: m.role }));
+  }
+
+  /** Adds the user to the project or changes their role. @throws NotFoundError for an unknown e-mail. */
+  async setMember(em: EntityManager, project: Project, email: string, role: ProjectRole, principal: Principal): Promise<MemberRow> {
+    const user = await em.findOne(User, { email: email.toLowerCase() });
+    if (!user) throw new NotFoundError(`There is no user with e-mail ${email}.`);
+    let membership = await em.findOne(Membership, { project, user });
+    const previous = membership?.role ?? null;
+    if (membership) membership.role = role;
+    else membership = em.create(Membership, { project, user, role });
+    recordAudit(em, { actor: actorName(principal), action: 'membership.set', subject: `user:${user.email}`, project, details: { role, previous } });
+    await em.flush();
+    return { userId: user.id, email: user.email, displayName: user.displayName, role };
+  }
+
+  /** @throws NotFoundError when the user is not a member. */
+  async removeMember(em: EntityManager, project: Project, userId: string, principal: Principal): Promise<void> {
+    const membership = await em.findOne(Membership, { project, user: { id: userId } }, { populate: ['user'] });
+    if (!membership) throw new NotFoundError(`That user is not a member of ${project.key}.`);
+    recordAudit(em, { actor: actorName(principal), action: 'membership.remove', subject: `user:${membership.user.email}`, project });
+    em.remove(membership);
+    await em.flush();
+  }
+}

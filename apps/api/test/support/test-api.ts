@@ -1,0 +1,84 @@
+import type { AddressInfo } from 'node:net';
+import { Writable } from 'node:stream';
+import { initOrm, seedRoles, TEST_PASSWORD, type RoleFixture } from '@earmark/db';
+import { createTestDatabase } from '@earmark/db/testing';
+import type { MikroORM } from '@mikro-orm/postgresql';
+import { pino } from 'pino';
+import { createApp, loadApiEnv, type ApiEnv, type RouteDef } from '../../src/index.js';
+
+export const TEST_JWT_SECRET = 'test-secret-that-is-long-enough-for-hs256-0123456789';
+
+export interface TestApi {
+  baseUrl: string;
+  orm: MikroORM;
+  env: ApiEnv;
+  fixture: RoleFixture;
+  routes: RouteDef[];
+  /** Every log line the app wrote, for checks that secrets stay out of logs. */
+  logLines: string[];
+  request(method: string, path: string, opts?: { token?: string; body?: unknown; rawBody?: string; headers?: Record<string, string> }): Promise<TestResponse>;
+  login(email: string, password?: string): Promise<string>;
+  close(): Promise<void>;
+}
+
+export interface TestResponse {
+  status: number;
+  headers: Headers;
+  contentType: string;
+  body: any; // eslint-disable-line @typescript-eslint/no-explicit-any -- test responses are asserted field by field
+  text: string;
+}
+
+/** The real Express app over HTTP on an ephemeral port, against its own fresh database. */
+export async function startTestApi(envOverrides: Record<string, string> = {}): Promise<TestApi> {
+  const db = await createTestDatabase();
+  const orm = await initOrm({ url: db.url, poolMax: 5 });
+  const fixture = await seedRoles(orm.em.fork());
+  const env = loadApiEnv({
+    EARMARK_DATABASE_URL: db.url,
+    EARMARK_JWT_SECRET: TEST_JWT_SECRET,
+    EARMARK_WEB_DIST: '/nonexistent',
+    EARMARK_LOGIN_RATE_LIMIT: '1000',
+    ...envOverrides,
+  });
+  const logLines: string[] = [];
+  const sink = new Writable({ write(chunk, _enc, cb) { logLines.push(String(chunk)); cb(); } });
+  const logger = pino({ level: 'info' }, sink);
+  const { app, routes } = createApp({ orm, env, logger });
+  const server = app.listen(0, '127.0.0.1');
+  await new Promise<void>((resolve) => server.once('listening', resolve));
+  const baseUrl = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
+
+  const request: TestApi['request'] = async (method, path, opts = {}) => {
+    const headers: Record<string, string> = { ...opts.headers };
+    if (opts.token) headers.authorization = `Bearer ${opts.token}`;
+    let body: string | undefined;
+    if (opts.rawBody !== undefined) body = opts.rawBody;
+    else if (opts.body !== undefined) body = JSON.stringify(opts.body);
+    if (body !== undefined) headers['content-type'] ??= 'application/json';
+    const res = await fetch(`${baseUrl}${path}`, { method, headers, body });
+    const text = await res.text();
+    const contentType = res.headers.get('content-type') ?? '';
+    return { status: res.status, headers: res.headers, contentType, text, body: text && contentType.includes('json') ? JSON.parse(text) : null };
+  };
+
+  return {
+    baseUrl,
+    orm,
+    env,
+    fixture,
+    routes,
+    logLines,
+    request,
+    async login(email, password = TEST_PASSWORD) {
+      const res = await request('POST', '/api/auth/login', { body: { email, password } });
+      if (res.status !== 200) throw new Error(`login ${email} failed: ${res.status} ${res.text}`);
+      return res.body.accessToken as string;
+    },
+    async close() {
+      await new Promise<void>((resolve) => server.close(() => resolve()));
+      await orm.close();
+      await db.drop();
+    },
+  };
+}

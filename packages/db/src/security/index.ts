@@ -1,0 +1,2 @@
+export * from './api-token-secret.js';
+export * from './passwords.js';

@@ -1,0 +1,48 @@
+import type { EntityManager } from '@mikro-orm/postgresql';
+import { ApiToken, Membership, Project, Target, TestCase, User } from '../entities/index.js';
+import { hashPassword } from '../security/passwords.js';
+import { DEMO_PASSWORD, demoProjects, demoUsers } from './demo-scenario.js';
+
+export interface DemoCiToken {
+  token: string;
+  prefix: string;
+  hash: string;
+}
+
+export interface SeedResult {
+  created: boolean;
+}
+
+/**
+ * Seeds the demo scenario once. Idempotent: when the first demo project exists the
+ * database is left as it is (a second `npm start` adds nothing).
+ * @param ciToken the demo CI token for kestrel-buds (its secret is kept by the caller).
+ */
+export async function seedDemo(em: EntityManager, ciToken: DemoCiToken): Promise<SeedResult> {
+  if (await em.findOne(Project, { key: demoProjects[0].key })) return { created: false };
+  const passwordHash = await hashPassword(DEMO_PASSWORD, 10);
+  await em.transactional(async (tx) => {
+    const users = demoUsers.map((u) =>
+      tx.create(User, { email: u.email, displayName: u.displayName, isAdmin: u.isAdmin, passwordHash }),
+    );
+    for (const p of demoProjects) {
+      const project = tx.create(Project, { key: p.key, name: p.name, description: p.description });
+      for (const t of p.targets) tx.create(Target, { project, key: t.key, name: t.name, sampleRate: t.sampleRate });
+      for (const c of p.testCases) tx.create(TestCase, { project, key: c.key, name: c.name, stimulus: { ...c.stimulus }, channelMap: [0] });
+      demoUsers.forEach((u, i) => {
+        if (u.role) tx.create(Membership, { project, user: users[i]!, role: u.role });
+      });
+      if (p.key === 'kestrel-buds') {
+        tx.create(ApiToken, {
+          project,
+          name: 'demo pipeline',
+          prefix: ciToken.prefix,
+          secretHash: ciToken.hash,
+          scopes: ['submit-captures', 'read-verdicts'],
+          createdBy: users[0]!,
+        });
+      }
+    }
+  });
+  return { created: true };
+}
