@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { RequestContext, type MikroORM } from '@mikro-orm/postgresql';
 import express from 'express';
-import { rateLimit } from 'express-rate-limit';
+import { ipKeyGenerator, rateLimit } from 'express-rate-limit';
 import helmet from 'helmet';
 import type { Logger } from 'pino';
 import { pinoHttp } from 'pino-http';
@@ -34,7 +34,7 @@ function loginLimiter(env: ApiEnv): express.RequestHandler {
     // Only failed attempts count, so a team signing in all day is never locked out.
     skipSuccessfulRequests: true,
     // Per address and account, so one noisy client cannot lock out everyone else.
-    keyGenerator: (req) => `${req.ip}|${String((req.body as { email?: unknown } | undefined)?.email ?? '').toLowerCase()}`,
+    keyGenerator: (req) => `${ipKeyGenerator(req.ip ?? '')}|${String((req.body as { email?: unknown } | undefined)?.email ?? '').toLowerCase()}`,
     handler: (req, res) =>
       sendProblem(
         res,

@@ -10,6 +10,7 @@ export const TEST_JWT_SECRET = 'test-secret-that-is-long-enough-for-hs256-012345
 
 export interface TestApi {
   baseUrl: string;
+  app: import('express').Express;
   orm: MikroORM;
   env: ApiEnv;
   fixture: RoleFixture;
@@ -64,6 +65,7 @@ export async function startTestApi(envOverrides: Record<string, string> = {}): P
 
   return {
     baseUrl,
+    app,
     orm,
     env,
     fixture,
