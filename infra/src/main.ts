@@ -1,8 +1,13 @@
 import { dbCommand } from './commands/db.command.js';
+import { startCommand } from './commands/start.command.js';
+import { testCommand } from './commands/test.command.js';
 
+// argv: node infra <command> [...args] (set by infra/bootstrap.mjs)
 const [command, ...args] = process.argv.slice(2);
 const commands: Record<string, (args: string[]) => Promise<number>> = {
   db: dbCommand,
+  start: () => startCommand(),
+  test: testCommand,
 };
 
 const handler = command ? commands[command] : undefined;

@@ -60,6 +60,11 @@ export function createApp({ orm, env, logger }: AppDeps): EarmarkApp {
       logger,
       // Credentials never reach the log.
       redact: ['req.headers.authorization', 'req.headers.cookie', 'res.headers["set-cookie"]'],
+      // One compact line per request: method, URL, status, time. No headers, no bodies.
+      serializers: {
+        req: (req: { method: string; url: string }) => ({ method: req.method, url: req.url }),
+        res: (res: { statusCode: number }) => ({ statusCode: res.statusCode }),
+      },
       customLogLevel: (_req, res, err) => (err || res.statusCode >= 500 ? 'error' : res.statusCode >= 400 ? 'warn' : 'info'),
     }),
   );

@@ -1,4 +1,4 @@
-import { ApiToken, generateTokenSecret, type Project, type User } from '@earmark/db';
+import { ApiToken, generateTokenSecret, type Project } from '@earmark/db';
 import type { TokenScope } from '@earmark/contracts';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startTestApi, type TestApi } from './support/test-api.js';

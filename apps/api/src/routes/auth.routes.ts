@@ -2,7 +2,7 @@ import { LoginRequest, RefreshRequest } from '@earmark/contracts';
 import type { RequestHandler } from 'express';
 import { parseWith } from '../http/validate.js';
 import { requireUser, type RouteDef } from '../http/route.js';
-import { SessionService, toCurrentUser } from '../services/session.service.js';
+import { toCurrentUser, type SessionService } from '../services/session.service.js';
 
 export function authRoutes(sessions: SessionService, loginLimiter: RequestHandler): RouteDef[] {
   return [

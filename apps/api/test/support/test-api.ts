@@ -3,6 +3,7 @@ import { Writable } from 'node:stream';
 import { initOrm, seedRoles, TEST_PASSWORD, type RoleFixture } from '@earmark/db';
 import { createTestDatabase } from '@earmark/db/testing';
 import type { MikroORM } from '@mikro-orm/postgresql';
+import type { Express } from 'express';
 import { pino } from 'pino';
 import { createApp, loadApiEnv, type ApiEnv, type RouteDef } from '../../src/index.js';
 
@@ -10,7 +11,7 @@ export const TEST_JWT_SECRET = 'test-secret-that-is-long-enough-for-hs256-012345
 
 export interface TestApi {
   baseUrl: string;
-  app: import('express').Express;
+  app: Express;
   orm: MikroORM;
   env: ApiEnv;
   fixture: RoleFixture;
@@ -26,7 +27,8 @@ export interface TestResponse {
   status: number;
   headers: Headers;
   contentType: string;
-  body: any; // eslint-disable-line @typescript-eslint/no-explicit-any -- test responses are asserted field by field
+  /** Parsed JSON; tests assert it field by field. */
+  body: any;
   text: string;
 }
 

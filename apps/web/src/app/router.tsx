@@ -1,0 +1,56 @@
+import type { QueryClient } from '@tanstack/react-query';
+import { createBrowserRouter, redirect, type RouteObject } from 'react-router';
+import { FullPageLoading } from '@/components/full-page-status';
+import { getMeQueryOptions } from '@/features/auth/api/get-me';
+import { paths } from '@/lib/paths';
+import { ProjectRoute, projectLoader } from './routes/app/project';
+import { ProjectsRoute, projectsLoader } from './routes/app/projects';
+import { NotFoundRoute } from './routes/not-found';
+import { requireSession } from './routes/require-session';
+import { RootErrorBoundary, RouteErrorBoundary } from './routes/route-error';
+import { SignInRoute, signInLoader } from './routes/sign-in';
+import { AppShell } from './shell/app-shell';
+
+/**
+ * The route table, separate from the router so tests can mount it in a memory router.
+ * Loaders prefetch with the same query-options factories the pages read through, so the
+ * page renders from cache and TanStack Query keeps it fresh afterwards.
+ */
+export function createAppRoutes(queryClient: QueryClient): RouteObject[] {
+  return [
+    {
+      path: '/sign-in',
+      loader: signInLoader,
+      Component: SignInRoute,
+      ErrorBoundary: RootErrorBoundary,
+      HydrateFallback: FullPageLoading,
+    },
+    {
+      id: 'app',
+      path: '/',
+      // Validates a stored session against the API on start-up (and is a cache hit after).
+      loader: requireSession(async () => {
+        await queryClient.ensureQueryData(getMeQueryOptions());
+        return null;
+      }),
+      Component: AppShell,
+      ErrorBoundary: RootErrorBoundary,
+      HydrateFallback: FullPageLoading,
+      children: [
+        { index: true, loader: () => redirect(paths.projects()) },
+        {
+          ErrorBoundary: RouteErrorBoundary,
+          children: [
+            { path: 'projects', loader: projectsLoader(queryClient), Component: ProjectsRoute },
+            { path: 'projects/:projectKey', loader: projectLoader(queryClient), Component: ProjectRoute },
+            { path: '*', Component: NotFoundRoute },
+          ],
+        },
+      ],
+    },
+  ];
+}
+
+export function createAppRouter(queryClient: QueryClient) {
+  return createBrowserRouter(createAppRoutes(queryClient));
+}

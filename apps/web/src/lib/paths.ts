@@ -1,0 +1,24 @@
+/** Every in-app URL is built here so a renamed route is one edit. */
+export const paths = {
+  signIn: (next?: string, expired = false): string => {
+    const params = new URLSearchParams();
+    if (next && next !== '/') params.set('next', next);
+    if (expired) params.set('expired', '1');
+    const query = params.toString();
+    return query ? `/sign-in?${query}` : '/sign-in';
+  },
+  projects: (): string => '/projects',
+  project: (key: string): string => `/projects/${encodeURIComponent(key)}`,
+} as const;
+
+/**
+ * Only same-origin paths are honoured as a post-sign-in destination; anything else
+ * (`//evil.example`, `https://…`) would turn the sign-in page into an open redirect.
+ */
+export function safeNextPath(value: string | null): string {
+  if (!value || !value.startsWith('/') || value.startsWith('//') || value.startsWith('/\\')) {
+    return paths.projects();
+  }
+  if (value.startsWith('/sign-in')) return paths.projects();
+  return value;
+}

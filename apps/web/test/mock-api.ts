@@ -1,0 +1,75 @@
+import type { CurrentUser, Problem, Project } from '@earmark/contracts';
+import { vi } from 'vitest';
+
+export type RecordedRequest = { method: string; path: string; authorization: string | null; body: unknown };
+type Handler = (request: RecordedRequest) => Response | Promise<Response>;
+
+export function json(body: unknown, status = 200): Response {
+  return new Response(JSON.stringify(body), { status, headers: { 'Content-Type': 'application/json' } });
+}
+
+export function problem(status: number, title: string, detail?: string): Response {
+  const body: Problem = { type: 'about:blank', title, status, ...(detail ? { detail } : {}) };
+  return new Response(JSON.stringify(body), { status, headers: { 'Content-Type': 'application/problem+json' } });
+}
+
+/**
+ * Replaces fetch with a table of `METHOD /path` handlers and records every request, so a
+ * test can assert what the app sent (and in which order) as well as what it showed.
+ */
+export function mockApi(handlers: Record<string, Handler>) {
+  const requests: RecordedRequest[] = [];
+  const fetchMock = vi.fn(async (input: RequestInfo | URL, init?: RequestInit): Promise<Response> => {
+    const url = new URL(typeof input === 'string' ? input : input instanceof URL ? input.href : input.url, 'http://localhost');
+    const headers = new Headers(init?.headers);
+    const request: RecordedRequest = {
+      method: init?.method ?? 'GET',
+      path: url.pathname,
+      authorization: headers.get('Authorization'),
+      body: typeof init?.body === 'string' ? (JSON.parse(init.body) as unknown) : undefined,
+    };
+    requests.push(request);
+    const handler = handlers[`${request.method} ${request.path}`];
+    if (!handler) return problem(404, 'Not Found', `No mock for ${request.method} ${request.path}`);
+    return handler(request);
+  });
+  vi.stubGlobal('fetch', fetchMock);
+  return { requests, fetchMock };
+}
+
+export const qaUser: CurrentUser = {
+  id: 'u-qa',
+  email: 'qa@aurora-acoustics.test',
+  displayName: 'Quinn Abara',
+  isAdmin: false,
+  memberships: [
+    { projectKey: 'kestrel-buds', projectName: 'Kestrel Buds', role: 'qa_manager' },
+    { projectKey: 'heron-bar', projectName: 'Heron Soundbar', role: 'viewer' },
+  ],
+};
+
+export const kestrel: Project = {
+  key: 'kestrel-buds',
+  name: 'Kestrel Buds',
+  description: 'True-wireless earbuds, ANC and transparency modes.',
+  createdAt: '2025-03-04T09:00:00.000Z',
+  myRole: 'qa_manager',
+  targetCount: 3,
+  testCaseCount: 14,
+  buildCount: 212,
+};
+
+export const heron: Project = {
+  key: 'heron-bar',
+  name: 'Heron Soundbar',
+  description: 'Five-driver soundbar with a DSP crossover.',
+  createdAt: '2025-05-20T12:30:00.000Z',
+  myRole: 'viewer',
+  targetCount: 2,
+  testCaseCount: 9,
+  buildCount: 0,
+};
+
+export function seedSession(accessToken = 'access-1', refreshToken = 'refresh-1'): void {
+  window.localStorage.setItem('earmark.session', JSON.stringify({ accessToken, refreshToken }));
+}

@@ -1,0 +1,83 @@
+import path from 'node:path';
+import { DEMO_PASSWORD, demoUsers } from '@earmark/db';
+import { startDevDatabase } from '../dev-database.js';
+import { seedDemoScenario } from '../demo.js';
+import { repoRoot } from '../paths.js';
+import { assertPortFree, waitForPort } from '../ports.js';
+import { loadLocalSecrets } from '../secrets.js';
+import { loadSettings } from '../settings.js';
+import { Supervisor } from '../supervisor.js';
+import { ensureWebBuilt, webDist } from '../web-build.js';
+
+const log = (line: string) => console.log(`earmark: ${line}`);
+
+/**
+ * `npm start`: private PostgreSQL, migrations, demo seed, web build, API and worker,
+ * all on loopback. Ctrl-C stops everything it started, the cluster included.
+ */
+export async function startCommand(): Promise<number> {
+  const settings = loadSettings();
+  await assertPortFree(settings.EARMARK_API_PORT, 'the API', 'EARMARK_API_PORT');
+  const { cluster, url } = await startDevDatabase(settings, log);
+  const demoToken = await seedDemoScenario(url);
+  ensureWebBuilt(log);
+
+  let exitCode = 0;
+  let shuttingDown: Promise<void> | null = null;
+  let markDone: () => void = () => {};
+  const done = new Promise<void>((resolve) => (markDone = resolve));
+  const supervisor = new Supervisor((name, code) => {
+    console.error(`earmark: the ${name} exited unexpectedly (code ${code}); stopping everything.`);
+    exitCode = 1;
+    void shutdown();
+  });
+  const shutdown = () =>
+    (shuttingDown ??= (async () => {
+      log('stopping…');
+      await supervisor.stopAll();
+      cluster.stop();
+      log('stopped.');
+      markDone();
+    })());
+
+  const env = {
+    ...process.env,
+    EARMARK_DATABASE_URL: url,
+    EARMARK_JWT_SECRET: settings.EARMARK_JWT_SECRET ?? loadLocalSecrets().jwtSecret,
+    EARMARK_API_PORT: String(settings.EARMARK_API_PORT),
+    EARMARK_WEB_DIST: webDist,
+    EARMARK_LOG_LEVEL: settings.EARMARK_LOG_LEVEL,
+    EARMARK_WORKER_CONCURRENCY: String(settings.EARMARK_WORKER_CONCURRENCY),
+  };
+  supervisor.start('api', ['--import', 'tsx', 'src/server.ts'], { cwd: path.join(repoRoot, 'apps', 'api'), env });
+  supervisor.start('worker', ['--import', 'tsx', 'src/worker.ts'], { cwd: path.join(repoRoot, 'apps', 'worker'), env });
+
+  for (const signal of ['SIGINT', 'SIGTERM'] as const) process.once(signal, () => void shutdown());
+  try {
+    await waitForPort(settings.EARMARK_API_PORT, 60_000);
+  } catch (error) {
+    await shutdown();
+    throw error;
+  }
+  if (!shuttingDown) printWelcome(settings.EARMARK_API_PORT, cluster.port, demoToken);
+  await done;
+  return exitCode;
+}
+
+function printWelcome(apiPort: number, pgPort: number, demoToken: string | null): void {
+  const lines = [
+    '',
+    `  Earmark is running:  http://127.0.0.1:${apiPort}/`,
+    `  API:                 http://127.0.0.1:${apiPort}/api   (CI routes under /api/v1)`,
+    `  PostgreSQL:          127.0.0.1:${pgPort} (private cluster under .data/)`,
+    '',
+    `  Demo sign-ins (password ${DEMO_PASSWORD}):`,
+    ...demoUsers.map((u) => `    ${(u.role ?? 'admin').padEnd(11)} ${u.email}`),
+    '',
+    `  Demo CI token (project kestrel-buds): ${demoToken ?? '(not available: remove .data/ to reseed)'}`,
+    '',
+    '  Press Ctrl-C to stop everything.',
+    '',
+  ];
+  console.log(lines.join('\n'));
+}

@@ -1,0 +1,13 @@
+import { z } from 'zod';
+
+/** pg-boss queue names and their payloads, shared by the API (producer) and the worker. */
+export const QUEUES = {
+  analyzeCapture: 'analyze-capture',
+  sendNotifications: 'send-notifications',
+} as const;
+
+export const AnalyzeCaptureJob = z.object({ captureId: z.uuid() });
+export type AnalyzeCaptureJob = z.infer<typeof AnalyzeCaptureJob>;
+
+export const SendNotificationsJob = z.object({ reason: z.string().max(200).optional() });
+export type SendNotificationsJob = z.infer<typeof SendNotificationsJob>;
