@@ -1,3 +1,4 @@
+import { benchCommand } from './commands/bench.command.js';
 import { dbCommand } from './commands/db.command.js';
 import { startCommand } from './commands/start.command.js';
 import { testCommand } from './commands/test.command.js';
@@ -5,6 +6,7 @@ import { testCommand } from './commands/test.command.js';
 // argv: node infra <command> [...args] (set by infra/bootstrap.mjs)
 const [command, ...args] = process.argv.slice(2);
 const commands: Record<string, (args: string[]) => Promise<number>> = {
+  bench: benchCommand,
   db: dbCommand,
   start: () => startCommand(),
   test: testCommand,

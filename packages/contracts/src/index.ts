@@ -5,3 +5,4 @@ export * from './projects.js';
 export * from './users.js';
 export * from './builds.js';
 export * from './stimulus.js';
+export * from './queues.js';

@@ -1,1 +1,6 @@
-export {};
+export type { AudioFormat, DecodedAudio } from './decoded-audio.js';
+export { AudioDecodeError, ACCEPTED_CAPTURE_FORMATS, type AudioDecodeErrorCode } from './audio-decode-error.js';
+export { decodeWav } from './wav-decoder.js';
+export { decodeRawFloat32, type RawFloat32Options } from './raw-float32-decoder.js';
+export { encodeWav, type EncodeWavOptions } from './wav-encoder.js';
+export { WAVE_FORMAT_EXTENSIBLE, WAVE_FORMAT_IEEE_FLOAT, WAVE_FORMAT_PCM } from './wav-format.js';

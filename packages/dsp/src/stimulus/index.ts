@@ -1,1 +1,11 @@
-export {};
+export { generateStimulus, sweepInverseFilter, type GeneratedStimulus } from './generate-stimulus.js';
+export { StimulusError, type StimulusErrorCode } from './stimulus-error.js';
+export { validateStimulusSpec } from './validate-stimulus-spec.js';
+export { createSeededRandom, splitMix64, type SeededRandom } from './seeded-random.js';
+export { dbfsFromRms, rmsFromDbfs, sineAmplitudeFromDbfs } from './level.js';
+export { applyFades } from './fade.js';
+export { sineWave } from './sine.js';
+export { multitoneWave, randomPhases, schroederPhases, toneFrequencies } from './multitone.js';
+export { exponentialSweep, farinaInverseFilter, sweepFrequencyAt } from './sweep.js';
+export { scaleToRms, whiteNoise } from './white-noise.js';
+export { pinkNoise, pinkingSections, PINK_LOWEST_POLE_HZ } from './pink-noise.js';
