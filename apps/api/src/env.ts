@@ -17,6 +17,14 @@ const Env = z.object({
   EARMARK_LOGIN_RATE_LIMIT: z.coerce.number().int().min(1).default(10),
   EARMARK_LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
   EARMARK_DB_POOL_MAX: z.coerce.number().int().min(1).default(10),
+  EARMARK_S3_ENDPOINT: z.url().default('http://127.0.0.1:4312'),
+  EARMARK_S3_BUCKET: z.string().min(3).default('earmark-captures'),
+  EARMARK_S3_ACCESS_KEY: z.string().default('S3RVER'),
+  EARMARK_S3_SECRET_KEY: z.string().default('S3RVER'),
+  /** Largest capture upload accepted. */
+  EARMARK_MAX_CAPTURE_BYTES: z.coerce.number().int().min(1024).default(64 * 1024 * 1024),
+  /** Base URL of the dashboard, for links in API answers, JUnit XML and e-mail. */
+  EARMARK_PUBLIC_URL: z.url().default('http://127.0.0.1:4310'),
 });
 export type ApiEnv = z.infer<typeof Env>;
 

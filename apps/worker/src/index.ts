@@ -1,3 +1,2 @@
-export { startBoss } from './boss.js';
-export { createQueues } from './queues.js';
+export { startBoss, createQueues } from '@earmark/db';
 export { loadWorkerEnv, type WorkerEnv } from './env.js';

@@ -1,6 +1,6 @@
 import { initOrm } from '@earmark/db';
 import { pino } from 'pino';
-import { startBoss } from './boss.js';
+import { startBoss } from '@earmark/db';
 import { loadWorkerEnv } from './env.js';
 
 const env = loadWorkerEnv();

@@ -3,7 +3,7 @@ import { createTestDatabase, type TestDatabase } from '@earmark/db/testing';
 import type PgBoss from 'pg-boss';
 import { pino } from 'pino';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { startBoss } from '../src/boss.js';
+import { startBoss } from '@earmark/db';
 
 let db: TestDatabase;
 let boss: PgBoss;

@@ -6,3 +6,6 @@ export * from './users.js';
 export * from './builds.js';
 export * from './stimulus.js';
 export * from './queues.js';
+export * from './analysis.js';
+export * from './captures.js';
+export * from './test-cases.js';

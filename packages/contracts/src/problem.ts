@@ -9,6 +9,8 @@ export const Problem = z.object({
   instance: z.string().optional(),
   /** Field-level problems for validation errors: path → messages. */
   errors: z.array(z.object({ path: z.string(), message: z.string() })).optional(),
+  /** A machine-readable reason, e.g. the capture decoder's error code. */
+  code: z.string().optional(),
 });
 export type Problem = z.infer<typeof Problem>;
 

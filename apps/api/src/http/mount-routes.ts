@@ -2,6 +2,7 @@ import type { MikroORM } from '@mikro-orm/postgresql';
 import type { Router } from 'express';
 import { authenticate } from '../auth/authenticate.js';
 import { authorize } from '../auth/authorize.js';
+import { AuthError } from '../errors.js';
 import type { TokenSigner } from '../auth/jwt.js';
 import type { RouteDef } from './route.js';
 
@@ -11,7 +12,10 @@ export function mountRoutes(router: Router, routes: RouteDef[], orm: MikroORM, s
     router[route.method](route.path, ...(route.before ?? []), async (req, res) => {
       const em = orm.em.getContext() as typeof orm.em;
       const principal = route.access.kind === 'public' ? null : await authenticate(req, em, signer);
-      const projectKey = typeof req.params.project === 'string' ? req.params.project : undefined;
+      if (!principal && route.access.kind !== 'public') throw new AuthError();
+      const projectKey = route.resolveProjectKey
+        ? await route.resolveProjectKey(req, em)
+        : typeof req.params.project === 'string' ? req.params.project : undefined;
       const { project } = await authorize(route.access, principal, projectKey, em);
       await route.handle({ req, res, em, principal, project });
     });

@@ -38,7 +38,7 @@ export function errorHandler(logger: Logger): ErrorRequestHandler {
     if (err instanceof HttpError) {
       sendProblem(
         res,
-        { type: typeFor(err.status), title: err.title, status: err.status, detail: err.message, instance: req.originalUrl, ...(err.extra.errors ? { errors: err.extra.errors } : {}) },
+        { type: typeFor(err.status), title: err.title, status: err.status, detail: err.message, instance: req.originalUrl, ...(err.extra.errors ? { errors: err.extra.errors } : {}), ...(err.extra.code ? { code: err.extra.code } : {}) },
         err.extra.headers,
       );
       return;

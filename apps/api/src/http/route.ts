@@ -18,6 +18,8 @@ export interface RouteDef {
   path: string;
   access: Access;
   summary: string;
+  /** For routes without `:project`: finds the project key from the path (e.g. a capture id). */
+  resolveProjectKey?: (req: Request, em: EntityManager) => Promise<string | undefined>;
   /** Runs before authentication (e.g. the sign-in rate limiter). */
   before?: RequestHandler[];
   handle(ctx: RouteContext): Promise<void>;

@@ -24,12 +24,12 @@ export const demoProjects = [
       {
         key: 'eq.music.sweep',
         name: 'Music EQ preset, exponential sweep',
-        stimulus: { kind: 'sweep', sampleRate: 48000, fromHz: 20, toHz: 20000, seconds: 4, levelDbfs: -12, fadeMs: 20, silenceAfterSeconds: 0.5 },
+        stimulus: { kind: 'sweep', sampleRate: 48000, seconds: 4, levelDbfs: -12, from: 20, to: 20000, silenceSeconds: 0.5, fadeInSeconds: 0.02, fadeOutSeconds: 0.02 },
       },
       {
         key: 'level.tone.997',
         name: 'Line level, 997 Hz tone at −20 dBFS',
-        stimulus: { kind: 'sine', sampleRate: 48000, frequencyHz: 997, seconds: 2, levelDbfs: -20 },
+        stimulus: { kind: 'sine', sampleRate: 48000, seconds: 2, levelDbfs: -20, frequency: 997 },
       },
       {
         key: 'noise.idle',
@@ -47,7 +47,7 @@ export const demoProjects = [
       {
         key: 'xover.multitone',
         name: 'Crossover, Schroeder multitone',
-        stimulus: { kind: 'multitone', sampleRate: 48000, fromHz: 40, toHz: 16000, tones: 31, seconds: 3, levelDbfs: -18, seed: 7 },
+        stimulus: { kind: 'multitone', sampleRate: 48000, seconds: 3, levelDbfs: -18, from: 40, to: 16000, count: 31, seed: 7 },
       },
     ],
   },

@@ -1,4 +1,5 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
+import { StimulusSpec } from '@earmark/contracts';
 import { ApiToken, Membership, Project, Target, TestCase, User } from '../entities/index.js';
 import { hashPassword } from '../security/passwords.js';
 import { DEMO_PASSWORD, demoProjects, demoUsers } from './demo-scenario.js';
@@ -28,7 +29,7 @@ export async function seedDemo(em: EntityManager, ciToken: DemoCiToken): Promise
     for (const p of demoProjects) {
       const project = tx.create(Project, { key: p.key, name: p.name, description: p.description });
       for (const t of p.targets) tx.create(Target, { project, key: t.key, name: t.name, sampleRate: t.sampleRate });
-      for (const c of p.testCases) tx.create(TestCase, { project, key: c.key, name: c.name, stimulus: { ...c.stimulus }, channelMap: [0] });
+      for (const c of p.testCases) tx.create(TestCase, { project, key: c.key, name: c.name, stimulus: StimulusSpec.parse(c.stimulus), channelMap: [] });
       demoUsers.forEach((u, i) => {
         if (u.role) tx.create(Membership, { project, user: users[i]!, role: u.role });
       });

@@ -1,0 +1,74 @@
+import type { EntityManager } from '@mikro-orm/postgresql';
+import type { CaptureDto, CheckResultDto, VerdictDto } from '@earmark/contracts';
+import { CheckResult, Verdict, type Capture } from '@earmark/db';
+import type { Links } from './links.js';
+
+/** The newest verdict of each capture with its check results, in two queries. */
+export async function latestVerdicts(em: EntityManager, captures: Capture[]): Promise<Map<string, VerdictDto>> {
+  if (captures.length === 0) return new Map();
+  const verdicts = await em.find(
+    Verdict,
+    { capture: { $in: captures.map((c) => c.id) } },
+    { populate: ['maskRevision'], orderBy: { createdAt: 'desc' } },
+  );
+  const newest = new Map<string, Verdict>();
+  for (const v of verdicts) if (!newest.has(v.capture.id)) newest.set(v.capture.id, v);
+  const checks = await em.find(CheckResult, { verdict: { $in: [...newest.values()].map((v) => v.id) } }, { orderBy: { checkId: 'asc' } });
+  const byVerdict = new Map<string, CheckResultDto[]>();
+  for (const c of checks) {
+    const list = byVerdict.get(c.verdict.id) ?? [];
+    list.push({
+      id: c.checkId,
+      kind: c.kind,
+      label: typeof c.details.label === 'string' ? c.details.label : null,
+      pass: c.pass,
+      measured: c.measured,
+      limit: c.limit,
+      margin: c.margin,
+      unit: typeof c.details.unit === 'string' ? c.details.unit : null,
+      worstHz: c.worstHz,
+    });
+    byVerdict.set(c.verdict.id, list);
+  }
+  return new Map(
+    [...newest.entries()].map(([captureId, v]) => [
+      captureId,
+      {
+        outcome: v.outcome,
+        reason: v.reason,
+        engineVersion: v.engineVersion,
+        maskRevisionId: v.maskRevision?.id ?? null,
+        maskRevision: v.maskRevision?.revision ?? null,
+        createdAt: v.createdAt.toISOString(),
+        checks: byVerdict.get(v.id) ?? [],
+      },
+    ]),
+  );
+}
+
+/** Captures must have project, build, testCase and target loaded. */
+export function toCaptureDto(capture: Capture, verdict: VerdictDto | null, links: Links): CaptureDto {
+  const project = capture.project.key;
+  const sha = capture.build.sha;
+  return {
+    id: capture.id,
+    projectKey: project,
+    buildSha: sha,
+    testCase: capture.testCase.key,
+    target: capture.target.key,
+    status: capture.status,
+    sha256: capture.sha256,
+    sizeBytes: capture.sizeBytes,
+    sampleRate: capture.sampleRate,
+    channels: capture.channelCount,
+    frames: capture.frames,
+    createdAt: capture.createdAt.toISOString(),
+    verdict,
+    links: { self: links.captureApi(capture.id), build: links.buildApi(project, sha), dashboard: links.capturePage(project, sha, capture.id) },
+  };
+}
+
+export async function presentCaptures(em: EntityManager, captures: Capture[], links: Links): Promise<CaptureDto[]> {
+  const verdicts = await latestVerdicts(em, captures);
+  return captures.map((c) => toCaptureDto(c, verdicts.get(c.id) ?? null, links));
+}

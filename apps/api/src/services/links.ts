@@ -1,0 +1,12 @@
+/** URLs that API answers, JUnit XML and e-mails point to. */
+export function createLinks(publicUrl: string) {
+  const base = publicUrl.replace(/\/$/, '');
+  return {
+    captureApi: (id: string) => `${base}/api/v1/captures/${id}`,
+    buildApi: (project: string, sha: string) => `${base}/api/v1/projects/${project}/builds/${sha}`,
+    junit: (project: string, sha: string) => `${base}/api/v1/projects/${project}/builds/${sha}/junit.xml`,
+    buildPage: (project: string, sha: string) => `${base}/projects/${project}/builds/${sha}`,
+    capturePage: (project: string, sha: string, id: string) => `${base}/projects/${project}/builds/${sha}/captures/${id}`,
+  };
+}
+export type Links = ReturnType<typeof createLinks>;

@@ -1,0 +1,66 @@
+import { z } from 'zod';
+import { BuildRow } from './builds.js';
+
+export const CaptureStatus = z.enum(['queued', 'analysing', 'done', 'error']);
+export type CaptureStatus = z.infer<typeof CaptureStatus>;
+
+export const VerdictOutcome = z.enum(['pass', 'fail', 'error']);
+export type VerdictOutcome = z.infer<typeof VerdictOutcome>;
+
+/** Keys of test cases (`eq.music.sweep`) and targets (`evt2-48k`). */
+export const TestCaseKey = z.string().min(1).max(80).regex(/^[a-z0-9][a-z0-9._-]*$/, 'lower-case letters, digits, dots, dashes and underscores');
+export const TargetKey = z.string().min(1).max(60).regex(/^[a-z0-9][a-z0-9._-]*$/, 'lower-case letters, digits, dots, dashes and underscores');
+
+/** Media type of a raw little-endian float32 upload; rate and channels go in X-Sample-Rate / X-Channels. */
+export const RAW_FLOAT32_MEDIA_TYPE = 'application/x-earmark-f32le';
+export const WAV_MEDIA_TYPES = ['audio/wav', 'audio/x-wav', 'audio/wave', 'audio/vnd.wave'] as const;
+
+/** One evaluated check of a mask. Margin is positive inside the limit, negative outside. */
+export const CheckResultDto = z.object({
+  id: z.string(),
+  kind: z.string(),
+  label: z.string().nullable(),
+  pass: z.boolean(),
+  measured: z.number().nullable(),
+  limit: z.number().nullable(),
+  margin: z.number().nullable(),
+  unit: z.string().nullable(),
+  worstHz: z.number().nullable(),
+});
+export type CheckResultDto = z.infer<typeof CheckResultDto>;
+
+export const VerdictDto = z.object({
+  outcome: VerdictOutcome,
+  reason: z.string().nullable(),
+  engineVersion: z.string(),
+  maskRevisionId: z.string().nullable(),
+  maskRevision: z.number().int().nullable(),
+  createdAt: z.string(),
+  checks: z.array(CheckResultDto),
+});
+export type VerdictDto = z.infer<typeof VerdictDto>;
+
+export const CaptureDto = z.object({
+  id: z.string(),
+  projectKey: z.string(),
+  buildSha: z.string(),
+  testCase: z.string(),
+  target: z.string(),
+  status: CaptureStatus,
+  sha256: z.string(),
+  sizeBytes: z.number().int(),
+  sampleRate: z.number().int(),
+  channels: z.number().int(),
+  frames: z.number().int(),
+  createdAt: z.string(),
+  verdict: VerdictDto.nullable(),
+  links: z.object({ self: z.string(), build: z.string(), dashboard: z.string() }),
+});
+export type CaptureDto = z.infer<typeof CaptureDto>;
+
+export const BuildDetail = BuildRow.extend({
+  counts: z.object({ pass: z.number().int(), fail: z.number().int(), error: z.number().int(), pending: z.number().int() }),
+  captures: z.array(CaptureDto),
+  links: z.object({ self: z.string(), junit: z.string(), dashboard: z.string() }),
+});
+export type BuildDetail = z.infer<typeof BuildDetail>;

@@ -1,0 +1,2 @@
+export * from './boss.js';
+export * from './queues.js';
