@@ -4,6 +4,8 @@ import { RequestContext, type MikroORM } from '@mikro-orm/postgresql';
 import express from 'express';
 import { ipKeyGenerator, rateLimit } from 'express-rate-limit';
 import helmet from 'helmet';
+import type { ObjectStore } from '@earmark/db';
+import type PgBoss from 'pg-boss';
 import type { Logger } from 'pino';
 import { pinoHttp } from 'pino-http';
 import { createTokenSigner } from './auth/jwt.js';
@@ -12,12 +14,17 @@ import { mountRoutes } from './http/mount-routes.js';
 import { errorHandler, notFoundHandler, sendProblem } from './http/problem.js';
 import type { RouteDef } from './http/route.js';
 import { allRoutes } from './routes/index.js';
+import { CaptureIngestService } from './services/capture-ingest.service.js';
+import { createLinks } from './services/links.js';
 import { SessionService } from './services/session.service.js';
 
 export interface AppDeps {
   orm: MikroORM;
   env: ApiEnv;
   logger: Logger;
+  objectStore: ObjectStore;
+  /** Producer side of the job queue (queues created at start-up). */
+  boss: PgBoss;
 }
 
 export interface EarmarkApp {
@@ -44,7 +51,7 @@ function loginLimiter(env: ApiEnv): express.RequestHandler {
 }
 
 /** Builds the Express app; tests boot it on an ephemeral port. */
-export function createApp({ orm, env, logger }: AppDeps): EarmarkApp {
+export function createApp({ orm, env, logger, objectStore, boss }: AppDeps): EarmarkApp {
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', 'loopback');
@@ -72,7 +79,9 @@ export function createApp({ orm, env, logger }: AppDeps): EarmarkApp {
   app.use((_req, _res, next) => RequestContext.create(orm.em, next));
 
   const signer = createTokenSigner(env.EARMARK_JWT_SECRET, { access: env.EARMARK_ACCESS_TOKEN_TTL_S, refresh: env.EARMARK_REFRESH_TOKEN_TTL_S });
-  const routes = allRoutes({ sessions: new SessionService(signer), loginLimiter: loginLimiter(env) });
+  const links = createLinks(env.EARMARK_PUBLIC_URL);
+  const ingest = new CaptureIngestService({ objectStore, boss, links, logger, maxCaptureBytes: env.EARMARK_MAX_CAPTURE_BYTES });
+  const routes = allRoutes({ sessions: new SessionService(signer), loginLimiter: loginLimiter(env), ingest, links });
   const api = express.Router();
   mountRoutes(api, routes, orm, signer);
   app.use(api);

@@ -1,4 +1,4 @@
-import { initOrm } from '@earmark/db';
+import { ObjectStore, initOrm, startBoss } from '@earmark/db';
 import { createApp } from './app.js';
 import { loadApiEnv } from './env.js';
 import { createLogger } from './logger.js';
@@ -9,7 +9,15 @@ const orm = await initOrm({ url: env.EARMARK_DATABASE_URL, poolMax: env.EARMARK_
 if (await orm.getMigrator().checkMigrationNeeded()) {
   logger.warn('the database schema differs from the entities; run the migrations (npm start does)');
 }
-const { app } = createApp({ orm, env, logger });
+const objectStore = new ObjectStore({
+  endpoint: env.EARMARK_S3_ENDPOINT,
+  bucket: env.EARMARK_S3_BUCKET,
+  accessKeyId: env.EARMARK_S3_ACCESS_KEY,
+  secretAccessKey: env.EARMARK_S3_SECRET_KEY,
+});
+await objectStore.ensureBucket().catch((error: unknown) => logger.warn({ err: error }, 'object store not reachable at start-up; uploads answer 503 until it is'));
+const boss = await startBoss(env.EARMARK_DATABASE_URL, logger);
+const { app } = createApp({ orm, env, logger, objectStore, boss });
 const server = app.listen(env.EARMARK_API_PORT, env.EARMARK_API_HOST, () => {
   logger.info({ url: `http://${env.EARMARK_API_HOST}:${env.EARMARK_API_PORT}` }, 'api listening');
 });
@@ -21,6 +29,8 @@ server.on('error', (error: NodeJS.ErrnoException) => {
 async function shutdown(signal: string) {
   logger.info({ signal }, 'shutting down');
   server.close();
+  await boss.stop({ graceful: true, timeout: 5000 });
+  objectStore.destroy();
   await orm.close();
   process.exit(0);
 }

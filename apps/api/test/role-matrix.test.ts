@@ -1,4 +1,4 @@
-import { ApiToken, generateTokenSecret, type Project } from '@earmark/db';
+import { ApiToken, Build, Capture, Target, TestCase, generateTokenSecret, type Project } from '@earmark/db';
 import type { TokenScope } from '@earmark/contracts';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startTestApi, type TestApi } from './support/test-api.js';
@@ -15,6 +15,9 @@ const PUBLIC = 'public' as const;
 const SIGNED_IN: Caller[] = ['viewer', 'engineer', 'qa_manager', 'admin', 'outsider'];
 const PROJECT_READERS: Caller[] = ['viewer', 'engineer', 'qa_manager', 'admin'];
 const ADMIN: Caller[] = ['admin'];
+const CONFIGURERS: Caller[] = ['engineer', 'qa_manager', 'admin'];
+const CI_READERS: Caller[] = [...PROJECT_READERS, 'token:full', 'token:read'];
+const CI_SUBMITTERS: Caller[] = [...CONFIGURERS, 'token:full', 'token:submit'];
 
 const MATRIX: Record<string, Caller[] | typeof PUBLIC> = {
   'GET /api/health': PUBLIC,
@@ -34,15 +37,28 @@ const MATRIX: Record<string, Caller[] | typeof PUBLIC> = {
   'GET /api/admin/users': ADMIN,
   'POST /api/admin/users': ADMIN,
   'GET /api/admin/audit': ADMIN,
-  'POST /api/v1/projects/:project/builds': ['engineer', 'qa_manager', 'admin', 'token:full', 'token:submit'],
-  'GET /api/v1/projects/:project/builds': [...PROJECT_READERS, 'token:full', 'token:read'],
-  'GET /api/v1/projects/:project/builds/:sha': [...PROJECT_READERS, 'token:full', 'token:read'],
+  'GET /api/projects/:project/targets': PROJECT_READERS,
+  'POST /api/projects/:project/targets': CONFIGURERS,
+  'PATCH /api/projects/:project/targets/:targetKey': CONFIGURERS,
+  'GET /api/projects/:project/test-cases': PROJECT_READERS,
+  'POST /api/projects/:project/test-cases': CONFIGURERS,
+  'GET /api/projects/:project/test-cases/:caseKey': PROJECT_READERS,
+  'PATCH /api/projects/:project/test-cases/:caseKey': CONFIGURERS,
+  'GET /api/projects/:project/test-cases/:caseKey/stimulus.wav': PROJECT_READERS,
+  'GET /api/v1/projects/:project/test-cases/:caseKey/stimulus.wav': CI_READERS,
+  'POST /api/v1/projects/:project/builds': CI_SUBMITTERS,
+  'GET /api/v1/projects/:project/builds': CI_READERS,
+  'GET /api/v1/projects/:project/builds/:sha': CI_READERS,
+  'GET /api/v1/projects/:project/builds/:sha/junit.xml': CI_READERS,
+  'POST /api/v1/projects/:project/builds/:sha/captures': CI_SUBMITTERS,
+  'GET /api/v1/captures/:id': CI_READERS,
 };
 
 const CALLERS: Caller[] = ['anonymous', ...SIGNED_IN, 'token:full', 'token:read', 'token:submit', 'token:foreign'];
 
 let api: TestApi;
 const tokens: Partial<Record<Caller, string>> = {};
+let captureId = '';
 
 beforeAll(async () => {
   api = await startTestApi();
@@ -58,6 +74,13 @@ beforeAll(async () => {
   tokens['token:read'] = await create(project, ['read-verdicts']);
   tokens['token:submit'] = await create(project, ['submit-captures']);
   tokens['token:foreign'] = await create(otherProject, ['submit-captures', 'read-verdicts']);
+  // A real capture, so that the route resolving its project from the capture id can answer.
+  const testCase = em.create(TestCase, { project: project.id, key: 'matrix.case', name: 'matrix', stimulus: { kind: 'silence', sampleRate: 48000, seconds: 1 } });
+  const target = em.create(Target, { project: project.id, key: 'matrix-target', name: 'matrix' });
+  const build = em.create(Build, { project: project.id, sha: 'c0ffee1' });
+  const capture = em.create(Capture, { project: project.id, build, testCase, target, objectKey: 'none', sha256: '0'.repeat(64), sizeBytes: 0, sampleRate: 48000, channelCount: 1, frames: 0 });
+  await em.flush();
+  captureId = capture.id;
 });
 afterAll(() => api.close());
 
@@ -66,7 +89,10 @@ function concretePath(path: string): string {
     .replace(':project', api.fixture.project.key)
     .replace(':userId', '00000000-0000-4000-8000-000000000001')
     .replace(':tokenId', '00000000-0000-4000-8000-000000000002')
-    .replace(':sha', 'deadbeefcafe');
+    .replace(':sha', 'deadbeefcafe')
+    .replace(':targetKey', 'no-such-target')
+    .replace(':caseKey', 'no.such.case')
+    .replace(':id', captureId);
 }
 
 /** Credentials for one request; users sign in afresh, since the logout route ends sessions. */
@@ -111,7 +137,7 @@ describe('permission matrix', () => {
     const token = await credentialFor(caller);
     const body = method === 'POST' || method === 'PUT' ? {} : undefined;
     const res = await api.request(method, concretePath(path), { token, body });
-    const onlyProjectParam = !/:(userId|tokenId|sha)/.test(path);
+    const onlyProjectParam = !/:(userId|tokenId|sha|targetKey|caseKey)/.test(path);
 
     if (allowed === PUBLIC) {
       expect([401, 403]).not.toContain(res.status);
@@ -124,7 +150,7 @@ describe('permission matrix', () => {
       if (onlyProjectParam) expect(res.status, res.text).not.toBe(404);
     } else if (caller === 'anonymous') {
       expect(res.status).toBe(401);
-    } else if (caller === 'outsider' && path.includes(':project')) {
+    } else if (caller === 'outsider' && (path.includes(':project') || path.includes(':id'))) {
       // Non-members do not learn that the project exists.
       expect(res.status).toBe(404);
     } else {

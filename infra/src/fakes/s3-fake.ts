@@ -6,7 +6,7 @@ export interface S3Fake {
   close(): Promise<void>;
 }
 
-/** The local S3-compatible fake (s3rver) on loopback, objects kept in `directory`. */
+/** The local S3-compatible fake (s3rver) on loopback, objects kept in `directory`; port 0 picks a free one. */
 export async function startS3Fake(opts: { port: number; directory: string; bucket: string }): Promise<S3Fake> {
   fs.mkdirSync(opts.directory, { recursive: true });
   const server = new S3rver({
@@ -16,6 +16,6 @@ export async function startS3Fake(opts: { port: number; directory: string; bucke
     silent: true,
     configureBuckets: [{ name: opts.bucket }],
   });
-  await server.run();
-  return { endpoint: `http://127.0.0.1:${opts.port}`, close: () => server.close() };
+  const { port } = await server.run();
+  return { endpoint: `http://127.0.0.1:${port}`, close: () => server.close() };
 }

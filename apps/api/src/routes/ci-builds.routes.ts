@@ -4,10 +4,11 @@ import { Build, Capture, type Project } from '@earmark/db';
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { z } from 'zod';
 import { actorName } from '../auth/principal.js';
-import { NotFoundError } from '../errors.js';
 import { parseWith } from '../http/validate.js';
 import { requireProject, type RouteDef } from '../http/route.js';
 import { recordAudit } from '../services/audit.service.js';
+import { buildDetail } from '../services/build-detail.service.js';
+import type { Links } from '../services/links.js';
 
 const BuildListQuery = z.object({
   page: z.coerce.number().int().min(1).default(1),
@@ -30,7 +31,7 @@ async function toBuildRow(em: EntityManager, build: Build, project: Project): Pr
   };
 }
 
-export function ciBuildRoutes(): RouteDef[] {
+export function ciBuildRoutes(links: Links): RouteDef[] {
   return [
     {
       method: 'post',
@@ -84,13 +85,10 @@ export function ciBuildRoutes(): RouteDef[] {
       method: 'get',
       path: '/api/v1/projects/:project/builds/:sha',
       access: { kind: 'ci', permission: 'build.read' },
-      summary: 'One build by commit SHA',
+      summary: 'One build by commit SHA, with every capture and its verdict',
       async handle(ctx) {
-        const project = requireProject(ctx);
         const { sha } = parseWith(ShaParams, ctx.req.params, 'params');
-        const build = await ctx.em.findOne(Build, { project, sha });
-        if (!build) throw new NotFoundError(`There is no build ${sha} in ${project.key}.`);
-        ctx.res.json(await toBuildRow(ctx.em, build, project));
+        ctx.res.json(await buildDetail(ctx.em, requireProject(ctx), sha, links));
       },
     },
   ];

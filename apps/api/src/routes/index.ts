@@ -1,23 +1,37 @@
 import type { RequestHandler } from 'express';
 import type { RouteDef } from '../http/route.js';
-import type { SessionService } from '../services/session.service.js';
+import type { CaptureIngestService } from '../services/capture-ingest.service.js';
+import { CatalogService } from '../services/catalog.service.js';
+import type { Links } from '../services/links.js';
 import { ProjectService } from '../services/project.service.js';
+import type { SessionService } from '../services/session.service.js';
 import { TokenService } from '../services/token.service.js';
 import { adminRoutes } from './admin.routes.js';
 import { authRoutes } from './auth.routes.js';
+import { catalogRoutes } from './catalog.routes.js';
 import { ciBuildRoutes } from './ci-builds.routes.js';
+import { ciCaptureRoutes } from './ci-captures.routes.js';
 import { healthRoutes } from './health.routes.js';
 import { projectRoutes } from './projects.routes.js';
 import { tokenRoutes } from './tokens.routes.js';
 
+export interface RouteDeps {
+  sessions: SessionService;
+  loginLimiter: RequestHandler;
+  ingest: CaptureIngestService;
+  links: Links;
+}
+
 /** Every API route; the app mounts exactly these, and the role test walks them all. */
-export function allRoutes(deps: { sessions: SessionService; loginLimiter: RequestHandler }): RouteDef[] {
+export function allRoutes(deps: RouteDeps): RouteDef[] {
   return [
     ...healthRoutes(),
     ...authRoutes(deps.sessions, deps.loginLimiter),
     ...projectRoutes(new ProjectService()),
     ...tokenRoutes(new TokenService()),
+    ...catalogRoutes(new CatalogService()),
     ...adminRoutes(),
-    ...ciBuildRoutes(),
+    ...ciBuildRoutes(deps.links),
+    ...ciCaptureRoutes(deps.ingest, deps.links),
   ];
 }

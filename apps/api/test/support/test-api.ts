@@ -1,6 +1,11 @@
 import type { AddressInfo } from 'node:net';
 import { Writable } from 'node:stream';
-import { initOrm, seedRoles, TEST_PASSWORD, type RoleFixture } from '@earmark/db';
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { ObjectStore, initOrm, seedRoles, startBoss, TEST_PASSWORD, type RoleFixture } from '@earmark/db';
+import { startS3Fake, type S3Fake } from '@earmark/infra/fakes';
+import type PgBoss from 'pg-boss';
 import { createTestDatabase } from '@earmark/db/testing';
 import type { MikroORM } from '@mikro-orm/postgresql';
 import type { Express } from 'express';
@@ -16,6 +21,10 @@ export interface TestApi {
   env: ApiEnv;
   fixture: RoleFixture;
   routes: RouteDef[];
+  objectStore: ObjectStore;
+  boss: PgBoss;
+  /** The S3 fake; tests stop and restart it to simulate an outage. */
+  s3: { fake: S3Fake; directory: string; stop(): Promise<void>; restart(): Promise<void> };
   /** Every log line the app wrote, for checks that secrets stay out of logs. */
   logLines: string[];
   request(method: string, path: string, opts?: { token?: string; body?: unknown; rawBody?: string; headers?: Record<string, string> }): Promise<TestResponse>;
@@ -37,8 +46,12 @@ export async function startTestApi(envOverrides: Record<string, string> = {}): P
   const db = await createTestDatabase();
   const orm = await initOrm({ url: db.url, poolMax: 5 });
   const fixture = await seedRoles(orm.em.fork());
+  const s3Dir = fs.mkdtempSync(path.join(os.tmpdir(), 'earmark-s3-'));
+  let fake = await startS3Fake({ port: 0, directory: s3Dir, bucket: 'earmark-captures' });
+  const s3Port = Number(new URL(fake.endpoint).port);
   const env = loadApiEnv({
     EARMARK_DATABASE_URL: db.url,
+    EARMARK_S3_ENDPOINT: fake.endpoint,
     EARMARK_JWT_SECRET: TEST_JWT_SECRET,
     EARMARK_WEB_DIST: '/nonexistent',
     EARMARK_LOGIN_RATE_LIMIT: '1000',
@@ -47,7 +60,10 @@ export async function startTestApi(envOverrides: Record<string, string> = {}): P
   const logLines: string[] = [];
   const sink = new Writable({ write(chunk, _enc, cb) { logLines.push(String(chunk)); cb(); } });
   const logger = pino({ level: 'info' }, sink);
-  const { app, routes } = createApp({ orm, env, logger });
+  const objectStore = new ObjectStore({ endpoint: fake.endpoint, bucket: env.EARMARK_S3_BUCKET, accessKeyId: 'S3RVER', secretAccessKey: 'S3RVER' });
+  await objectStore.ensureBucket();
+  const boss = await startBoss(db.url, logger);
+  const { app, routes } = createApp({ orm, env, logger, objectStore, boss });
   const server = app.listen(0, '127.0.0.1');
   await new Promise<void>((resolve) => server.once('listening', resolve));
   const baseUrl = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
@@ -69,6 +85,18 @@ export async function startTestApi(envOverrides: Record<string, string> = {}): P
     baseUrl,
     app,
     orm,
+    objectStore,
+    boss,
+    s3: {
+      get fake() {
+        return fake;
+      },
+      directory: s3Dir,
+      stop: () => fake.close(),
+      async restart() {
+        fake = await startS3Fake({ port: s3Port, directory: s3Dir, bucket: 'earmark-captures' });
+      },
+    },
     env,
     fixture,
     routes,
@@ -81,6 +109,10 @@ export async function startTestApi(envOverrides: Record<string, string> = {}): P
     },
     async close() {
       await new Promise<void>((resolve) => server.close(() => resolve()));
+      await boss.stop({ graceful: false, wait: true });
+      objectStore.destroy();
+      await fake.close().catch(() => {});
+      fs.rmSync(s3Dir, { recursive: true, force: true });
       await orm.close();
       await db.drop();
     },

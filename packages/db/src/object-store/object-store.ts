@@ -4,6 +4,7 @@ import {
   DeleteObjectCommand,
   GetObjectCommand,
   HeadBucketCommand,
+  ListObjectsV2Command,
   PutObjectCommand,
   S3Client,
   S3ServiceException,
@@ -63,6 +64,14 @@ export class ObjectStore {
       const chunks: Buffer[] = [];
       for await (const chunk of res.Body as Readable) chunks.push(Buffer.from(chunk as Uint8Array));
       return Buffer.concat(chunks);
+    });
+  }
+
+  /** Keys under a prefix (first 1000; for tests and maintenance). */
+  async list(prefix = ''): Promise<string[]> {
+    return this.wrap(async () => {
+      const res = await this.client.send(new ListObjectsV2Command({ Bucket: this.config.bucket, Prefix: prefix }));
+      return (res.Contents ?? []).map((o) => o.Key ?? '').filter(Boolean);
     });
   }
 

@@ -1,0 +1,116 @@
+import { CreateTargetRequest, CreateTestCaseRequest, StimulusSpec, TargetKey, TestCaseKey, UpdateTargetRequest, UpdateTestCaseRequest } from '@earmark/contracts';
+import { encodeWav, generateStimulus } from '@earmark/dsp';
+import { z } from 'zod';
+import { parseWith } from '../http/validate.js';
+import { requireProject, type RouteContext, type RouteDef } from '../http/route.js';
+import { toTargetDto, toTestCaseDto, type CatalogService } from '../services/catalog.service.js';
+
+const TargetParams = z.object({ targetKey: TargetKey });
+const CaseParams = z.object({ caseKey: TestCaseKey });
+
+export const LOUDNESS_CAUTION =
+  'Test signals can be loud: playing them through loudspeakers or headphones can damage hearing and drivers. Start at a low level.';
+
+async function sendStimulus(ctx: RouteContext, catalog: CatalogService): Promise<void> {
+  const { caseKey } = parseWith(CaseParams, ctx.req.params, 'params');
+  const testCase = await catalog.getTestCase(ctx.em, requireProject(ctx), caseKey);
+  const spec = StimulusSpec.parse(testCase.stimulus);
+  const { sampleRate, channels } = generateStimulus(spec);
+  // 32-bit float: what the rig plays matches the generated signal to about −150 dB, far below any mask.
+  const wav = encodeWav(channels, sampleRate, { encoding: 'float', bitsPerSample: 32 });
+  ctx.res
+    .status(200)
+    .type('audio/wav')
+    .setHeader('Content-Disposition', `attachment; filename="${testCase.key}.wav"`)
+    .setHeader('X-Earmark-Caution', LOUDNESS_CAUTION)
+    .send(Buffer.from(wav.buffer, wav.byteOffset, wav.byteLength));
+}
+
+export function catalogRoutes(catalog: CatalogService): RouteDef[] {
+  return [
+    {
+      method: 'get',
+      path: '/api/projects/:project/targets',
+      access: { kind: 'project', permission: 'project.read' },
+      summary: 'Targets (hardware or configuration variants) of a project',
+      async handle(ctx) {
+        ctx.res.json({ items: (await catalog.listTargets(ctx.em, requireProject(ctx))).map(toTargetDto) });
+      },
+    },
+    {
+      method: 'post',
+      path: '/api/projects/:project/targets',
+      access: { kind: 'project', permission: 'project.configure' },
+      summary: 'Add a target',
+      async handle(ctx) {
+        const body = parseWith(CreateTargetRequest, ctx.req.body, 'body');
+        ctx.res.status(201).json(toTargetDto(await catalog.createTarget(ctx.em, requireProject(ctx), body, ctx.principal!)));
+      },
+    },
+    {
+      method: 'patch',
+      path: '/api/projects/:project/targets/:targetKey',
+      access: { kind: 'project', permission: 'project.configure' },
+      summary: "Change a target's name, description or sample rate",
+      async handle(ctx) {
+        const { targetKey } = parseWith(TargetParams, ctx.req.params, 'params');
+        const body = parseWith(UpdateTargetRequest, ctx.req.body, 'body');
+        ctx.res.json(toTargetDto(await catalog.updateTarget(ctx.em, requireProject(ctx), targetKey, body, ctx.principal!)));
+      },
+    },
+    {
+      method: 'get',
+      path: '/api/projects/:project/test-cases',
+      access: { kind: 'project', permission: 'project.read' },
+      summary: 'Test cases of a project with their stimulus specs and analysis settings',
+      async handle(ctx) {
+        ctx.res.json({ items: (await catalog.listTestCases(ctx.em, requireProject(ctx))).map(toTestCaseDto) });
+      },
+    },
+    {
+      method: 'post',
+      path: '/api/projects/:project/test-cases',
+      access: { kind: 'project', permission: 'project.configure' },
+      summary: 'Add a test case',
+      async handle(ctx) {
+        const body = parseWith(CreateTestCaseRequest, ctx.req.body, 'body');
+        ctx.res.status(201).json(toTestCaseDto(await catalog.createTestCase(ctx.em, requireProject(ctx), body, ctx.principal!)));
+      },
+    },
+    {
+      method: 'get',
+      path: '/api/projects/:project/test-cases/:caseKey',
+      access: { kind: 'project', permission: 'project.read' },
+      summary: 'One test case',
+      async handle(ctx) {
+        const { caseKey } = parseWith(CaseParams, ctx.req.params, 'params');
+        ctx.res.json(toTestCaseDto(await catalog.getTestCase(ctx.em, requireProject(ctx), caseKey)));
+      },
+    },
+    {
+      method: 'patch',
+      path: '/api/projects/:project/test-cases/:caseKey',
+      access: { kind: 'project', permission: 'project.configure' },
+      summary: 'Change a test case (the stimulus only while it has no captures)',
+      async handle(ctx) {
+        const { caseKey } = parseWith(CaseParams, ctx.req.params, 'params');
+        const body = parseWith(UpdateTestCaseRequest, ctx.req.body, 'body');
+        ctx.res.json(toTestCaseDto(await catalog.updateTestCase(ctx.em, requireProject(ctx), caseKey, body, ctx.principal!)));
+      },
+    },
+    {
+      method: 'get',
+      path: '/api/projects/:project/test-cases/:caseKey/stimulus.wav',
+      access: { kind: 'project', permission: 'project.read' },
+      summary: 'The exact stimulus a rig must play, as 32-bit float WAV (loud: see the caution header)',
+      handle: (ctx) => sendStimulus(ctx, catalog),
+    },
+    {
+      method: 'get',
+      path: '/api/v1/projects/:project/test-cases/:caseKey/stimulus.wav',
+      access: { kind: 'ci', permission: 'build.read' },
+      summary: 'The stimulus for rigs and pipelines (CI token)',
+      handle: (ctx) => sendStimulus(ctx, catalog),
+    },
+  ];
+}

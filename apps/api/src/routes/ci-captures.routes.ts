@@ -1,0 +1,59 @@
+import { CommitSha } from '@earmark/contracts';
+import { Capture } from '@earmark/db';
+import { z } from 'zod';
+import { NotFoundError } from '../errors.js';
+import { parseWith } from '../http/validate.js';
+import { requireProject, type RouteDef } from '../http/route.js';
+import { buildDetail } from '../services/build-detail.service.js';
+import { presentCaptures } from '../services/capture-presenter.js';
+import type { CaptureIngestService } from '../services/capture-ingest.service.js';
+import { renderJunit } from '../services/junit-report.js';
+import type { Links } from '../services/links.js';
+
+const ShaParams = z.object({ sha: CommitSha });
+const CaptureParams = z.object({ id: z.uuid('a capture id (UUID)') });
+
+export function ciCaptureRoutes(ingest: CaptureIngestService, links: Links): RouteDef[] {
+  return [
+    {
+      method: 'post',
+      path: '/api/v1/projects/:project/builds/:sha/captures',
+      access: { kind: 'ci', permission: 'build.submit' },
+      summary: 'Upload a capture (WAV, raw float32 or multipart); answers 202 and queues the analysis',
+      async handle(ctx) {
+        const { sha } = parseWith(ShaParams, ctx.req.params, 'params');
+        const result = await ingest.ingest(ctx.em, requireProject(ctx), sha, ctx.req, ctx.principal!);
+        ctx.res.status(result.created ? 202 : 200).setHeader('Location', result.capture.links.self).json(result.capture);
+      },
+    },
+    {
+      method: 'get',
+      path: '/api/v1/captures/:id',
+      access: { kind: 'ci', permission: 'build.read' },
+      summary: 'A capture with its status and verdict (poll until the verdict is there)',
+      async resolveProjectKey(req, em) {
+        const { id } = parseWith(CaptureParams, req.params, 'params');
+        const capture = await em.findOne(Capture, { id }, { populate: ['project'] });
+        if (!capture) throw new NotFoundError(`There is no capture ${id}.`);
+        return capture.project.key;
+      },
+      async handle(ctx) {
+        const { id } = parseWith(CaptureParams, ctx.req.params, 'params');
+        const capture = await ctx.em.findOneOrFail(Capture, { id }, { populate: ['project', 'build', 'testCase', 'target'] });
+        const [dto] = await presentCaptures(ctx.em, [capture], links);
+        ctx.res.json(dto);
+      },
+    },
+    {
+      method: 'get',
+      path: '/api/v1/projects/:project/builds/:sha/junit.xml',
+      access: { kind: 'ci', permission: 'build.read' },
+      summary: 'JUnit XML of a build: one testsuite per target, one testcase per test case × check',
+      async handle(ctx) {
+        const { sha } = parseWith(ShaParams, ctx.req.params, 'params');
+        const detail = await buildDetail(ctx.em, requireProject(ctx), sha, links);
+        ctx.res.type('application/xml').send(renderJunit(detail));
+      },
+    },
+  ];
+}

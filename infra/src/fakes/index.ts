@@ -1,0 +1,2 @@
+export * from './s3-fake.js';
+export * from './smtp-fake.js';
