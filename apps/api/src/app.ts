@@ -13,6 +13,7 @@ import type { ApiEnv } from './env.js';
 import { mountRoutes } from './http/mount-routes.js';
 import { errorHandler, notFoundHandler, sendProblem } from './http/problem.js';
 import type { RouteDef } from './http/route.js';
+import { docsRoutes } from './routes/docs.routes.js';
 import { allRoutes } from './routes/index.js';
 import { CaptureIngestService } from './services/capture-ingest.service.js';
 import { createLinks } from './services/links.js';
@@ -81,7 +82,8 @@ export function createApp({ orm, env, logger, objectStore, boss }: AppDeps): Ear
   const signer = createTokenSigner(env.EARMARK_JWT_SECRET, { access: env.EARMARK_ACCESS_TOKEN_TTL_S, refresh: env.EARMARK_REFRESH_TOKEN_TTL_S });
   const links = createLinks(env.EARMARK_PUBLIC_URL);
   const ingest = new CaptureIngestService({ objectStore, boss, links, logger, maxCaptureBytes: env.EARMARK_MAX_CAPTURE_BYTES });
-  const routes = allRoutes({ sessions: new SessionService(signer), loginLimiter: loginLimiter(env), ingest, links });
+  const routes: RouteDef[] = allRoutes({ sessions: new SessionService(signer), loginLimiter: loginLimiter(env), ingest, links });
+  routes.push(...docsRoutes(() => routes, env.EARMARK_PUBLIC_URL));
   const api = express.Router();
   mountRoutes(api, routes, orm, signer);
   app.use(api);

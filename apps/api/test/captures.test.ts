@@ -94,7 +94,7 @@ describe('uploading a capture', () => {
 
   it('creates the build on the first capture and shows it with its captures', async () => {
     const res = await fetch(`${api.baseUrl}/api/v1/projects/alpha-dsp/builds/${SHA}`, { headers: { authorization: `Bearer ${token}` } });
-    const build = await res.json();
+    const build: any = await res.json();
     expect(res.status).toBe(200);
     expect(build.status).toBe('pending');
     expect(build.captures.length).toBeGreaterThanOrEqual(3);

@@ -21,6 +21,8 @@ const CI_SUBMITTERS: Caller[] = [...CONFIGURERS, 'token:full', 'token:submit'];
 
 const MATRIX: Record<string, Caller[] | typeof PUBLIC> = {
   'GET /api/health': PUBLIC,
+  'GET /api/v1/openapi.json': PUBLIC,
+  'GET /api/docs': PUBLIC,
   'POST /api/auth/login': PUBLIC,
   'POST /api/auth/refresh': PUBLIC,
   'POST /api/auth/logout': SIGNED_IN,
@@ -46,6 +48,9 @@ const MATRIX: Record<string, Caller[] | typeof PUBLIC> = {
   'PATCH /api/projects/:project/test-cases/:caseKey': CONFIGURERS,
   'GET /api/projects/:project/test-cases/:caseKey/stimulus.wav': PROJECT_READERS,
   'GET /api/v1/projects/:project/test-cases/:caseKey/stimulus.wav': CI_READERS,
+  'GET /api/projects/:project/test-cases/:caseKey/masks': PROJECT_READERS,
+  'POST /api/projects/:project/test-cases/:caseKey/masks': CONFIGURERS,
+  'POST /api/projects/:project/test-cases/:caseKey/masks/:revision/approve': ['qa_manager', 'admin'],
   'POST /api/v1/projects/:project/builds': CI_SUBMITTERS,
   'GET /api/v1/projects/:project/builds': CI_READERS,
   'GET /api/v1/projects/:project/builds/:sha': CI_READERS,
@@ -92,6 +97,7 @@ function concretePath(path: string): string {
     .replace(':sha', 'deadbeefcafe')
     .replace(':targetKey', 'no-such-target')
     .replace(':caseKey', 'no.such.case')
+    .replace(':revision', '1')
     .replace(':id', captureId);
 }
 

@@ -4,6 +4,24 @@ const Env = z.object({
   EARMARK_DATABASE_URL: z.string().startsWith('postgres'),
   EARMARK_WORKER_CONCURRENCY: z.coerce.number().int().min(1).max(16).default(2),
   EARMARK_LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
+  EARMARK_S3_ENDPOINT: z.url().default('http://127.0.0.1:4312'),
+  EARMARK_S3_BUCKET: z.string().min(3).default('earmark-captures'),
+  EARMARK_S3_ACCESS_KEY: z.string().default('S3RVER'),
+  EARMARK_S3_SECRET_KEY: z.string().default('S3RVER'),
+  EARMARK_SMTP_HOST: z.string().default('127.0.0.1'),
+  EARMARK_SMTP_PORT: z.coerce.number().int().min(1).max(65535).default(4325),
+  EARMARK_MAIL_FROM: z.string().default('Earmark <earmark@localhost>'),
+  EARMARK_PUBLIC_URL: z.url().default('http://127.0.0.1:4310'),
+  /** How often the worker re-queues captures and mail that fell through the cracks. */
+  EARMARK_SWEEP_INTERVAL_S: z.coerce.number().min(0.2).default(30),
+  /** Attempts at one capture before it is judged `error` (crashes, timeouts, storage outages). */
+  EARMARK_ANALYSIS_MAX_ATTEMPTS: z.coerce.number().int().min(1).max(20).default(4),
+  /** Seconds an analysis may run before it is failed and retried (how soon a killed worker's job comes back). */
+  EARMARK_ANALYSIS_EXPIRE_S: z.coerce.number().int().min(1).default(300),
+  EARMARK_JOB_RETRY_DELAY_S: z.coerce.number().int().min(1).default(5),
+  EARMARK_JOB_MAINTENANCE_S: z.coerce.number().int().min(1).default(60),
+  /** Fault injection for recovery tests only: hold each analysis this long after it starts. */
+  EARMARK_ANALYSIS_DELAY_MS: z.coerce.number().int().min(0).default(0),
 });
 export type WorkerEnv = z.infer<typeof Env>;
 

@@ -1,8 +1,10 @@
 import path from 'node:path';
 import { DEMO_PASSWORD, demoUsers } from '@earmark/db';
 import { startDevDatabase } from '../dev-database.js';
+import { startS3Fake } from '../fakes/s3-fake.js';
+import { startSmtpFake } from '../fakes/smtp-fake.js';
 import { seedDemoScenario } from '../demo.js';
-import { repoRoot } from '../paths.js';
+import { dataDir, repoRoot } from '../paths.js';
 import { assertPortFree, waitForPort } from '../ports.js';
 import { loadLocalSecrets } from '../secrets.js';
 import { loadSettings } from '../settings.js';
@@ -18,7 +20,12 @@ const log = (line: string) => console.log(`earmark: ${line}`);
 export async function startCommand(): Promise<number> {
   const settings = loadSettings();
   await assertPortFree(settings.EARMARK_API_PORT, 'the API', 'EARMARK_API_PORT');
+  await assertPortFree(settings.EARMARK_S3_PORT, 'the S3 fake', 'EARMARK_S3_PORT');
+  await assertPortFree(settings.EARMARK_SMTP_PORT, 'the SMTP fake', 'EARMARK_SMTP_PORT');
+  await assertPortFree(settings.EARMARK_INBOX_PORT, 'the mail inbox', 'EARMARK_INBOX_PORT');
   const { cluster, url } = await startDevDatabase(settings, log);
+  const s3 = await startS3Fake({ port: settings.EARMARK_S3_PORT, directory: path.join(dataDir, 's3'), bucket: 'earmark-captures' });
+  const smtp = await startSmtpFake({ smtpPort: settings.EARMARK_SMTP_PORT, webPort: settings.EARMARK_INBOX_PORT });
   const demoToken = await seedDemoScenario(url);
   ensureWebBuilt(log);
 
@@ -35,6 +42,8 @@ export async function startCommand(): Promise<number> {
     (shuttingDown ??= (async () => {
       log('stopping…');
       await supervisor.stopAll();
+      await s3.close().catch(() => {});
+      await smtp.close().catch(() => {});
       cluster.stop();
       log('stopped.');
       markDone();
@@ -48,6 +57,12 @@ export async function startCommand(): Promise<number> {
     EARMARK_WEB_DIST: webDist,
     EARMARK_LOG_LEVEL: settings.EARMARK_LOG_LEVEL,
     EARMARK_WORKER_CONCURRENCY: String(settings.EARMARK_WORKER_CONCURRENCY),
+    EARMARK_S3_ENDPOINT: s3.endpoint,
+    EARMARK_S3_BUCKET: 'earmark-captures',
+    EARMARK_SMTP_HOST: '127.0.0.1',
+    EARMARK_SMTP_PORT: String(smtp.smtpPort),
+    EARMARK_PUBLIC_URL: `http://127.0.0.1:${settings.EARMARK_API_PORT}`,
+    AWS_SDK_JS_NODE_VERSION_SUPPORT_WARNING_DISABLED: 'true',
   };
   supervisor.start('api', ['--import', 'tsx', 'src/server.ts'], { cwd: path.join(repoRoot, 'apps', 'api'), env });
   supervisor.start('worker', ['--import', 'tsx', 'src/worker.ts'], { cwd: path.join(repoRoot, 'apps', 'worker'), env });
@@ -59,16 +74,19 @@ export async function startCommand(): Promise<number> {
     await shutdown();
     throw error;
   }
-  if (!shuttingDown) printWelcome(settings.EARMARK_API_PORT, cluster.port, demoToken);
+  if (!shuttingDown) printWelcome(settings.EARMARK_API_PORT, cluster.port, demoToken, smtp.inboxUrl, s3.endpoint);
   await done;
   return exitCode;
 }
 
-function printWelcome(apiPort: number, pgPort: number, demoToken: string | null): void {
+function printWelcome(apiPort: number, pgPort: number, demoToken: string | null, inboxUrl: string, s3Url: string): void {
   const lines = [
     '',
     `  Earmark is running:  http://127.0.0.1:${apiPort}/`,
     `  API:                 http://127.0.0.1:${apiPort}/api   (CI routes under /api/v1)`,
+    `  API reference:       http://127.0.0.1:${apiPort}/api/docs`,
+    `  Mail inbox:          ${inboxUrl}   (the SMTP fake; nothing leaves this machine)`,
+    `  Object store:        ${s3Url}   (S3 fake, objects under .data/s3)`,
     `  PostgreSQL:          127.0.0.1:${pgPort} (private cluster under .data/)`,
     '',
     `  Demo sign-ins (password ${DEMO_PASSWORD}):`,

@@ -9,3 +9,6 @@ export * from './queues.js';
 export * from './analysis.js';
 export * from './captures.js';
 export * from './test-cases.js';
+export * from './masks.js';
+export * from './mask-revisions.js';
+export * from './dashboard.js';

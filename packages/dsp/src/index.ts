@@ -31,3 +31,5 @@ export { summarizeTransfer, type TransferSummary, type TransferSummaryOptions } 
 export { analyzeFrame, residualForListening, synthesizeFrame, type FrameSpectrum, type ResidualOptions } from './synthesis/resynthesis.js';
 // Entry point
 export { analyzeCapture, type AnalyzeCaptureOptions, type AudioBuffers } from './analyze/analyze-capture.js';
+// Tolerance masks
+export * from './masks/index.js';

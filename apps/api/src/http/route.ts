@@ -1,6 +1,7 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type { Project } from '@earmark/db';
 import type { Request, RequestHandler, Response, Router } from 'express';
+import type { z } from 'zod';
 import type { Access } from '../auth/permissions.js';
 import type { Principal } from '../auth/principal.js';
 
@@ -18,6 +19,17 @@ export interface RouteDef {
   path: string;
   access: Access;
   summary: string;
+  /** What the OpenAPI document says about the route's body and answer. */
+  doc?: {
+    body?: z.ZodType;
+    bodyContentTypes?: string[];
+    query?: z.ZodObject;
+    response?: z.ZodType;
+    /** Non-JSON answers, e.g. audio/wav or application/xml. */
+    responseContentType?: string;
+    status?: number;
+    tags?: string[];
+  };
   /** For routes without `:project`: finds the project key from the path (e.g. a capture id). */
   resolveProjectKey?: (req: Request, em: EntityManager) => Promise<string | undefined>;
   /** Runs before authentication (e.g. the sign-in rate limiter). */

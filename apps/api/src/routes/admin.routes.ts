@@ -1,5 +1,5 @@
 import type { AuditEventRow, UserRow } from '@earmark/contracts';
-import { CreateUserRequest } from '@earmark/contracts';
+import { AuditEventRow as AuditEventRowSchema, CreateUserRequest, Page, UserRow as UserRowSchema } from '@earmark/contracts';
 import { AuditEvent, User, hashPassword } from '@earmark/db';
 import { z } from 'zod';
 
@@ -29,6 +29,7 @@ export function adminRoutes(): RouteDef[] {
       path: '/api/admin/users',
       access: { kind: 'admin' },
       summary: 'All users',
+      doc: { response: z.object({ items: z.array(UserRowSchema) }) },
       async handle({ res, em }) {
         const users = await em.find(User, {}, { orderBy: { email: 'asc' } });
         res.json({ items: users.map(toUserRow) });
@@ -39,6 +40,7 @@ export function adminRoutes(): RouteDef[] {
       path: '/api/admin/users',
       access: { kind: 'admin' },
       summary: 'Create a user with a password',
+      doc: { body: CreateUserRequest, response: UserRowSchema, status: 201 },
       async handle(ctx) {
         const body = parseWith(CreateUserRequest, ctx.req.body, 'body');
         const email = body.email.toLowerCase();
@@ -59,6 +61,7 @@ export function adminRoutes(): RouteDef[] {
       path: '/api/admin/audit',
       access: { kind: 'admin' },
       summary: 'The audit log, newest first, paged',
+      doc: { query: PageQuery, response: Page(AuditEventRowSchema) },
       async handle({ req, res, em }) {
         const { page, pageSize } = parseWith(PageQuery, req.query, 'query');
         const [events, total] = await em.findAndCount(

@@ -1,4 +1,14 @@
-import { CreateTargetRequest, CreateTestCaseRequest, StimulusSpec, TargetKey, TestCaseKey, UpdateTargetRequest, UpdateTestCaseRequest } from '@earmark/contracts';
+import {
+  CreateTargetRequest,
+  CreateTestCaseRequest,
+  StimulusSpec,
+  TargetDto,
+  TargetKey,
+  TestCaseDto,
+  TestCaseKey,
+  UpdateTargetRequest,
+  UpdateTestCaseRequest,
+} from '@earmark/contracts';
 import { encodeWav, generateStimulus } from '@earmark/dsp';
 import { z } from 'zod';
 import { parseWith } from '../http/validate.js';
@@ -33,6 +43,7 @@ export function catalogRoutes(catalog: CatalogService): RouteDef[] {
       path: '/api/projects/:project/targets',
       access: { kind: 'project', permission: 'project.read' },
       summary: 'Targets (hardware or configuration variants) of a project',
+      doc: { response: z.object({ items: z.array(TargetDto) }) },
       async handle(ctx) {
         ctx.res.json({ items: (await catalog.listTargets(ctx.em, requireProject(ctx))).map(toTargetDto) });
       },
@@ -42,6 +53,7 @@ export function catalogRoutes(catalog: CatalogService): RouteDef[] {
       path: '/api/projects/:project/targets',
       access: { kind: 'project', permission: 'project.configure' },
       summary: 'Add a target',
+      doc: { body: CreateTargetRequest, response: TargetDto, status: 201 },
       async handle(ctx) {
         const body = parseWith(CreateTargetRequest, ctx.req.body, 'body');
         ctx.res.status(201).json(toTargetDto(await catalog.createTarget(ctx.em, requireProject(ctx), body, ctx.principal!)));
@@ -52,6 +64,7 @@ export function catalogRoutes(catalog: CatalogService): RouteDef[] {
       path: '/api/projects/:project/targets/:targetKey',
       access: { kind: 'project', permission: 'project.configure' },
       summary: "Change a target's name, description or sample rate",
+      doc: { body: UpdateTargetRequest, response: TargetDto },
       async handle(ctx) {
         const { targetKey } = parseWith(TargetParams, ctx.req.params, 'params');
         const body = parseWith(UpdateTargetRequest, ctx.req.body, 'body');
@@ -63,6 +76,7 @@ export function catalogRoutes(catalog: CatalogService): RouteDef[] {
       path: '/api/projects/:project/test-cases',
       access: { kind: 'project', permission: 'project.read' },
       summary: 'Test cases of a project with their stimulus specs and analysis settings',
+      doc: { response: z.object({ items: z.array(TestCaseDto) }) },
       async handle(ctx) {
         ctx.res.json({ items: (await catalog.listTestCases(ctx.em, requireProject(ctx))).map(toTestCaseDto) });
       },
@@ -72,6 +86,7 @@ export function catalogRoutes(catalog: CatalogService): RouteDef[] {
       path: '/api/projects/:project/test-cases',
       access: { kind: 'project', permission: 'project.configure' },
       summary: 'Add a test case',
+      doc: { body: CreateTestCaseRequest, response: TestCaseDto, status: 201 },
       async handle(ctx) {
         const body = parseWith(CreateTestCaseRequest, ctx.req.body, 'body');
         ctx.res.status(201).json(toTestCaseDto(await catalog.createTestCase(ctx.em, requireProject(ctx), body, ctx.principal!)));
@@ -82,6 +97,7 @@ export function catalogRoutes(catalog: CatalogService): RouteDef[] {
       path: '/api/projects/:project/test-cases/:caseKey',
       access: { kind: 'project', permission: 'project.read' },
       summary: 'One test case',
+      doc: { response: TestCaseDto },
       async handle(ctx) {
         const { caseKey } = parseWith(CaseParams, ctx.req.params, 'params');
         ctx.res.json(toTestCaseDto(await catalog.getTestCase(ctx.em, requireProject(ctx), caseKey)));
@@ -92,6 +108,7 @@ export function catalogRoutes(catalog: CatalogService): RouteDef[] {
       path: '/api/projects/:project/test-cases/:caseKey',
       access: { kind: 'project', permission: 'project.configure' },
       summary: 'Change a test case (the stimulus only while it has no captures)',
+      doc: { body: UpdateTestCaseRequest, response: TestCaseDto },
       async handle(ctx) {
         const { caseKey } = parseWith(CaseParams, ctx.req.params, 'params');
         const body = parseWith(UpdateTestCaseRequest, ctx.req.body, 'body');
@@ -103,6 +120,7 @@ export function catalogRoutes(catalog: CatalogService): RouteDef[] {
       path: '/api/projects/:project/test-cases/:caseKey/stimulus.wav',
       access: { kind: 'project', permission: 'project.read' },
       summary: 'The exact stimulus a rig must play, as 32-bit float WAV (loud: see the caution header)',
+      doc: { responseContentType: 'audio/wav' },
       handle: (ctx) => sendStimulus(ctx, catalog),
     },
     {
@@ -110,6 +128,7 @@ export function catalogRoutes(catalog: CatalogService): RouteDef[] {
       path: '/api/v1/projects/:project/test-cases/:caseKey/stimulus.wav',
       access: { kind: 'ci', permission: 'build.read' },
       summary: 'The stimulus for rigs and pipelines (CI token)',
+      doc: { responseContentType: 'audio/wav' },
       handle: (ctx) => sendStimulus(ctx, catalog),
     },
   ];

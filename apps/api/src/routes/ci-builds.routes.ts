@@ -1,5 +1,4 @@
-import type { BuildRow } from '@earmark/contracts';
-import { CommitSha, UpsertBuildRequest } from '@earmark/contracts';
+import { BuildDetail, BuildRow, CommitSha, UpsertBuildRequest } from '@earmark/contracts';
 import { Build, Capture, type Project } from '@earmark/db';
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { z } from 'zod';
@@ -38,6 +37,7 @@ export function ciBuildRoutes(links: Links): RouteDef[] {
       path: '/api/v1/projects/:project/builds',
       access: { kind: 'ci', permission: 'build.submit' },
       summary: 'Create a build, or update its label/branch/pipeline URL (upsert by commit SHA)',
+      doc: { body: UpsertBuildRequest, response: BuildRow, status: 201 },
       async handle(ctx) {
         const project = requireProject(ctx);
         const body = parseWith(UpsertBuildRequest, ctx.req.body, 'body');
@@ -68,6 +68,7 @@ export function ciBuildRoutes(links: Links): RouteDef[] {
       path: '/api/v1/projects/:project/builds',
       access: { kind: 'ci', permission: 'build.read' },
       summary: 'Builds of a project, newest first, paged; `sha` filters by prefix',
+      doc: { query: BuildListQuery, response: z.object({ items: z.array(BuildRow), total: z.number(), page: z.number(), pageSize: z.number() }) },
       async handle(ctx) {
         const project = requireProject(ctx);
         const q = parseWith(BuildListQuery, ctx.req.query, 'query');
@@ -86,6 +87,7 @@ export function ciBuildRoutes(links: Links): RouteDef[] {
       path: '/api/v1/projects/:project/builds/:sha',
       access: { kind: 'ci', permission: 'build.read' },
       summary: 'One build by commit SHA, with every capture and its verdict',
+      doc: { response: BuildDetail },
       async handle(ctx) {
         const { sha } = parseWith(ShaParams, ctx.req.params, 'params');
         ctx.res.json(await buildDetail(ctx.em, requireProject(ctx), sha, links));

@@ -1,4 +1,4 @@
-import { CommitSha } from '@earmark/contracts';
+import { CaptureDto, CommitSha, RAW_FLOAT32_MEDIA_TYPE } from '@earmark/contracts';
 import { Capture } from '@earmark/db';
 import { z } from 'zod';
 import { NotFoundError } from '../errors.js';
@@ -20,6 +20,7 @@ export function ciCaptureRoutes(ingest: CaptureIngestService, links: Links): Rou
       path: '/api/v1/projects/:project/builds/:sha/captures',
       access: { kind: 'ci', permission: 'build.submit' },
       summary: 'Upload a capture (WAV, raw float32 or multipart); answers 202 and queues the analysis',
+      doc: { bodyContentTypes: ['audio/wav', RAW_FLOAT32_MEDIA_TYPE, 'multipart/form-data'], query: z.object({ testCase: z.string(), target: z.string().optional() }), response: CaptureDto, status: 202 },
       async handle(ctx) {
         const { sha } = parseWith(ShaParams, ctx.req.params, 'params');
         const result = await ingest.ingest(ctx.em, requireProject(ctx), sha, ctx.req, ctx.principal!);
@@ -31,6 +32,7 @@ export function ciCaptureRoutes(ingest: CaptureIngestService, links: Links): Rou
       path: '/api/v1/captures/:id',
       access: { kind: 'ci', permission: 'build.read' },
       summary: 'A capture with its status and verdict (poll until the verdict is there)',
+      doc: { response: CaptureDto },
       async resolveProjectKey(req, em) {
         const { id } = parseWith(CaptureParams, req.params, 'params');
         const capture = await em.findOne(Capture, { id }, { populate: ['project'] });
@@ -49,6 +51,7 @@ export function ciCaptureRoutes(ingest: CaptureIngestService, links: Links): Rou
       path: '/api/v1/projects/:project/builds/:sha/junit.xml',
       access: { kind: 'ci', permission: 'build.read' },
       summary: 'JUnit XML of a build: one testsuite per target, one testcase per test case × check',
+      doc: { responseContentType: 'application/xml' },
       async handle(ctx) {
         const { sha } = parseWith(ShaParams, ctx.req.params, 'params');
         const detail = await buildDetail(ctx.em, requireProject(ctx), sha, links);

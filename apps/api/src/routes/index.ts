@@ -3,6 +3,7 @@ import type { RouteDef } from '../http/route.js';
 import type { CaptureIngestService } from '../services/capture-ingest.service.js';
 import { CatalogService } from '../services/catalog.service.js';
 import type { Links } from '../services/links.js';
+import { MaskService } from '../services/mask.service.js';
 import { ProjectService } from '../services/project.service.js';
 import type { SessionService } from '../services/session.service.js';
 import { TokenService } from '../services/token.service.js';
@@ -12,6 +13,7 @@ import { catalogRoutes } from './catalog.routes.js';
 import { ciBuildRoutes } from './ci-builds.routes.js';
 import { ciCaptureRoutes } from './ci-captures.routes.js';
 import { healthRoutes } from './health.routes.js';
+import { maskRoutes } from './masks.routes.js';
 import { projectRoutes } from './projects.routes.js';
 import { tokenRoutes } from './tokens.routes.js';
 
@@ -24,12 +26,14 @@ export interface RouteDeps {
 
 /** Every API route; the app mounts exactly these, and the role test walks them all. */
 export function allRoutes(deps: RouteDeps): RouteDef[] {
+  const catalog = new CatalogService();
   return [
     ...healthRoutes(),
     ...authRoutes(deps.sessions, deps.loginLimiter),
     ...projectRoutes(new ProjectService()),
     ...tokenRoutes(new TokenService()),
-    ...catalogRoutes(new CatalogService()),
+    ...catalogRoutes(catalog),
+    ...maskRoutes(new MaskService(), catalog),
     ...adminRoutes(),
     ...ciBuildRoutes(deps.links),
     ...ciCaptureRoutes(deps.ingest, deps.links),

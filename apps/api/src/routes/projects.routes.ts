@@ -1,4 +1,4 @@
-import { CreateProjectRequest, SetMembershipRequest } from '@earmark/contracts';
+import { CreateProjectRequest, MemberRow, Project, SetMembershipRequest } from '@earmark/contracts';
 import { z } from 'zod';
 import { parseWith } from '../http/validate.js';
 import { requireProject, requireUser, type RouteDef } from '../http/route.js';
@@ -13,6 +13,7 @@ export function projectRoutes(projects: ProjectService): RouteDef[] {
       path: '/api/projects',
       access: { kind: 'user' },
       summary: 'Projects the caller can see',
+      doc: { response: z.object({ items: z.array(Project) }) },
       async handle(ctx) {
         ctx.res.json({ items: await projects.listFor(ctx.em, requireUser(ctx)) });
       },
@@ -22,6 +23,7 @@ export function projectRoutes(projects: ProjectService): RouteDef[] {
       path: '/api/projects',
       access: { kind: 'admin' },
       summary: 'Create a project',
+      doc: { body: CreateProjectRequest, response: Project, status: 201 },
       async handle(ctx) {
         const body = parseWith(CreateProjectRequest, ctx.req.body, 'body');
         ctx.res.status(201).json(await projects.create(ctx.em, body, requireUser(ctx)));
@@ -32,6 +34,7 @@ export function projectRoutes(projects: ProjectService): RouteDef[] {
       path: '/api/projects/:project',
       access: { kind: 'project', permission: 'project.read' },
       summary: 'One project with counts',
+      doc: { response: Project },
       async handle(ctx) {
         ctx.res.json(await projects.describe(ctx.em, requireProject(ctx), requireUser(ctx)));
       },
@@ -41,6 +44,7 @@ export function projectRoutes(projects: ProjectService): RouteDef[] {
       path: '/api/projects/:project/members',
       access: { kind: 'project', permission: 'project.read' },
       summary: 'Members of a project and their roles',
+      doc: { response: z.object({ items: z.array(MemberRow) }) },
       async handle(ctx) {
         ctx.res.json({ items: await projects.members(ctx.em, requireProject(ctx)) });
       },
@@ -50,6 +54,7 @@ export function projectRoutes(projects: ProjectService): RouteDef[] {
       path: '/api/projects/:project/members',
       access: { kind: 'project', permission: 'project.administer' },
       summary: "Add a user to a project or change their role",
+      doc: { body: SetMembershipRequest, response: MemberRow },
       async handle(ctx) {
         const body = parseWith(SetMembershipRequest, ctx.req.body, 'body');
         ctx.res.json(await projects.setMember(ctx.em, requireProject(ctx), body.email, body.role, requireUser(ctx)));

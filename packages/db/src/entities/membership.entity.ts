@@ -5,10 +5,12 @@ import { Project } from './project.entity.js';
 import { User } from './user.entity.js';
 
 /** A user's role in one project. */
-export class Membership extends BaseEntity {
+export class Membership extends BaseEntity<'subscribed'> {
   user!: User;
   project!: Project;
   role!: ProjectRole;
+  /** E-mail me when a build of this project turns failed. */
+  subscribed = false;
 }
 
 export const MembershipSchema = new EntitySchema<Membership, BaseEntity>({
@@ -18,6 +20,7 @@ export const MembershipSchema = new EntitySchema<Membership, BaseEntity>({
     user: { kind: 'm:1', entity: () => User, deleteRule: 'cascade' },
     project: { kind: 'm:1', entity: () => Project, deleteRule: 'cascade' },
     role: { enum: true, items: () => [...projectRoles], type: 'string' },
+    subscribed: { type: 'boolean', default: false },
   },
   uniques: [{ properties: ['user', 'project'] }],
 });

@@ -1,27 +1,44 @@
 import { QUEUES } from '@earmark/contracts';
 import type PgBoss from 'pg-boss';
 
+export interface QueueSettings {
+  /** Seconds an analysis may run before pg-boss fails it and retries (a killed worker's job). */
+  analyzeExpireSeconds?: number;
+  /** Seconds before the first retry; doubles with each retry. */
+  retryDelaySeconds?: number;
+  /** The worker owns queue settings and updates existing queues; producers only create missing ones. */
+  updateExisting?: boolean;
+}
+
 /**
- * Creates every queue with explicit retry, expiry and dead-letter settings. Run at
- * start-up by every producer and consumer: `send()` to a queue never created returns null.
+ * Creates every queue with explicit retry, expiry and dead-letter settings, and brings an
+ * existing queue's settings up to date. Run at start-up by every producer and consumer:
+ * `send()` to a queue never created returns null.
  */
-export async function createQueues(boss: PgBoss): Promise<void> {
-  await boss.createQueue(`${QUEUES.analyzeCapture}.dead`, { name: `${QUEUES.analyzeCapture}.dead`, policy: 'standard' });
-  await boss.createQueue(QUEUES.analyzeCapture, {
-    name: QUEUES.analyzeCapture,
-    policy: 'standard',
-    retryLimit: 4,
-    retryDelay: 5,
-    retryBackoff: true,
-    expireInSeconds: 300,
-    deadLetter: `${QUEUES.analyzeCapture}.dead`,
-  });
-  await boss.createQueue(QUEUES.sendNotifications, {
-    name: QUEUES.sendNotifications,
-    policy: 'standard',
-    retryLimit: 10,
-    retryDelay: 30,
-    retryBackoff: true,
-    expireInSeconds: 120,
-  });
+export async function createQueues(boss: PgBoss, settings: QueueSettings = {}): Promise<void> {
+  const dead = `${QUEUES.analyzeCapture}.dead`;
+  const queues: PgBoss.Queue[] = [
+    { name: dead, policy: 'standard' },
+    {
+      name: QUEUES.analyzeCapture,
+      policy: 'standard',
+      retryLimit: 4,
+      retryDelay: settings.retryDelaySeconds ?? 5,
+      retryBackoff: true,
+      expireInSeconds: settings.analyzeExpireSeconds ?? 300,
+      deadLetter: dead,
+    },
+    {
+      name: QUEUES.sendNotifications,
+      policy: 'standard',
+      retryLimit: 10,
+      retryDelay: settings.retryDelaySeconds ?? 30,
+      retryBackoff: true,
+      expireInSeconds: 120,
+    },
+  ];
+  for (const queue of queues) {
+    if (!(await boss.getQueue(queue.name))) await boss.createQueue(queue.name, queue);
+    else if (settings.updateExisting) await boss.updateQueue(queue.name, queue);
+  }
 }

@@ -25,16 +25,32 @@ export const demoProjects = [
         key: 'eq.music.sweep',
         name: 'Music EQ preset, exponential sweep',
         stimulus: { kind: 'sweep', sampleRate: 48000, seconds: 4, levelDbfs: -12, from: 20, to: 20000, silenceSeconds: 0.5, fadeInSeconds: 0.02, fadeOutSeconds: 0.02 },
+        mask: [
+          { id: 'response', kind: 'magnitude-envelope', label: 'Music EQ within ±1.5 dB', measure: 'transfer', referenceHz: 1000, smoothing: 6, upper: [{ hz: 50, db: 1.5 }, { hz: 16000, db: 1.5 }], lower: [{ hz: 50, db: -1.5 }, { hz: 16000, db: -1.5 }] },
+          { id: 'level', kind: 'level', metric: 'rms-dbfs', min: -16, max: -10 },
+          { id: 'no-clipping', kind: 'integrity', metric: 'clipped-samples', max: 0 },
+          { id: 'latency', kind: 'timing', metric: 'latency-ms', max: 10 },
+          { id: 'analysis-energy', kind: 'level', metric: 'energy-parseval', max: 1e-9 },
+        ],
       },
       {
         key: 'level.tone.997',
         name: 'Line level, 997 Hz tone at −20 dBFS',
         stimulus: { kind: 'sine', sampleRate: 48000, seconds: 2, levelDbfs: -20, frequency: 997 },
+        mask: [
+          { id: 'level', kind: 'level', metric: 'rms-dbfs', min: -20.5, max: -19.5 },
+          { id: 'thd', kind: 'distortion', metric: 'thd-percent', max: 0.05 },
+          { id: 'thdn', kind: 'distortion', metric: 'thdn-db', max: -70 },
+        ],
       },
       {
         key: 'noise.idle',
         name: 'Idle channel noise',
         stimulus: { kind: 'silence', sampleRate: 48000, seconds: 2 },
+        mask: [
+          { id: 'idle-level', kind: 'level', metric: 'rms-dbfs', max: -96 },
+          { id: 'dc', kind: 'integrity', metric: 'dc-offset', max: 0.0001 },
+        ],
       },
     ],
   },
@@ -48,6 +64,10 @@ export const demoProjects = [
         key: 'xover.multitone',
         name: 'Crossover, Schroeder multitone',
         stimulus: { kind: 'multitone', sampleRate: 48000, seconds: 3, levelDbfs: -18, from: 40, to: 16000, count: 31, seed: 7 },
+        mask: [
+          { id: 'crossover-sum', kind: 'magnitude-envelope', label: 'Summed crossover within ±2 dB', measure: 'transfer', referenceHz: 1000, upper: [{ hz: 60, db: 2 }, { hz: 12000, db: 2 }], lower: [{ hz: 60, db: -2 }, { hz: 12000, db: -2 }] },
+          { id: 'no-clipping', kind: 'integrity', metric: 'clipped-samples', max: 0 },
+        ],
       },
     ],
   },

@@ -1,6 +1,6 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { StimulusSpec } from '@earmark/contracts';
-import { ApiToken, Membership, Project, Target, TestCase, User } from '../entities/index.js';
+import { MaskDocument, StimulusSpec } from '@earmark/contracts';
+import { ApiToken, MaskRevision, Membership, Project, Target, TestCase, User } from '../entities/index.js';
 import { hashPassword } from '../security/passwords.js';
 import { DEMO_PASSWORD, demoProjects, demoUsers } from './demo-scenario.js';
 
@@ -29,9 +29,25 @@ export async function seedDemo(em: EntityManager, ciToken: DemoCiToken): Promise
     for (const p of demoProjects) {
       const project = tx.create(Project, { key: p.key, name: p.name, description: p.description });
       for (const t of p.targets) tx.create(Target, { project, key: t.key, name: t.name, sampleRate: t.sampleRate });
-      for (const c of p.testCases) tx.create(TestCase, { project, key: c.key, name: c.name, stimulus: StimulusSpec.parse(c.stimulus), channelMap: [] });
+      const engineer = users[demoUsers.findIndex((u) => u.role === 'engineer')]!;
+      const qa = users[demoUsers.findIndex((u) => u.role === 'qa_manager')]!;
+      for (const c of p.testCases) {
+        const testCase = tx.create(TestCase, { project, key: c.key, name: c.name, stimulus: StimulusSpec.parse(c.stimulus), channelMap: [] });
+        // Revision 1 of each mask: drafted by the engineer, approved by the QA manager.
+        tx.create(MaskRevision, {
+          testCase,
+          revision: 1,
+          state: 'approved',
+          checks: MaskDocument.parse({ checks: c.mask }).checks,
+          note: 'Initial limits agreed for the demo.',
+          author: engineer,
+          reviewer: qa,
+          submittedAt: new Date(),
+          decidedAt: new Date(),
+        });
+      }
       demoUsers.forEach((u, i) => {
-        if (u.role) tx.create(Membership, { project, user: users[i]!, role: u.role });
+        if (u.role) tx.create(Membership, { project, user: users[i]!, role: u.role, subscribed: u.role !== 'viewer' });
       });
       if (p.key === 'kestrel-buds') {
         tx.create(ApiToken, {

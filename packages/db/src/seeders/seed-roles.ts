@@ -28,7 +28,7 @@ export async function seedRoles(em: EntityManager): Promise<RoleFixture> {
     viewer: mk('viewer'),
     outsider: mk('outsider'),
   };
-  for (const role of ['qa_manager', 'engineer', 'viewer'] as const) em.create(Membership, { project, user: users[role], role });
+  for (const role of ['qa_manager', 'engineer', 'viewer'] as const) em.create(Membership, { project, user: users[role], role, subscribed: role === 'engineer' });
   em.create(Membership, { project: otherProject, user: users.outsider, role: 'engineer' });
   await em.flush();
   return { project, otherProject, users };

@@ -1,0 +1,52 @@
+import { CreateMaskRevisionRequest, MaskRevisionDto, TestCaseKey } from '@earmark/contracts';
+import { z } from 'zod';
+import { parseWith } from '../http/validate.js';
+import { requireProject, requireUser, type RouteContext, type RouteDef } from '../http/route.js';
+import type { CatalogService } from '../services/catalog.service.js';
+import { toMaskRevisionDto, type MaskService } from '../services/mask.service.js';
+
+const CaseParams = z.object({ caseKey: TestCaseKey });
+const RevisionParams = CaseParams.extend({ revision: z.coerce.number().int().min(1) });
+
+export function maskRoutes(masks: MaskService, catalog: CatalogService): RouteDef[] {
+  const testCaseOf = async (ctx: RouteContext) => {
+    const { caseKey } = parseWith(CaseParams, ctx.req.params, 'params');
+    return catalog.getTestCase(ctx.em, requireProject(ctx), caseKey);
+  };
+  return [
+    {
+      method: 'get',
+      path: '/api/projects/:project/test-cases/:caseKey/masks',
+      access: { kind: 'project', permission: 'project.read' },
+      summary: "A test case's mask revisions, newest first",
+      doc: { response: z.object({ items: z.array(MaskRevisionDto) }) },
+      async handle(ctx) {
+        ctx.res.json({ items: (await masks.list(ctx.em, await testCaseOf(ctx))).map(toMaskRevisionDto) });
+      },
+    },
+    {
+      method: 'post',
+      path: '/api/projects/:project/test-cases/:caseKey/masks',
+      access: { kind: 'project', permission: 'mask.draft' },
+      summary: 'Draft a new mask revision (checks validated as a mask document)',
+      doc: { body: CreateMaskRevisionRequest, response: MaskRevisionDto, status: 201 },
+      async handle(ctx) {
+        const body = parseWith(CreateMaskRevisionRequest, ctx.req.body, 'body');
+        const draft = await masks.createDraft(ctx.em, requireProject(ctx), await testCaseOf(ctx), body, requireUser(ctx).user);
+        ctx.res.status(201).json(toMaskRevisionDto(await masks.get(ctx.em, draft.testCase, draft.revision)));
+      },
+    },
+    {
+      method: 'post',
+      path: '/api/projects/:project/test-cases/:caseKey/masks/:revision/approve',
+      access: { kind: 'project', permission: 'mask.approve' },
+      summary: 'Approve a revision (not your own); it replaces the revision in force',
+      doc: { response: MaskRevisionDto },
+      async handle(ctx) {
+        const { revision } = parseWith(RevisionParams, ctx.req.params, 'params');
+        const approved = await masks.approve(ctx.em, requireProject(ctx), await testCaseOf(ctx), revision, requireUser(ctx).user);
+        ctx.res.json(toMaskRevisionDto(approved));
+      },
+    },
+  ];
+}

@@ -1,0 +1,80 @@
+import { AnalyzeCaptureJob, QUEUES } from '@earmark/contracts';
+import { Build, Capture, ObjectStoreUnavailableError, type ObjectStore } from '@earmark/db';
+import { ENGINE_VERSION } from '@earmark/dsp';
+import { LockMode, type MikroORM } from '@mikro-orm/postgresql';
+import type PgBoss from 'pg-boss';
+import type { Logger } from 'pino';
+import { computeBuildStatus } from '../verdicts/build-aggregate.js';
+import { judgeCapture } from '../verdicts/judge-capture.js';
+import { errorJudgement } from '../verdicts/judgement.js';
+import { findMaskInForce } from '../verdicts/mask-in-force.js';
+import { recordVerdict, type RecordDeps } from '../verdicts/record-verdict.js';
+
+export interface AnalyzeDeps {
+  orm: MikroORM;
+  objectStore: ObjectStore;
+  boss: PgBoss;
+  logger: Logger;
+  links: RecordDeps;
+  maxAttempts: number;
+  /** Fault injection for recovery tests (EARMARK_ANALYSIS_DELAY_MS); 0 in production. */
+  delayMs: number;
+}
+
+/**
+ * One capture: load, analyse against the mask in force, record the verdict. Transient
+ * faults (object store, database) throw so pg-boss retries with backoff; from the last
+ * attempt on, the capture is judged `error` so no job stays stuck.
+ */
+export async function analyzeCapture(job: PgBoss.JobWithMetadata<unknown>, deps: AnalyzeDeps): Promise<void> {
+  const { captureId } = AnalyzeCaptureJob.parse(job.data);
+  const em = deps.orm.em.fork();
+  const capture = await em.findOne(Capture, { id: captureId }, { populate: ['project', 'build', 'testCase', 'target'] });
+  if (!capture) {
+    deps.logger.warn({ captureId }, 'capture no longer exists; nothing to analyse');
+    return;
+  }
+  const mask = await findMaskInForce(em, capture.testCase, capture.target);
+  const attempt = job.retryCount + 1;
+  const log = deps.logger.child({ captureId, attempt, mask: mask?.id ?? null });
+
+  if (attempt >= deps.maxAttempts && job.retryCount > 0) {
+    // Earlier attempts crashed or timed out: stop trying rather than loop forever.
+    const judgement = errorJudgement(`Analysis abandoned after ${job.retryCount} failed attempts (worker crash, timeout or storage outage).`, ENGINE_VERSION);
+    await recordVerdict(em, captureId, mask, judgement, deps.links);
+    log.error('capture judged error after repeated failures');
+    return;
+  }
+
+  if (capture.status === 'queued') await markAnalysing(deps.orm, captureId);
+  if (deps.delayMs > 0) await new Promise((resolve) => setTimeout(resolve, deps.delayMs));
+
+  let bytes: Buffer;
+  try {
+    bytes = await deps.objectStore.get(capture.objectKey);
+  } catch (error) {
+    if (error instanceof ObjectStoreUnavailableError) {
+      log.warn({ err: error }, 'object store unavailable; the job will retry');
+      throw error;
+    }
+    await recordVerdict(em, captureId, mask, errorJudgement(`The stored capture cannot be read: ${(error as Error).message}`, ENGINE_VERSION), deps.links);
+    return;
+  }
+  const started = performance.now();
+  const judgement = judgeCapture(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength), capture, mask);
+  const result = await recordVerdict(em, captureId, mask, judgement, deps.links);
+  log.info({ outcome: judgement.outcome, ms: Math.round(performance.now() - started), written: result.written }, 'capture judged');
+  if (result.notificationsQueued > 0) await deps.boss.send(QUEUES.sendNotifications, { reason: 'build failed' });
+}
+
+/** Shows the capture (and so its build) as running while the engine works. */
+async function markAnalysing(orm: MikroORM, captureId: string): Promise<void> {
+  await orm.em.fork().transactional(async (tx) => {
+    const capture = await tx.findOneOrFail(Capture, { id: captureId });
+    const build = await tx.findOneOrFail(Build, { id: capture.build.id }, { lockMode: LockMode.PESSIMISTIC_WRITE });
+    if (capture.status !== 'queued') return;
+    capture.status = 'analysing';
+    await tx.flush();
+    build.status = await computeBuildStatus(tx, build.id);
+  });
+}

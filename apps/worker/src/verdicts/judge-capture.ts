@@ -1,0 +1,59 @@
+import { AnalysisSettings, MaskDocument, StimulusSpec } from '@earmark/contracts';
+import { ENGINE_VERSION, decodeRawFloat32, decodeWav, evaluateMask, generateStimulus, type DecodedAudio } from '@earmark/dsp';
+import type { Capture, MaskRevision } from '@earmark/db';
+import { errorJudgement, type Judgement } from './judgement.js';
+
+/** Decodes the stored bytes the way the API validated them. */
+export function decodeStoredCapture(bytes: Uint8Array, capture: Pick<Capture, 'format' | 'sampleRate' | 'channelCount'>): DecodedAudio {
+  return capture.format.container === 'raw-f32le'
+    ? decodeRawFloat32(bytes, { sampleRate: capture.sampleRate, channels: capture.channelCount })
+    : decodeWav(bytes);
+}
+
+/**
+ * Analyses one capture against its test case's stimulus and the mask in force. Pure:
+ * bytes in, judgement out. Any error of the analysis itself becomes an `error` verdict.
+ */
+export function judgeCapture(bytes: Uint8Array, capture: Capture, mask: MaskRevision | null): Judgement {
+  if (!mask) {
+    return errorJudgement(`No approved mask is in force for test case ${capture.testCase.key} on target ${capture.target.key}.`, ENGINE_VERSION);
+  }
+  try {
+    const audio = decodeStoredCapture(bytes, capture);
+    const spec = StimulusSpec.parse(capture.testCase.stimulus);
+    const settings = AnalysisSettings.parse(capture.testCase.analysis);
+    const stimulus = generateStimulus(spec);
+    // Rigs play the 32-bit float WAV that the API serves: analyse against exactly that.
+    const reference = { sampleRate: stimulus.sampleRate, channels: stimulus.channels.map((c) => Float64Array.from(c, Math.fround)) };
+    const document = MaskDocument.parse({ checks: mask.checks });
+    const evaluation = evaluateMask(
+      {
+        capture: audio,
+        reference,
+        transferMethod: settings.transferMethod ?? (spec.kind === 'sweep' ? 'deconvolution' : 'h1'),
+        ...(capture.testCase.channelMap.length ? { channels: capture.testCase.channelMap } : {}),
+        ...(settings.transferBandHz ? { transferBandHz: settings.transferBandHz } : {}),
+      },
+      document,
+    );
+    return {
+      outcome: evaluation.verdict,
+      reason: evaluation.reason,
+      engineVersion: evaluation.engineVersion,
+      checks: evaluation.checks.map((c) => ({
+        id: c.id,
+        kind: c.kind,
+        label: c.label,
+        pass: c.pass,
+        measured: c.measured,
+        limit: c.limit,
+        margin: c.margin,
+        unit: c.unit,
+        worstHz: c.worstHz,
+        details: { ...c.details, channel: c.channel, ...(c.error ? { error: c.error } : {}) },
+      })),
+    };
+  } catch (error) {
+    return errorJudgement(`Analysis failed: ${error instanceof Error ? error.message : String(error)}`, ENGINE_VERSION);
+  }
+}

@@ -1,0 +1,134 @@
+import { LockMode, UniqueConstraintViolationException, type EntityManager } from '@mikro-orm/postgresql';
+import { Build, Capture, CheckResult, Finding, Membership, Notification, Verdict, type MaskRevision } from '@earmark/db';
+import { computeBuildStatus } from './build-aggregate.js';
+import { describeFailure, type Judgement } from './judgement.js';
+
+export interface RecordResult {
+  /** False when this capture already had a verdict under this revision (a re-run job). */
+  written: boolean;
+  notificationsQueued: number;
+}
+
+export interface RecordDeps {
+  /** Link to a capture's page in the dashboard. */
+  capturePage(project: string, sha: string, captureId: string): string;
+  buildPage(project: string, sha: string): string;
+}
+
+/**
+ * Writes a verdict with its check results, the capture's status, the build's aggregate,
+ * findings for failing checks and e-mail for a build that just turned failed — all in one
+ * transaction. Idempotent: a second call for the same capture and revision writes nothing.
+ */
+export async function recordVerdict(
+  em: EntityManager,
+  captureId: string,
+  mask: MaskRevision | null,
+  judgement: Judgement,
+  deps: RecordDeps,
+): Promise<RecordResult> {
+  try {
+    return await em.transactional(async (tx) => {
+      const capture = await tx.findOneOrFail(Capture, { id: captureId }, { populate: ['project', 'build', 'testCase', 'target'] });
+      // The build row lock serialises captures of one build, so the aggregate and the
+      // "turned failed" transition are decided once.
+      const build = await tx.findOneOrFail(Build, { id: capture.build.id }, { lockMode: LockMode.PESSIMISTIC_WRITE });
+      if (await tx.findOne(Verdict, { capture, maskRevision: mask ? mask.id : null })) return { written: false, notificationsQueued: 0 };
+
+      const verdict = tx.create(Verdict, {
+        capture,
+        maskRevision: mask ? mask.id : null,
+        outcome: judgement.outcome,
+        reason: judgement.reason,
+        engineVersion: judgement.engineVersion,
+      });
+      const results = judgement.checks.map((c) =>
+        tx.create(CheckResult, {
+          verdict,
+          checkId: c.id,
+          kind: c.kind,
+          pass: c.pass,
+          measured: finite(c.measured),
+          limit: finite(c.limit),
+          margin: finite(c.margin),
+          worstHz: finite(c.worstHz),
+          details: { ...c.details, label: c.label, unit: c.unit },
+        }),
+      );
+      capture.status = judgement.outcome === 'error' ? 'error' : 'done';
+      await tx.flush();
+
+      const previous = build.status;
+      build.status = await computeBuildStatus(tx, build.id);
+
+      const failing = judgement.checks.map((c, i) => ({ check: c, result: results[i]! })).filter(({ check }) => !check.pass);
+      for (const { check, result } of failing) await openOrUpdateFinding(tx, capture, check.id, describeFailure(check), result);
+
+      let notificationsQueued = 0;
+      if (previous !== 'fail' && build.status === 'fail' && !(await alreadyNotified(tx, capture.project.key, build.sha))) {
+        const subscribers = await tx.find(Membership, { project: capture.project, subscribed: true }, { populate: ['user'] });
+        const link = deps.buildPage(capture.project.key, build.sha);
+        const lines = failing.map(({ check }) => `- ${capture.testCase.key} on ${capture.target.key}: ${describeFailure(check)}`);
+        for (const m of subscribers.filter((s) => !s.user.disabled)) {
+          tx.create(Notification, {
+            kind: 'build-failed',
+            recipient: m.user.email,
+            subject: `[Earmark] ${capture.project.key} build ${build.sha.slice(0, 10)} failed`,
+            body: [
+              `Build ${build.sha}${build.branch ? ` on ${build.branch}` : ''}${build.label ? ` (${build.label})` : ''} of ${capture.project.name} failed.`,
+              '',
+              ...(lines.length ? lines : [`- ${capture.testCase.key} on ${capture.target.key}: ${judgement.reason ?? 'failed'}`]),
+              '',
+              `Open the build: ${link}`,
+              '',
+              'You get this because you subscribed to failed builds of this project in Earmark.',
+            ].join('\n'),
+            payload: { project: capture.project.key, sha: build.sha, captureId: capture.id },
+          });
+          notificationsQueued += 1;
+        }
+      }
+      await tx.flush();
+      return { written: true, notificationsQueued };
+    });
+  } catch (error) {
+    // A concurrent run of the same job won the unique index: nothing to do.
+    if (error instanceof UniqueConstraintViolationException) return { written: false, notificationsQueued: 0 };
+    throw error;
+  }
+}
+
+const finite = (v: number | null) => (v !== null && Number.isFinite(v) ? v : null);
+
+/**
+ * One open finding per test case, target and check: a check that keeps failing across
+ * builds updates its finding (newest capture) instead of opening another.
+ */
+async function openOrUpdateFinding(tx: EntityManager, capture: Capture, checkId: string, title: string, result: CheckResult): Promise<void> {
+  const existing = await tx.findOne(Finding, {
+    project: capture.project,
+    checkId,
+    state: { $in: ['open', 'investigating'] },
+    capture: { testCase: capture.testCase, target: capture.target },
+  });
+  if (existing) {
+    existing.capture = capture;
+    existing.checkResult = result;
+    existing.title = title;
+    return;
+  }
+  tx.create(Finding, { project: capture.project, capture, checkResult: result, checkId, title });
+}
+
+/** A build is announced as failed once, even when later captures send it back to pending and it fails again. */
+async function alreadyNotified(tx: EntityManager, project: string, sha: string): Promise<boolean> {
+  const rows = await tx
+    .getConnection()
+    .execute<{ n: string }[]>(
+      `select count(*) as n from notification where kind = 'build-failed' and payload->>'project' = ? and payload->>'sha' = ?`,
+      [project, sha],
+      'all',
+      tx.getTransactionContext(),
+    );
+  return Number(rows[0]?.n ?? 0) > 0;
+}

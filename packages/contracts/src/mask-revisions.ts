@@ -1,0 +1,30 @@
+import { z } from 'zod';
+import { TargetKey } from './captures.js';
+import { MaskCheck } from './masks.js';
+
+export const MaskRevisionState = z.enum(['draft', 'in_review', 'approved', 'superseded', 'rejected']);
+export type MaskRevisionState = z.infer<typeof MaskRevisionState>;
+
+export const MaskRevisionDto = z.object({
+  id: z.string(),
+  testCase: z.string(),
+  /** null: applies to every target without a revision of its own. */
+  target: z.string().nullable(),
+  revision: z.number().int(),
+  state: MaskRevisionState,
+  checks: z.array(MaskCheck),
+  note: z.string(),
+  author: z.string(),
+  reviewer: z.string().nullable(),
+  createdAt: z.string(),
+  decidedAt: z.string().nullable(),
+});
+export type MaskRevisionDto = z.infer<typeof MaskRevisionDto>;
+
+export const CreateMaskRevisionRequest = z.strictObject({
+  target: TargetKey.nullable().default(null),
+  /** Validated as a MaskDocument (unique ids, every check's own rules) by the API. */
+  checks: z.array(z.unknown()),
+  note: z.string().max(4000).default(''),
+});
+export type CreateMaskRevisionRequest = z.infer<typeof CreateMaskRevisionRequest>;

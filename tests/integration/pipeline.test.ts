@@ -1,0 +1,210 @@
+import { Capture, MaskRevision, Notification, Target, TestCase, Verdict } from '@earmark/db';
+import { StimulusSpec, type CaptureDto, type MaskCheckInput } from '@earmark/contracts';
+import { encodeWav, generateStimulus } from '@earmark/dsp';
+import { applyBiquad, applyFir, clip, delay, lowPassBiquadCoefficients, peakingEqCoefficients, scaleDb, windowedSincLowPass } from '@earmark/dsp/testing';
+import { XMLParser } from 'fast-xml-parser';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { startStack, type Stack } from '../support/stack.js';
+import type { WorkerProcess } from '../support/worker-process.js';
+
+/**
+ * The main job end to end: CI uploads captures over the API, the object lands in the S3
+ * fake, a real worker process analyses it against the approved mask, and the verdict,
+ * build aggregate, JUnit XML and e-mail come out — with PostgreSQL, S3 and SMTP fakes real.
+ */
+let stack: Stack;
+let worker: WorkerProcess;
+const FS = 48000;
+const sweepSpec = StimulusSpec.parse({ kind: 'sweep', sampleRate: FS, seconds: 1.5, from: 20, to: 20000, levelDbfs: -12, silenceSeconds: 0.3, fadeInSeconds: 0.01, fadeOutSeconds: 0.01 });
+const stimulus = Float64Array.from(generateStimulus(sweepSpec).channels[0]!, Math.fround);
+const LATENCY = 37; // samples the "firmware" adds
+
+const responseMask: MaskCheckInput[] = [
+  { id: 'response', kind: 'magnitude-envelope', label: 'Flat ±1 dB', measure: 'transfer', referenceHz: 1000, upper: [{ hz: 100, db: 1 }, { hz: 16000, db: 1 }], lower: [{ hz: 100, db: -1 }, { hz: 16000, db: -1 }] },
+  { id: 'level', kind: 'level', metric: 'rms-dbfs', min: -16, max: -10 },
+  { id: 'clipping', kind: 'integrity', metric: 'clipped-samples', max: 0 },
+  { id: 'parseval', kind: 'level', metric: 'energy-parseval', max: 1e-9 },
+];
+// Band by default: where |H| is within 20 dB of its maximum, so the low-pass corner is inside it.
+const phaseMask: MaskCheckInput[] = [{ id: 'phase', kind: 'phase-linearity', maxDeviationDeg: 10 }];
+
+async function api(method: string, path: string, body?: BodyInit, headers: Record<string, string> = {}) {
+  const res = await fetch(`${stack.url}${path}`, { method, body, headers: { authorization: `Bearer ${stack.ciToken}`, ...headers } });
+  return { status: res.status, text: await res.text() };
+}
+
+async function submit(sha: string, testCase: string, samples: Float64Array): Promise<CaptureDto> {
+  const wav = encodeWav([samples], FS, { encoding: 'float', bitsPerSample: 32 });
+  const res = await api('POST', `/api/v1/projects/alpha-dsp/builds/${sha}/captures?testCase=${testCase}&target=board`, Buffer.from(wav), { 'content-type': 'audio/wav' });
+  expect(res.status, res.text).toBe(202);
+  return JSON.parse(res.text) as CaptureDto;
+}
+
+async function verdictOf(id: string, timeoutMs = 30_000): Promise<CaptureDto> {
+  const deadline = Date.now() + timeoutMs;
+  for (;;) {
+    const capture = JSON.parse((await api('GET', `/api/v1/captures/${id}`)).text) as CaptureDto;
+    if (capture.verdict) return capture;
+    if (Date.now() > deadline) throw new Error(`no verdict for ${id} within ${timeoutMs} ms; worker said:\n${worker.output.join('').slice(-3000)}`);
+    await new Promise((r) => setTimeout(r, 150));
+  }
+}
+
+const check = (c: CaptureDto, id: string) => c.verdict!.checks.find((x) => x.id === id)!;
+
+async function inbox(): Promise<{ to: { address: string }[]; subject: string; text: string }[]> {
+  const res = await fetch(`${stack.smtp.inboxUrl}api/email`);
+  return (await res.json()) as never;
+}
+
+beforeAll(async () => {
+  stack = await startStack();
+  const em = stack.orm.em.fork();
+  const project = stack.fixture.project;
+  em.create(Target, { project: project.id, key: 'board', name: 'Board', sampleRate: FS });
+  const eq = em.create(TestCase, { project: project.id, key: 'eq.sweep', name: 'EQ sweep', stimulus: sweepSpec });
+  const phase = em.create(TestCase, { project: project.id, key: 'phase.sweep', name: 'Phase sweep', stimulus: sweepSpec });
+  em.create(MaskRevision, { testCase: eq, revision: 1, state: 'approved', checks: responseMask, author: stack.fixture.users.engineer.id, reviewer: stack.fixture.users.qa_manager.id });
+  em.create(MaskRevision, { testCase: phase, revision: 1, state: 'approved', checks: phaseMask, author: stack.fixture.users.engineer.id, reviewer: stack.fixture.users.qa_manager.id });
+  await em.flush();
+  worker = await stack.startWorker();
+}, 120_000);
+afterAll(() => stack?.close());
+
+describe('capture → verdict', () => {
+  let clean: CaptureDto;
+  let bump: CaptureDto;
+  let clipped: CaptureDto;
+  let quiet: CaptureDto;
+
+  it('passes a clean capture and records the engine version and mask revision', async () => {
+    clean = await verdictOf((await submit('aaaa001', 'eq.sweep', delay(stimulus, LATENCY))).id);
+    expect(clean.verdict!.outcome, JSON.stringify(clean.verdict)).toBe('pass');
+    expect(clean.verdict!.engineVersion).toMatch(/^\d+\.\d+\.\d+$/);
+    expect(clean.verdict!.maskRevision).toBe(1);
+    expect(check(clean, 'parseval').pass).toBe(true);
+    expect(check(clean, 'response').margin!).toBeGreaterThan(0.5);
+  });
+
+  it('fails a +2 dB peaking bump at 8 kHz on the envelope, worst near 8 kHz, margin about −1 dB', async () => {
+    // RBJ Audio EQ Cookbook peaking filter: |H(8 kHz)| = +2 dB exactly, so the ±1 dB envelope is exceeded by ~1 dB.
+    const bumped = applyBiquad(delay(stimulus, LATENCY), peakingEqCoefficients(FS, 8000, 2, 2));
+    bump = await verdictOf((await submit('bbbb002', 'eq.sweep', bumped)).id);
+    expect(bump.verdict!.outcome).toBe('fail');
+    const response = check(bump, 'response');
+    expect(response.pass).toBe(false);
+    expect(response.worstHz!).toBeGreaterThan(8000 * 0.95);
+    expect(response.worstHz!).toBeLessThan(8000 * 1.05);
+    expect(response.margin!).toBeGreaterThan(-1.15);
+    expect(response.margin!).toBeLessThan(-0.85);
+    expect(check(bump, 'level').pass).toBe(true);
+  });
+
+  it('fails a clipped capture on time-domain integrity', async () => {
+    // +14 dB on a −12 dBFS sweep drives the peak to +2 dBFS: hard-clipped at full scale.
+    clipped = await verdictOf((await submit('bbbb002', 'eq.sweep', clip(scaleDb(delay(stimulus, LATENCY), 14), 1))).id);
+    expect(clipped.verdict!.outcome).toBe('fail');
+    const clipping = check(clipped, 'clipping');
+    expect(clipping.pass).toBe(false);
+    expect(clipping.measured!).toBeGreaterThan(100);
+  });
+
+  it('fails a −20 dB level change on the level check with the overshoot as margin', async () => {
+    quiet = await verdictOf((await submit('bbbb002', 'eq.sweep', scaleDb(delay(stimulus, LATENCY), -20))).id);
+    const level = check(quiet, 'level');
+    expect(level.pass).toBe(false);
+    // RMS of the clean capture is about −13 dBFS (−12 dBFS sweep, with silence and fades), so −20 dB reads about −33 dBFS: 17 dB below the −16 dBFS minimum.
+    const cleanLevel = check(clean, 'level').measured!;
+    expect(level.measured!).toBeCloseTo(cleanLevel - 20, 1);
+    expect(level.margin!).toBeCloseTo(level.measured! - -16, 6);
+    expect(check(quiet, 'response').pass).toBe(true); // the shape is unchanged
+  });
+
+  it('passes a linear-phase filter and fails a minimum-phase one on phase linearity', async () => {
+    const fir = applyFir(stimulus, windowedSincLowPass(FS, 4000, 63));
+    const minimum = applyBiquad(stimulus, lowPassBiquadCoefficients(FS, 4000));
+    const linear = await verdictOf((await submit('cccc003', 'phase.sweep', fir)).id);
+    const bent = await verdictOf((await submit('cccc003', 'phase.sweep', minimum)).id);
+    expect(check(linear, 'phase').pass, JSON.stringify(check(linear, 'phase'))).toBe(true);
+    expect(check(bent, 'phase').pass, JSON.stringify(check(bent, 'phase'))).toBe(false);
+  });
+
+  it('aggregates the build verdict and renders JUnit XML carrying the failures', async () => {
+    const passing = JSON.parse((await api('GET', '/api/v1/projects/alpha-dsp/builds/aaaa001')).text);
+    expect(passing.status).toBe('pass');
+    const failing = JSON.parse((await api('GET', '/api/v1/projects/alpha-dsp/builds/bbbb002')).text);
+    expect(failing.status).toBe('fail');
+    expect(failing.counts).toEqual({ pass: 0, fail: 3, error: 0, pending: 0 });
+
+    const xml = (await api('GET', '/api/v1/projects/alpha-dsp/builds/bbbb002/junit.xml')).text;
+    const parsed = new XMLParser({ ignoreAttributes: false }).parse(xml);
+    const suites = [parsed.testsuites.testsuite].flat();
+    expect(suites).toHaveLength(1);
+    const cases = [suites[0].testcase].flat() as { '@_name': string; failure?: { '#text'?: string; '@_message'?: string } }[];
+    expect(cases).toHaveLength(3 * responseMask.length);
+    const failures = cases.filter((c) => c.failure);
+    expect(failures.length).toBeGreaterThanOrEqual(3);
+    const envelopeFailure = failures.find((c) => c['@_name'].startsWith('response'))!;
+    expect(JSON.stringify(envelopeFailure.failure)).toMatch(/margin -?\d/);
+    expect(JSON.stringify(envelopeFailure.failure)).toMatch(/Hz/);
+  });
+
+  it('opens one finding per failing check and e-mails the subscribed engineer once', async () => {
+    const em = stack.orm.em.fork();
+    const findings = await em.getConnection().execute<{ check_id: string }[]>(`select check_id from finding order by check_id`);
+    expect(findings.map((f) => f.check_id)).toEqual(expect.arrayContaining(['clipping', 'level', 'response', 'phase']));
+    const deadline = Date.now() + 15_000;
+    let mails = await inbox();
+    while (mails.filter((m) => m.subject.includes('bbbb002')).length === 0 && Date.now() < deadline) {
+      await new Promise((r) => setTimeout(r, 200));
+      mails = await inbox();
+    }
+    const failedMail = mails.filter((m) => m.subject.includes('bbbb002'));
+    expect(failedMail).toHaveLength(1); // the build turned failed once
+    expect(failedMail[0]!.to[0]!.address).toBe('engineer@example.test');
+    expect(failedMail[0]!.text).toContain('/projects/alpha-dsp/builds/bbbb002');
+  });
+});
+
+describe('failure and recovery', () => {
+  it('re-runs a job whose worker was killed with SIGKILL mid-analysis, and writes exactly one verdict', async () => {
+    await worker.stop();
+    const slow = await stack.startWorker({ EARMARK_ANALYSIS_DELAY_MS: '60000' });
+    const submitted = await submit('dddd004', 'eq.sweep', delay(stimulus, LATENCY));
+    const em = stack.orm.em.fork();
+    const deadline = Date.now() + 20_000;
+    while ((await em.fork().findOneOrFail(Capture, { id: submitted.id })).status !== 'analysing') {
+      if (Date.now() > deadline) throw new Error('analysis never started');
+      await new Promise((r) => setTimeout(r, 100));
+    }
+    await slow.kill();
+    worker = await stack.startWorker();
+    const judged = await verdictOf(submitted.id, 60_000);
+    expect(judged.verdict!.outcome).toBe('pass');
+    expect(await em.fork().count(Verdict, { capture: submitted.id })).toBe(1);
+  });
+
+  it('keeps mail in the outbox while the SMTP server is down and delivers it when it returns', async () => {
+    await stack.smtp.stop();
+    const bumped = applyBiquad(delay(stimulus, LATENCY), peakingEqCoefficients(FS, 8000, 2, 2));
+    const failed = await verdictOf((await submit('eeee005', 'eq.sweep', bumped)).id);
+    expect(failed.verdict!.outcome).toBe('fail');
+    const em = stack.orm.em.fork();
+    const pending = await em.find(Notification, { subject: { $like: '%eeee005%' } });
+    expect(pending).toHaveLength(1);
+    // Give the worker time to try (and fail) at least once.
+    const tried = Date.now() + 10_000;
+    while ((await em.fork().findOneOrFail(Notification, { id: pending[0]!.id })).attempts === 0 && Date.now() < tried) await new Promise((r) => setTimeout(r, 200));
+    expect((await em.fork().findOneOrFail(Notification, { id: pending[0]!.id })).state).toBe('pending');
+
+    await stack.smtp.restart();
+    const deadline = Date.now() + 30_000;
+    for (;;) {
+      const mails = await inbox().catch(() => []);
+      if (mails.some((m) => m.subject.includes('eeee005'))) break;
+      if (Date.now() > deadline) throw new Error(`mail not delivered after the SMTP fake returned; worker said:\n${worker.output.join('').slice(-2000)}`);
+      await new Promise((r) => setTimeout(r, 300));
+    }
+    expect((await em.fork().findOneOrFail(Notification, { id: pending[0]!.id })).state).toBe('sent');
+  });
+});

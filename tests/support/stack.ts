@@ -1,0 +1,102 @@
+import fs from 'node:fs';
+import type { AddressInfo } from 'node:net';
+import os from 'node:os';
+import path from 'node:path';
+import { createApp, loadApiEnv } from '@earmark/api';
+import { ApiToken, ObjectStore, generateTokenSecret, initOrm, seedRoles, startBoss, type RoleFixture } from '@earmark/db';
+import { createTestDatabase } from '@earmark/db/testing';
+import { startS3Fake, startSmtpFake, type S3Fake, type SmtpFake } from '@earmark/infra/fakes';
+import type { MikroORM } from '@mikro-orm/postgresql';
+import { pino } from 'pino';
+import { freePort } from './free-port.js';
+import { startWorkerProcess, type WorkerProcess } from './worker-process.js';
+
+export interface Stack {
+  url: string;
+  orm: MikroORM;
+  fixture: RoleFixture;
+  /** A CI token of the fixture project with both scopes. */
+  ciToken: string;
+  workerEnv: Record<string, string>;
+  smtp: { inboxUrl: string; stop(): Promise<void>; restart(): Promise<void> };
+  startWorker(extraEnv?: Record<string, string>): Promise<WorkerProcess>;
+  close(): Promise<void>;
+}
+
+/**
+ * Everything on loopback for one test file: its own database, the S3 and SMTP fakes,
+ * the API in-process and (on demand) real worker processes.
+ */
+export async function startStack(): Promise<Stack> {
+  const db = await createTestDatabase();
+  const orm = await initOrm({ url: db.url, poolMax: 6 });
+  const fixture = await seedRoles(orm.em.fork());
+  const s3Dir = fs.mkdtempSync(path.join(os.tmpdir(), 'earmark-stack-s3-'));
+  const s3: S3Fake = await startS3Fake({ port: 0, directory: s3Dir, bucket: 'earmark-captures' });
+  const smtpPort = await freePort();
+  const inboxPort = await freePort();
+  let smtp: SmtpFake = await startSmtpFake({ smtpPort, webPort: inboxPort });
+  const logger = pino({ level: 'silent' });
+  const objectStore = new ObjectStore({ endpoint: s3.endpoint, bucket: 'earmark-captures', accessKeyId: 'S3RVER', secretAccessKey: 'S3RVER' });
+  await objectStore.ensureBucket();
+  const boss = await startBoss(db.url, logger);
+  const env = loadApiEnv({
+    EARMARK_DATABASE_URL: db.url,
+    EARMARK_JWT_SECRET: 'stack-secret-stack-secret-stack-secret-0123',
+    EARMARK_S3_ENDPOINT: s3.endpoint,
+    EARMARK_WEB_DIST: path.resolve(import.meta.dirname, '../../apps/web/dist'),
+    EARMARK_LOG_LEVEL: 'silent',
+  });
+  const { app } = createApp({ orm, env, logger, objectStore, boss });
+  const server = app.listen(0, '127.0.0.1');
+  await new Promise<void>((resolve) => server.once('listening', resolve));
+  const url = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
+
+  const secret = generateTokenSecret();
+  const em = orm.em.fork();
+  em.create(ApiToken, { project: fixture.project.id, name: 'ci', prefix: secret.prefix, secretHash: secret.hash, scopes: ['submit-captures', 'read-verdicts'], createdBy: fixture.users.admin.id });
+  await em.flush();
+
+  const workerEnv = {
+    EARMARK_DATABASE_URL: db.url,
+    EARMARK_S3_ENDPOINT: s3.endpoint,
+    EARMARK_SMTP_PORT: String(smtpPort),
+    EARMARK_PUBLIC_URL: url,
+    EARMARK_SWEEP_INTERVAL_S: '1',
+    EARMARK_JOB_RETRY_DELAY_S: '1',
+    EARMARK_JOB_MAINTENANCE_S: '1',
+    EARMARK_ANALYSIS_EXPIRE_S: '4',
+    EARMARK_WORKER_CONCURRENCY: '1',
+  };
+  const workers: WorkerProcess[] = [];
+  return {
+    url,
+    orm,
+    fixture,
+    ciToken: secret.token,
+    workerEnv,
+    smtp: {
+      inboxUrl: smtp.inboxUrl,
+      stop: () => smtp.close(),
+      async restart() {
+        smtp = await startSmtpFake({ smtpPort, webPort: inboxPort });
+      },
+    },
+    async startWorker(extraEnv = {}) {
+      const worker = await startWorkerProcess({ ...workerEnv, ...extraEnv });
+      workers.push(worker);
+      return worker;
+    },
+    async close() {
+      await Promise.all(workers.map((w) => w.stop()));
+      await new Promise<void>((resolve) => server.close(() => resolve()));
+      await boss.stop({ graceful: false, wait: true });
+      objectStore.destroy();
+      await s3.close();
+      await smtp.close().catch(() => {});
+      fs.rmSync(s3Dir, { recursive: true, force: true });
+      await orm.close();
+      await db.drop();
+    },
+  };
+}
