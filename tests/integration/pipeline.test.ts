@@ -208,3 +208,48 @@ describe('failure and recovery', () => {
     expect((await em.fork().findOneOrFail(Notification, { id: pending[0]!.id })).state).toBe('sent');
   });
 });
+
+describe('earmark submit against the real stack', () => {
+  const cli = new URL('../../apps/cli/bin/earmark.mjs', import.meta.url).pathname;
+
+  async function runSubmit(sha: string, file: string, extra: string[] = []) {
+    const { spawn } = await import('node:child_process');
+    const child = spawn(process.execPath, [cli, 'submit', '--project', 'alpha-dsp', '--sha', sha, '--case', 'eq.sweep', '--target', 'board', file, '--wait', '--timeout', '60', ...extra], {
+      env: { ...process.env, EARMARK_URL: stack.url, EARMARK_TOKEN: stack.ciToken },
+      stdio: ['ignore', 'pipe', 'pipe'],
+    });
+    let out = '';
+    child.stdout.on('data', (c: Buffer) => (out += c.toString()));
+    child.stderr.on('data', (c: Buffer) => (out += c.toString()));
+    const code = await new Promise<number | null>((resolve) => child.once('exit', resolve));
+    return { code, out };
+  }
+
+  async function writeWav(name: string, samples: Float64Array): Promise<string> {
+    const fs = await import('node:fs');
+    const os = await import('node:os');
+    const path = await import('node:path');
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'earmark-submit-'));
+    const file = path.join(dir, name);
+    fs.writeFileSync(file, encodeWav([samples], FS, { encoding: 'float', bitsPerSample: 32 }));
+    return file;
+  }
+
+  it('exits 0 for a passing build and writes JUnit XML', async () => {
+    const file = await writeWav('clean.wav', delay(stimulus, LATENCY));
+    const junit = `${file}.junit.xml`;
+    const { code, out } = await runSubmit('f0f0f0a', file, ['--junit', junit]);
+    expect(code, out).toBe(0);
+    expect(out).toMatch(/PASS/);
+    const fs = await import('node:fs');
+    expect(fs.readFileSync(junit, 'utf8')).toContain('<testsuite');
+  });
+
+  it('exits 1 for a failing build and names the failing check', async () => {
+    const file = await writeWav('bump.wav', applyBiquad(delay(stimulus, LATENCY), peakingEqCoefficients(FS, 8000, 2, 2)));
+    const { code, out } = await runSubmit('f0f0f0b', file);
+    expect(code, out).toBe(1);
+    expect(out).toMatch(/FAIL/);
+    expect(out).toMatch(/Flat ±1 dB margin −\d/); // the check's label, with its negative margin
+  });
+});
