@@ -16,6 +16,8 @@ import type { RouteDef } from './http/route.js';
 import { docsRoutes } from './routes/docs.routes.js';
 import { allRoutes } from './routes/index.js';
 import { CaptureIngestService } from './services/capture-ingest.service.js';
+import { CaptureViewService } from './services/capture-view.service.js';
+import { FindingsService } from './services/findings.service.js';
 import { createLinks } from './services/links.js';
 import { SessionService } from './services/session.service.js';
 
@@ -82,7 +84,9 @@ export function createApp({ orm, env, logger, objectStore, boss }: AppDeps): Ear
   const signer = createTokenSigner(env.EARMARK_JWT_SECRET, { access: env.EARMARK_ACCESS_TOKEN_TTL_S, refresh: env.EARMARK_REFRESH_TOKEN_TTL_S });
   const links = createLinks(env.EARMARK_PUBLIC_URL);
   const ingest = new CaptureIngestService({ objectStore, boss, links, logger, maxCaptureBytes: env.EARMARK_MAX_CAPTURE_BYTES });
-  const routes: RouteDef[] = allRoutes({ sessions: new SessionService(signer), loginLimiter: loginLimiter(env), ingest, links });
+  const findings = new FindingsService();
+  const views = new CaptureViewService(objectStore, findings, links);
+  const routes: RouteDef[] = allRoutes({ sessions: new SessionService(signer), loginLimiter: loginLimiter(env), ingest, links, views, findings });
   routes.push(...docsRoutes(() => routes, env.EARMARK_PUBLIC_URL));
   const api = express.Router();
   mountRoutes(api, routes, orm, signer);

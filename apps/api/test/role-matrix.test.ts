@@ -1,4 +1,5 @@
 import { ApiToken, Build, Capture, Target, TestCase, generateTokenSecret, type Project } from '@earmark/db';
+import { encodeWav } from '@earmark/dsp';
 import type { TokenScope } from '@earmark/contracts';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startTestApi, type TestApi } from './support/test-api.js';
@@ -51,6 +52,17 @@ const MATRIX: Record<string, Caller[] | typeof PUBLIC> = {
   'GET /api/projects/:project/test-cases/:caseKey/masks': PROJECT_READERS,
   'POST /api/projects/:project/test-cases/:caseKey/masks': CONFIGURERS,
   'POST /api/projects/:project/test-cases/:caseKey/masks/:revision/approve': ['qa_manager', 'admin'],
+  'GET /api/projects/:project/builds': PROJECT_READERS,
+  'GET /api/projects/:project/builds/trend': PROJECT_READERS,
+  'GET /api/projects/:project/builds/:sha/matrix': PROJECT_READERS,
+  'GET /api/projects/:project/captures/:id': PROJECT_READERS,
+  'GET /api/projects/:project/captures/:id/plot': PROJECT_READERS,
+  'GET /api/projects/:project/captures/:id/audio/:kind': PROJECT_READERS,
+  'GET /api/projects/:project/findings': PROJECT_READERS,
+  'PATCH /api/projects/:project/findings/:id': CONFIGURERS,
+  'POST /api/projects/:project/findings/bulk': CONFIGURERS,
+  'GET /api/projects/:project/findings/:id/comments': PROJECT_READERS,
+  'POST /api/projects/:project/findings/:id/comments': CONFIGURERS,
   'POST /api/v1/projects/:project/builds': CI_SUBMITTERS,
   'GET /api/v1/projects/:project/builds': CI_READERS,
   'GET /api/v1/projects/:project/builds/:sha': CI_READERS,
@@ -83,7 +95,9 @@ beforeAll(async () => {
   const testCase = em.create(TestCase, { project: project.id, key: 'matrix.case', name: 'matrix', stimulus: { kind: 'silence', sampleRate: 48000, seconds: 1 } });
   const target = em.create(Target, { project: project.id, key: 'matrix-target', name: 'matrix' });
   const build = em.create(Build, { project: project.id, sha: 'c0ffee1' });
-  const capture = em.create(Capture, { project: project.id, build, testCase, target, objectKey: 'none', sha256: '0'.repeat(64), sizeBytes: 0, sampleRate: 48000, channelCount: 1, frames: 0 });
+  const wav = encodeWav([new Float64Array(4800)], 48000, { encoding: 'float', bitsPerSample: 32 });
+  await api.objectStore.put('matrix/capture.wav', wav, 'audio/wav');
+  const capture = em.create(Capture, { project: project.id, build, testCase, target, objectKey: 'matrix/capture.wav', sha256: '0'.repeat(64), sizeBytes: wav.length, format: { container: 'wav' }, sampleRate: 48000, channelCount: 1, frames: 4800 });
   await em.flush();
   captureId = capture.id;
 });
@@ -98,6 +112,7 @@ function concretePath(path: string): string {
     .replace(':targetKey', 'no-such-target')
     .replace(':caseKey', 'no.such.case')
     .replace(':revision', '1')
+    .replace(':kind', 'capture')
     .replace(':id', captureId);
 }
 
@@ -143,7 +158,7 @@ describe('permission matrix', () => {
     const token = await credentialFor(caller);
     const body = method === 'POST' || method === 'PUT' ? {} : undefined;
     const res = await api.request(method, concretePath(path), { token, body });
-    const onlyProjectParam = !/:(userId|tokenId|sha|targetKey|caseKey)/.test(path);
+    const onlyProjectParam = !/:(userId|tokenId|sha|targetKey|caseKey)|findings\/:id/.test(path);
 
     if (allowed === PUBLIC) {
       expect([401, 403]).not.toContain(res.status);

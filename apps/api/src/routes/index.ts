@@ -1,6 +1,8 @@
 import type { RequestHandler } from 'express';
 import type { RouteDef } from '../http/route.js';
 import type { CaptureIngestService } from '../services/capture-ingest.service.js';
+import type { CaptureViewService } from '../services/capture-view.service.js';
+import type { FindingsService } from '../services/findings.service.js';
 import { CatalogService } from '../services/catalog.service.js';
 import type { Links } from '../services/links.js';
 import { MaskService } from '../services/mask.service.js';
@@ -12,6 +14,7 @@ import { authRoutes } from './auth.routes.js';
 import { catalogRoutes } from './catalog.routes.js';
 import { ciBuildRoutes } from './ci-builds.routes.js';
 import { ciCaptureRoutes } from './ci-captures.routes.js';
+import { dashboardRoutes } from './dashboard.routes.js';
 import { healthRoutes } from './health.routes.js';
 import { maskRoutes } from './masks.routes.js';
 import { projectRoutes } from './projects.routes.js';
@@ -21,6 +24,8 @@ export interface RouteDeps {
   sessions: SessionService;
   loginLimiter: RequestHandler;
   ingest: CaptureIngestService;
+  views: CaptureViewService;
+  findings: FindingsService;
   links: Links;
 }
 
@@ -35,6 +40,7 @@ export function allRoutes(deps: RouteDeps): RouteDef[] {
     ...catalogRoutes(catalog),
     ...maskRoutes(new MaskService(), catalog),
     ...adminRoutes(),
+    ...dashboardRoutes(deps.views, deps.findings),
     ...ciBuildRoutes(deps.links),
     ...ciCaptureRoutes(deps.ingest, deps.links),
   ];

@@ -1,13 +1,12 @@
 import { AnalysisSettings, MaskDocument, StimulusSpec } from '@earmark/contracts';
-import { ENGINE_VERSION, decodeRawFloat32, decodeWav, evaluateMask, generateStimulus, type DecodedAudio } from '@earmark/dsp';
+import { ENGINE_VERSION, decodeCapture, evaluateMask, stimulusAsPlayed, type DecodedAudio } from '@earmark/dsp';
 import type { Capture, MaskRevision } from '@earmark/db';
 import { errorJudgement, type Judgement } from './judgement.js';
 
 /** Decodes the stored bytes the way the API validated them. */
 export function decodeStoredCapture(bytes: Uint8Array, capture: Pick<Capture, 'format' | 'sampleRate' | 'channelCount'>): DecodedAudio {
-  return capture.format.container === 'raw-f32le'
-    ? decodeRawFloat32(bytes, { sampleRate: capture.sampleRate, channels: capture.channelCount })
-    : decodeWav(bytes);
+  const container = capture.format.container === 'raw-f32le' ? 'raw-f32le' : 'wav';
+  return decodeCapture(bytes, { container, sampleRate: capture.sampleRate, channels: capture.channelCount });
 }
 
 /**
@@ -22,9 +21,7 @@ export function judgeCapture(bytes: Uint8Array, capture: Capture, mask: MaskRevi
     const audio = decodeStoredCapture(bytes, capture);
     const spec = StimulusSpec.parse(capture.testCase.stimulus);
     const settings = AnalysisSettings.parse(capture.testCase.analysis);
-    const stimulus = generateStimulus(spec);
-    // Rigs play the 32-bit float WAV that the API serves: analyse against exactly that.
-    const reference = { sampleRate: stimulus.sampleRate, channels: stimulus.channels.map((c) => Float64Array.from(c, Math.fround)) };
+    const reference = stimulusAsPlayed(spec);
     const document = MaskDocument.parse({ checks: mask.checks });
     const evaluation = evaluateMask(
       {

@@ -24,6 +24,9 @@ process.env.AWS_SDK_JS_NODE_VERSION_SUPPORT_WARNING_DISABLED ??= 'true';
 /** The object store could not be reached or refused the request; retry later. */
 export class ObjectStoreUnavailableError extends Error {}
 
+/** The object does not exist (deleted, or never stored). */
+export class ObjectMissingError extends Error {}
+
 /** Capture bytes in S3-compatible storage; keys are chosen by the caller. */
 export class ObjectStore {
   private readonly client: S3Client;
@@ -58,9 +61,13 @@ export class ObjectStore {
     );
   }
 
+  /** @throws ObjectMissingError when there is no such object; ObjectStoreUnavailableError when the store is down */
   async get(key: string): Promise<Buffer> {
     return this.wrap(async () => {
-      const res = await this.client.send(new GetObjectCommand({ Bucket: this.config.bucket, Key: key }));
+      const res = await this.client.send(new GetObjectCommand({ Bucket: this.config.bucket, Key: key })).catch((error: unknown) => {
+        if (error instanceof S3ServiceException && (error.name === 'NoSuchKey' || error.$metadata.httpStatusCode === 404)) throw new ObjectMissingError(`no object ${key}`);
+        throw error;
+      });
       const chunks: Buffer[] = [];
       for await (const chunk of res.Body as Readable) chunks.push(Buffer.from(chunk as Uint8Array));
       return Buffer.concat(chunks);
@@ -87,6 +94,7 @@ export class ObjectStore {
     try {
       return await fn();
     } catch (error) {
+      if (error instanceof ObjectMissingError) throw error;
       // Service errors with a 4xx are ours to see; network failures and 5xx mean "try later".
       if (error instanceof S3ServiceException && (error.$metadata.httpStatusCode ?? 500) < 500) throw error;
       throw new ObjectStoreUnavailableError(`object store unavailable: ${error instanceof Error ? error.message : String(error)}`);

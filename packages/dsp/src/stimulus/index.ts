@@ -9,3 +9,4 @@ export { multitoneWave, randomPhases, schroederPhases, toneFrequencies } from '.
 export { exponentialSweep, farinaInverseFilter, sweepFrequencyAt } from './sweep.js';
 export { scaleToRms, whiteNoise } from './white-noise.js';
 export { pinkNoise, pinkingSections, PINK_LOWEST_POLE_HZ } from './pink-noise.js';
+export { stimulusAsPlayed } from './stimulus-as-played.js';

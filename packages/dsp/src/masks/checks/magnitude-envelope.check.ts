@@ -11,6 +11,9 @@ export interface FailingRegion {
   toHz: number;
   /** Most negative margin inside the run, dB. */
   worstMarginDb: number;
+  /** Where that margin occurs, Hz, and the measured value there (dB or dBFS). */
+  worstHz: number;
+  worstDb: number;
 }
 
 /** The measured curve against an envelope's limits, point by point. */
@@ -63,9 +66,13 @@ export function compareEnvelope(ctx: MaskContext, channel: number, check: Magnit
     if (value < 0) {
       if (open) {
         open.toHz = hz;
-        open.worstMarginDb = Math.min(open.worstMarginDb, value);
+        if (value < open.worstMarginDb) {
+          open.worstMarginDb = value;
+          open.worstHz = hz;
+          open.worstDb = points.db[i] as number;
+        }
       } else {
-        open = { fromHz: hz, toHz: hz, worstMarginDb: value };
+        open = { fromHz: hz, toHz: hz, worstMarginDb: value, worstHz: hz, worstDb: points.db[i] as number };
         failingRegions.push(open);
       }
     } else open = null;

@@ -1,0 +1,216 @@
+import type { EntityManager } from '@mikro-orm/postgresql';
+import { AnalysisSettings, MaskCheck, StimulusSpec, type AudioKind, type CaptureDetail, type CapturePlot, type MagnitudeEnvelopeCheck, type PlotQuery } from '@earmark/contracts';
+import { Capture, MaskRevision, ObjectMissingError, ObjectStoreUnavailableError, Verdict, type ObjectStore, type Project } from '@earmark/db';
+import {
+  ENGINE_VERSION,
+  decodeCapture,
+  encodeWav,
+  estimateLatency,
+  estimateTransferFunction,
+  groupDelayFromPhase,
+  maskPlotData,
+  residualForListening,
+  stimulusAsPlayed,
+  unwrapPhase,
+  type DecodedAudio,
+} from '@earmark/dsp';
+import { NotFoundError, ServiceUnavailableError } from '../errors.js';
+import { buildSummary } from './builds-query.service.js';
+import { presentCaptures } from './capture-presenter.js';
+import type { FindingsService } from './findings.service.js';
+import type { Links } from './links.js';
+
+type LoadedCapture = Capture;
+
+/** Capture page data: details, decimated plot data and audio for listening. */
+export class CaptureViewService {
+  constructor(
+    private readonly objectStore: ObjectStore,
+    private readonly findings: FindingsService,
+    private readonly links: Links,
+  ) {}
+
+  async load(em: EntityManager, project: Project, id: string): Promise<LoadedCapture> {
+    const capture = await em.findOne(Capture, { id, project }, { populate: ['project', 'build', 'testCase', 'target'] });
+    if (!capture) throw new NotFoundError(`There is no capture ${id} in ${project.key}.`);
+    return capture;
+  }
+
+  /** The mask the capture was judged against (its newest verdict's revision). */
+  private async judgedMask(em: EntityManager, capture: Capture): Promise<MaskRevision | null> {
+    const verdict = await em.findOne(Verdict, { capture }, { populate: ['maskRevision'], orderBy: { createdAt: 'desc' } });
+    return verdict?.maskRevision ?? null;
+  }
+
+  private async lastPassing(em: EntityManager, capture: Capture): Promise<CaptureDetail['lastPassing']> {
+    const rows = await em.getConnection().execute<{ id: string; sha: string; created_at: Date }[]>(
+      `select c.id, b.sha, c.created_at from capture c join build b on b.id = c.build_id
+        where c.test_case_id = ? and c.target_id = ? and b.created_at < ? and c.status = 'done'
+          and (select v.outcome from verdict v where v.capture_id = c.id order by v.created_at desc limit 1) = 'pass'
+        order by b.created_at desc limit 1`,
+      [capture.testCase.id, capture.target.id, capture.build.createdAt],
+    );
+    const row = rows[0];
+    return row ? { captureId: row.id, buildSha: row.sha, createdAt: new Date(row.created_at).toISOString() } : null;
+  }
+
+  async detail(em: EntityManager, project: Project, id: string, me: Parameters<FindingsService['list']>[3]): Promise<CaptureDetail> {
+    const capture = await this.load(em, project, id);
+    const [dto] = await presentCaptures(em, [capture], this.links);
+    const mask = await this.judgedMask(em, capture);
+    const findings = await this.findings.list(em, project, { page: 1, pageSize: 200, captureId: capture.id }, me);
+    return {
+      capture: dto!,
+      testCase: { key: capture.testCase.key, name: capture.testCase.name, stimulusKind: String(capture.testCase.stimulus.kind ?? '') },
+      target: { key: capture.target.key, name: capture.target.name },
+      build: await buildSummary(em, project, capture.build.id),
+      mask: mask ? { id: mask.id, revision: mask.revision, checks: mask.checks.map((c) => MaskCheck.parse(c)) } : null,
+      findings: findings.items,
+      lastPassing: await this.lastPassing(em, capture),
+    };
+  }
+
+  private async audioOf(capture: Capture): Promise<DecodedAudio> {
+    const bytes = await this.objectStore.get(capture.objectKey).catch((error: unknown) => {
+      if (error instanceof ObjectMissingError) throw new NotFoundError(`The stored bytes of capture ${capture.id} are missing.`);
+      if (error instanceof ObjectStoreUnavailableError) throw new ServiceUnavailableError('Capture storage is unavailable right now; try again shortly.');
+      throw error;
+    });
+    const container = capture.format.container === 'raw-f32le' ? 'raw-f32le' : 'wav';
+    return decodeCapture(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength), { container, sampleRate: capture.sampleRate, channels: capture.channelCount });
+  }
+
+  async plot(em: EntityManager, project: Project, id: string, q: PlotQuery): Promise<CapturePlot> {
+    const capture = await this.load(em, project, id);
+    const audio = await this.audioOf(capture);
+    const spec = StimulusSpec.parse(capture.testCase.stimulus);
+    const settings = AnalysisSettings.parse(capture.testCase.analysis);
+    const hasSignal = spec.kind !== 'silence';
+    const reference = hasSignal ? stimulusAsPlayed(spec) : undefined;
+    const channel = Math.min(q.channel ?? capture.testCase.channelMap[0] ?? 0, audio.channels.length - 1);
+    const mask = await this.judgedMask(em, capture);
+    const envelope = (mask?.checks ?? []).map((c) => MaskCheck.parse(c)).find((c): c is MagnitudeEnvelopeCheck => c.kind === 'magnitude-envelope') ?? null;
+    const nyquist = audio.sampleRate / 2;
+    // Without an envelope check, draw the plain spectrum over the audio band (a limit far out of view).
+    const check: MagnitudeEnvelopeCheck =
+      envelope ??
+      MaskCheck.parse({ id: 'spectrum', kind: 'magnitude-envelope', measure: reference ? 'transfer' : 'level', upper: [{ hz: 20, db: 400 }, { hz: Math.min(20000, nyquist * 0.98), db: 400 }] }) as MagnitudeEnvelopeCheck;
+    const transferMethod = settings.transferMethod ?? (spec.kind === 'sweep' ? 'deconvolution' : 'h1');
+    const input = { capture: audio, ...(reference ? { reference } : {}), transferMethod } as const;
+    const data = maskPlotData(input, check, { columns: q.columns, channel });
+    const series = (d: typeof data) => ({ hz: d.hz, min: d.measuredMin, max: d.measuredMax });
+
+    let overlay: CapturePlot['overlay'] = null;
+    const passing = q.overlay === 'last-passing' ? await this.lastPassing(em, capture) : null;
+    if (passing) {
+      const other = await this.load(em, project, passing.captureId);
+      const otherData = maskPlotData({ ...input, capture: await this.audioOf(other) }, check, { columns: q.columns, channel: Math.min(channel, other.channelCount - 1) });
+      overlay = { captureId: other.id, buildSha: passing.buildSha, spectrum: series(otherData) };
+    }
+
+    let worst: CapturePlot['worst'] = null;
+    for (const r of data.failingRegions) if (!worst || r.worstMarginDb < worst.margin) worst = { hz: r.worstHz, db: r.worstDb, margin: r.worstMarginDb };
+    return {
+      channel,
+      checkId: envelope ? envelope.id : null,
+      unit: data.unit,
+      spectrum: series(data),
+      upper: envelope ? data.upper : null,
+      lower: envelope ? data.lower : null,
+      failingRegions: data.failingRegions.map((r) => ({ fromHz: r.fromHz, toHz: r.toHz, worstHz: r.worstHz, worstMargin: r.worstMarginDb })),
+      worst,
+      overlay,
+      ...(reference ? phaseAndDelay(reference.channels[0]!, audio.channels[channel]!, audio.sampleRate, transferMethod, q.columns) : { phase: null, groupDelay: null }),
+      waveform: waveformColumns(audio.channels[channel]!, audio.sampleRate, q.columns),
+      engineVersion: ENGINE_VERSION,
+    };
+  }
+
+  /** WAV (32-bit float) of the capture, its stimulus, or the residual: what the firmware changed. */
+  async audio(em: EntityManager, project: Project, id: string, kind: AudioKind): Promise<Uint8Array> {
+    const capture = await this.load(em, project, id);
+    const spec = StimulusSpec.parse(capture.testCase.stimulus);
+    if (kind === 'stimulus') {
+      const s = stimulusAsPlayed(spec);
+      return encodeWav(s.channels, s.sampleRate, { encoding: 'float', bitsPerSample: 32 });
+    }
+    const audio = await this.audioOf(capture);
+    if (kind === 'capture') return encodeWav(audio.channels, audio.sampleRate, { encoding: 'float', bitsPerSample: 32 });
+    const reference = spec.kind === 'silence' ? null : stimulusAsPlayed(spec).channels[0]!;
+    const residual = audio.channels.map((x) => residualOf(x, reference, audio.sampleRate, spec.kind));
+    return encodeWav(residual, audio.sampleRate, { encoding: 'float', bitsPerSample: 32 });
+  }
+}
+
+/**
+ * The residual for listening. Tones: what remains after removing the fundamental and its
+ * harmonics. Other stimuli: the capture minus the latency-aligned, gain-matched stimulus,
+ * so what is heard is what the firmware added or changed. Band-limited to the audio band.
+ */
+function residualOf(x: Float64Array, reference: Float64Array | null, sampleRate: number, kind: string): Float64Array {
+  if (!reference || kind === 'sine') return residualForListening(x, sampleRate, { removeHarmonics: kind === 'sine' });
+  const lag = Math.max(0, estimateLatency(reference, x));
+  let num = 0;
+  let den = 0;
+  for (let i = 0; i + lag < x.length && i < reference.length; i++) {
+    num += (x[i + lag] as number) * (reference[i] as number);
+    den += (reference[i] as number) ** 2;
+  }
+  const gain = den > 0 ? num / den : 0;
+  const diff = Float64Array.from(x);
+  for (let i = 0; i + lag < x.length && i < reference.length; i++) diff[i + lag] = (diff[i + lag] as number) - gain * (reference[i] as number);
+  return residualForListening(diff, sampleRate, { removeHarmonics: false });
+}
+
+/** Unwrapped phase (degrees) and group delay (ms) of the transfer function, decimated to log columns. */
+function phaseAndDelay(reference: Float64Array, capture: Float64Array, sampleRate: number, method: 'h1' | 'deconvolution', columns: number) {
+  const tf = estimateTransferFunction(reference, capture, sampleRate, { method });
+  const bins = tf.re.length;
+  const hz: number[] = [];
+  const phaseRaw: number[] = [];
+  for (let k = 1; k < bins; k++) {
+    if (!tf.valid[k]) continue;
+    hz.push(k * tf.binHz);
+    phaseRaw.push(Math.atan2(tf.im[k] as number, tf.re[k] as number));
+  }
+  if (hz.length < 2) return { phase: null, groupDelay: null };
+  const unwrapped = unwrapPhase(Float64Array.from(phaseRaw));
+  const delay = groupDelayFromPhase(Float64Array.from(hz), unwrapped);
+  // Pick one point per log-spaced column (the first inside it): phase is smooth, so no min/max needed.
+  const lo = Math.max(hz[0]!, 10);
+  const hi = hz[hz.length - 1]!;
+  const step = Math.log(hi / lo) / columns;
+  const outHz: number[] = [];
+  const deg: number[] = [];
+  const ms: number[] = [];
+  let next = lo;
+  for (let i = 0; i < hz.length; i++) {
+    if (hz[i]! < next) continue;
+    outHz.push(hz[i]!);
+    deg.push(((unwrapped[i] as number) * 180) / Math.PI);
+    ms.push((delay[i] as number) * 1000);
+    next = hz[i]! * Math.exp(step);
+  }
+  return { phase: { hz: outHz, deg }, groupDelay: { hz: outHz, ms } };
+}
+
+/** Min/max of the waveform per time column. */
+function waveformColumns(x: Float64Array, sampleRate: number, columns: number) {
+  const per = Math.max(1, Math.ceil(x.length / columns));
+  const seconds: number[] = [];
+  const min: number[] = [];
+  const max: number[] = [];
+  for (let start = 0; start < x.length; start += per) {
+    let lo = Infinity;
+    let hi = -Infinity;
+    for (let i = start; i < Math.min(x.length, start + per); i++) {
+      const v = x[i] as number;
+      if (v < lo) lo = v;
+      if (v > hi) hi = v;
+    }
+    seconds.push(start / sampleRate);
+    min.push(lo);
+    max.push(hi);
+  }
+  return { seconds, min, max };
+}

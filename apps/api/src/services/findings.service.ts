@@ -1,0 +1,132 @@
+import type { EntityManager } from '@mikro-orm/postgresql';
+import type { BulkUpdateFindingsRequest, CommentRow, FindingRow, FindingsPage, FindingsQuery, UpdateFindingRequest } from '@earmark/contracts';
+import { Comment, Finding, Membership, User, type Project } from '@earmark/db';
+import { NotFoundError, ValidationError } from '../errors.js';
+import { recordAudit } from './audit.service.js';
+
+interface FindingSql {
+  id: string;
+  title: string;
+  check_id: string;
+  state: FindingRow['state'];
+  test_case: string;
+  target: string;
+  build_sha: string;
+  capture_id: string;
+  assignee_id: string | null;
+  assignee_name: string | null;
+  assignee_email: string | null;
+  margin: number | null;
+  unit: string | null;
+  worst_hz: number | null;
+  comments: string;
+  created_at: Date;
+  updated_at: Date;
+}
+
+const SELECT = `
+  select f.id, f.title, f.check_id, f.state, tc.key as test_case, t.key as target, b.sha as build_sha, c.id as capture_id,
+         u.id as assignee_id, u.display_name as assignee_name, u.email as assignee_email,
+         cr.margin, cr.details->>'unit' as unit, cr.worst_hz,
+         (select count(*) from comment m where m.finding_id = f.id) as comments,
+         f.created_at, f.updated_at
+    from finding f
+    join capture c on c.id = f.capture_id
+    join build b on b.id = c.build_id
+    join test_case tc on tc.id = c.test_case_id
+    join target t on t.id = c.target_id
+    left join app_user u on u.id = f.assignee_id
+    left join check_result cr on cr.id = f.check_result_id`;
+
+const toRow = (r: FindingSql): FindingRow => ({
+  id: r.id,
+  title: r.title,
+  checkId: r.check_id,
+  state: r.state,
+  testCase: r.test_case,
+  target: r.target,
+  buildSha: r.build_sha,
+  captureId: r.capture_id,
+  assignee: r.assignee_id ? { id: r.assignee_id, displayName: r.assignee_name ?? '', email: r.assignee_email ?? '' } : null,
+  margin: r.margin,
+  unit: r.unit,
+  worstHz: r.worst_hz,
+  commentCount: Number(r.comments),
+  createdAt: new Date(r.created_at).toISOString(),
+  updatedAt: new Date(r.updated_at).toISOString(),
+});
+
+/** The findings queue: filtering, triage (assignee, state), bulk changes and comments. */
+export class FindingsService {
+  async list(em: EntityManager, project: Project, q: FindingsQuery, me: User): Promise<FindingsPage> {
+    const where = ['f.project_id = ?'];
+    const params: unknown[] = [project.id];
+    if (q.state === 'active') where.push(`f.state in ('open', 'investigating')`);
+    else if (q.state) (where.push('f.state = ?'), params.push(q.state));
+    if (q.assignee === 'none') where.push('f.assignee_id is null');
+    else if (q.assignee) (where.push('f.assignee_id::text = ?'), params.push(q.assignee === 'me' ? me.id : q.assignee));
+    if (q.testCase) (where.push('tc.key = ?'), params.push(q.testCase));
+    if (q.target) (where.push('t.key = ?'), params.push(q.target));
+    if (q.captureId) (where.push('c.id = ?'), params.push(q.captureId));
+    const conn = em.getConnection();
+    const filter = where.join(' and ');
+    const [count] = await conn.execute<{ n: string }[]>(
+      `select count(*) as n from finding f join capture c on c.id = f.capture_id join test_case tc on tc.id = c.test_case_id join target t on t.id = c.target_id where ${filter}`,
+      params,
+    );
+    const rows = await conn.execute<FindingSql[]>(`${SELECT} where ${filter} order by f.updated_at desc limit ? offset ?`, [...params, q.pageSize, (q.page - 1) * q.pageSize]);
+    return { items: rows.map(toRow), total: Number(count?.n ?? 0), page: q.page, pageSize: q.pageSize };
+  }
+
+  async rows(em: EntityManager, ids: string[]): Promise<FindingRow[]> {
+    if (ids.length === 0) return [];
+    const rows = await em.getConnection().execute<FindingSql[]>(`${SELECT} where f.id in (${ids.map(() => '?').join(',')}) order by f.updated_at desc`, ids);
+    return rows.map(toRow);
+  }
+
+  /** @throws NotFoundError for a finding of another project; ValidationError for an assignee who is no member. */
+  async update(em: EntityManager, project: Project, ids: string[], change: UpdateFindingRequest, actor: User): Promise<FindingRow[]> {
+    const findings = await em.find(Finding, { id: { $in: ids }, project });
+    if (findings.length !== new Set(ids).size) throw new NotFoundError(`Some of these findings do not exist in ${project.key}.`);
+    let assignee: User | null | undefined;
+    if (change.assigneeId !== undefined) {
+      assignee = change.assigneeId === null ? null : await this.member(em, project, change.assigneeId);
+    }
+    for (const f of findings) {
+      const before = { state: f.state, assignee: f.assignee?.id ?? null };
+      if (change.state) f.state = change.state;
+      if (assignee !== undefined) f.assignee = assignee;
+      f.updatedAt = new Date();
+      recordAudit(em, { actor: `user:${actor.email}`, action: 'finding.update', subject: `finding:${f.id}`, project, details: { before, after: { state: f.state, assignee: f.assignee?.id ?? null } } });
+    }
+    await em.flush();
+    return this.rows(em, findings.map((f) => f.id));
+  }
+
+  private async member(em: EntityManager, project: Project, userId: string): Promise<User> {
+    const membership = await em.findOne(Membership, { project, user: userId }, { populate: ['user'] });
+    if (membership) return membership.user;
+    const admin = await em.findOne(User, { id: userId, isAdmin: true });
+    if (admin) return admin;
+    throw new ValidationError(`That user is not a member of ${project.key}.`, [{ path: 'body.assigneeId', message: 'not a member of the project' }]);
+  }
+
+  async comments(em: EntityManager, project: Project, findingId: string): Promise<CommentRow[]> {
+    const finding = await em.findOne(Finding, { id: findingId, project });
+    if (!finding) throw new NotFoundError(`There is no finding ${findingId} in ${project.key}.`);
+    const comments = await em.find(Comment, { finding }, { populate: ['author'], orderBy: { createdAt: 'asc' } });
+    return comments.map((c) => ({ id: c.id, author: { id: c.author.id, displayName: c.author.displayName }, body: c.body, createdAt: c.createdAt.toISOString() }));
+  }
+
+  async addComment(em: EntityManager, project: Project, findingId: string, body: string, author: User): Promise<CommentRow> {
+    const finding = await em.findOne(Finding, { id: findingId, project });
+    if (!finding) throw new NotFoundError(`There is no finding ${findingId} in ${project.key}.`);
+    const comment = em.create(Comment, { finding, author, body });
+    finding.updatedAt = new Date();
+    recordAudit(em, { actor: `user:${author.email}`, action: 'finding.comment', subject: `finding:${finding.id}`, project });
+    await em.flush();
+    return { id: comment.id, author: { id: author.id, displayName: author.displayName }, body: comment.body, createdAt: comment.createdAt.toISOString() };
+  }
+}
+
+export type { BulkUpdateFindingsRequest };
