@@ -152,7 +152,7 @@ export const CapturePlot = z.object({
   worst: z.object({ hz: z.number(), db: z.number(), margin: z.number() }).nullable(),
   /** The same curve for the last passing capture, when asked for and available. */
   overlay: z.object({ captureId: z.string(), buildSha: z.string(), spectrum: Series }).nullable(),
-  /** Unwrapped phase (degrees) and group delay (ms) of the transfer function; null without a stimulus. */
+  /** Unwrapped phase (degrees, bulk latency removed) and group delay (ms, latency included) of the transfer function; null without a stimulus. */
   phase: z.object({ hz: z.array(z.number()), deg: z.array(z.number()) }).nullable(),
   groupDelay: z.object({ hz: z.array(z.number()), ms: z.array(z.number()) }).nullable(),
   waveform: z.object({ seconds: z.array(z.number()), min: z.array(z.number()), max: z.array(z.number()) }),

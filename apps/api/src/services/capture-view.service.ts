@@ -162,9 +162,18 @@ function residualOf(x: Float64Array, reference: Float64Array | null, sampleRate:
   return residualForListening(diff, sampleRate, { removeHarmonics: false });
 }
 
-/** Unwrapped phase (degrees) and group delay (ms) of the transfer function, decimated to log columns. */
+/**
+ * Unwrapped phase (degrees, with the bulk latency removed so the shape is readable) and group
+ * delay (ms, latency included) of the transfer function, decimated to log-spaced columns.
+ */
 function phaseAndDelay(reference: Float64Array, capture: Float64Array, sampleRate: number, method: 'h1' | 'deconvolution', columns: number) {
-  const tf = estimateTransferFunction(reference, capture, sampleRate, { method });
+  const latency = estimateLatency(reference, capture);
+  const aligned = new Float64Array(reference.length);
+  for (let i = 0; i < reference.length; i++) {
+    const j = i + latency;
+    aligned[i] = j >= 0 && j < capture.length ? (capture[j] as number) : 0;
+  }
+  const tf = estimateTransferFunction(reference, aligned, sampleRate, { method });
   const bins = tf.re.length;
   const hz: number[] = [];
   const phaseRaw: number[] = [];
@@ -188,7 +197,7 @@ function phaseAndDelay(reference: Float64Array, capture: Float64Array, sampleRat
     if (hz[i]! < next) continue;
     outHz.push(hz[i]!);
     deg.push(((unwrapped[i] as number) * 180) / Math.PI);
-    ms.push((delay[i] as number) * 1000);
+    ms.push(((delay[i] as number) + latency / sampleRate) * 1000);
     next = hz[i]! * Math.exp(step);
   }
   return { phase: { hz: outHz, deg }, groupDelay: { hz: outHz, ms } };
