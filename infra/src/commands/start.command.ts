@@ -3,6 +3,7 @@ import { DEMO_PASSWORD, demoUsers } from '@earmark/db';
 import { startDevDatabase } from '../dev-database.js';
 import { startS3Fake } from '../fakes/s3-fake.js';
 import { startSmtpFake } from '../fakes/smtp-fake.js';
+import { seedDemoBuilds } from '../demo-builds.js';
 import { seedDemoScenario } from '../demo.js';
 import { dataDir, repoRoot } from '../paths.js';
 import { assertPortFree, waitForPort } from '../ports.js';
@@ -73,6 +74,11 @@ export async function startCommand(): Promise<number> {
   } catch (error) {
     await shutdown();
     throw error;
+  }
+  if (demoToken && !shuttingDown) {
+    await seedDemoBuilds(`http://127.0.0.1:${settings.EARMARK_API_PORT}`, demoToken, log).catch((error: unknown) =>
+      log(`could not send the demo builds: ${error instanceof Error ? error.message : String(error)}`),
+    );
   }
   if (!shuttingDown) printWelcome(settings.EARMARK_API_PORT, cluster.port, demoToken, smtp.inboxUrl, s3.endpoint);
   await done;

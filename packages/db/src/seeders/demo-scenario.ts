@@ -18,7 +18,7 @@ export const demoProjects = [
     description: 'True-wireless earbuds: ANC, adaptive EQ and a voice pickup path.',
     targets: [
       { key: 'evt2-48k', name: 'EVT2 board, 48 kHz', sampleRate: 48000 },
-      { key: 'dvt1-96k', name: 'DVT1 board, 96 kHz', sampleRate: 96000 },
+      { key: 'dvt1-48k', name: 'DVT1 board, 48 kHz', sampleRate: 48000 },
     ],
     testCases: [
       {
@@ -42,6 +42,12 @@ export const demoProjects = [
           { id: 'thd', kind: 'distortion', metric: 'thd-percent', max: 0.05 },
           { id: 'thdn', kind: 'distortion', metric: 'thdn-db', max: -70 },
         ],
+      },
+      {
+        key: 'voice.uplink.sweep',
+        name: 'Voice uplink, exponential sweep (mask not yet agreed)',
+        stimulus: { kind: 'sweep', sampleRate: 48000, seconds: 2, levelDbfs: -18, from: 100, to: 8000, silenceSeconds: 0.3 },
+        mask: null,
       },
       {
         key: 'noise.idle',

@@ -34,6 +34,7 @@ export async function seedDemo(em: EntityManager, ciToken: DemoCiToken): Promise
       for (const c of p.testCases) {
         const testCase = tx.create(TestCase, { project, key: c.key, name: c.name, stimulus: StimulusSpec.parse(c.stimulus), channelMap: [] });
         // Revision 1 of each mask: drafted by the engineer, approved by the QA manager.
+        if (!c.mask) continue;
         tx.create(MaskRevision, {
           testCase,
           revision: 1,
