@@ -3,12 +3,27 @@ import path from 'node:path';
 import { repoRoot } from '../paths.js';
 import { runInherited } from '../shell.js';
 
-/** `npm run bench`: the engine benchmark (speed and memory against reference libraries). */
+const BENCHES = {
+  /** The engine: FFT, full analysis and memory against numpy/scipy. */
+  dsp: { script: 'packages/dsp/bench/run.ts', cwd: 'packages/dsp' },
+  /** The builds API over 100k captures. */
+  api: { script: 'tests/bench/builds-api.bench.ts', cwd: 'tests' },
+} as const;
+
+/** `npm run bench [-- dsp|api]`: speed and memory targets, measured (docs/performance.md). */
 export async function benchCommand(args: string[]): Promise<number> {
-  const script = path.join(repoRoot, 'packages', 'dsp', 'bench', 'run.ts');
-  if (!fs.existsSync(script)) {
-    console.error('earmark: no benchmark script at packages/dsp/bench/run.ts');
-    return 2;
+  const [which, ...rest] = args;
+  const selected = which && which in BENCHES ? [which as keyof typeof BENCHES] : (Object.keys(BENCHES) as (keyof typeof BENCHES)[]);
+  for (const name of selected) {
+    const bench = BENCHES[name];
+    const script = path.join(repoRoot, bench.script);
+    if (!fs.existsSync(script)) {
+      console.error(`earmark: no benchmark script at ${bench.script}`);
+      return 2;
+    }
+    console.log(`\n== bench: ${name} ==`);
+    const code = await runInherited(process.execPath, ['--import', 'tsx', script, ...(which === name ? rest : [])], { cwd: path.join(repoRoot, bench.cwd) });
+    if (code !== 0) return code;
   }
-  return runInherited(process.execPath, ['--import', 'tsx', script, ...args], { cwd: path.join(repoRoot, 'packages', 'dsp') });
+  return 0;
 }

@@ -30,5 +30,10 @@ export const BuildSchema = new EntitySchema<Build, BaseEntity>({
   },
   uniques: [{ properties: ['project', 'sha'] }],
   // The builds table pages by project, newest first.
-  indexes: [{ name: 'build_project_created_at_idx', expression: 'create index "build_project_created_at_idx" on "build" ("project_id", "created_at" desc)' }],
+  indexes: [
+    { name: 'build_project_created_at_idx', expression: 'create index "build_project_created_at_idx" on "build" ("project_id", "created_at" desc)' },
+    // The builds table's filters: by branch and by status, newest first.
+    { name: 'build_project_branch_created_at_idx', expression: 'create index "build_project_branch_created_at_idx" on "build" ("project_id", "branch", "created_at" desc)' },
+    { name: 'build_project_status_created_at_idx', expression: 'create index "build_project_status_created_at_idx" on "build" ("project_id", "status", "created_at" desc)' },
+  ],
 });

@@ -45,4 +45,6 @@ export const CaptureSchema = new EntitySchema<Capture, BaseEntity>({
   },
   // An Idempotency-Key names one capture per project, never a duplicate.
   uniques: [{ properties: ['project', 'idempotencyKey'] }],
+  // The builds table's target filter, and "last passing capture" look-ups.
+  indexes: [{ name: 'capture_target_build_idx', properties: ['target', 'build'] }, { name: 'capture_test_case_target_idx', properties: ['testCase', 'target'] }],
 });
