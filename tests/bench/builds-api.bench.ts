@@ -9,7 +9,7 @@ import { ObjectStore, TEST_PASSWORD, initOrm, seedRoles, startBoss } from '@earm
 import { startTestCluster } from '@earmark/infra/test-cluster';
 
 const BUILDS = 20_000;
-const CAPTURES_PER_BUILD = 5; // 100,000 captures, each with a verdict
+const TARGETS = 5; // one capture per target and build: 100,000 captures, each with a verdict
 const ROUNDS = 60;
 
 const { cluster, templateDb } = await startTestCluster();
@@ -25,7 +25,7 @@ try {
   await db.connect();
   const t0 = performance.now();
   // Bulk history in SQL: builds over the last ~400 days on three branches, five captures each.
-  await db.query(`insert into target (id, created_at, project_id, key, name) select gen_random_uuid(), now(), $1, 'board-' || g, 'Board ' || g from generate_series(1, 5) g`, [fixture.project.id]);
+  await db.query(`insert into target (id, created_at, project_id, key, name) select gen_random_uuid(), now(), $1, 'board-' || g, 'Board ' || g from generate_series(1, $2::int) g`, [fixture.project.id, TARGETS]);
   await db.query(`insert into test_case (id, created_at, updated_at, project_id, key, name, stimulus, analysis, channel_map)
                   values (gen_random_uuid(), now(), now(), $1, 'eq.sweep', 'EQ', '{"kind":"silence","sampleRate":48000,"seconds":1}', '{}', '[]')`, [fixture.project.id]);
   await db.query(
