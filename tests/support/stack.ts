@@ -3,7 +3,7 @@ import type { AddressInfo } from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
 import { createApp, loadApiEnv } from '@earmark/api';
-import { ApiToken, ObjectStore, generateTokenSecret, initOrm, seedRoles, startBoss, type RoleFixture } from '@earmark/db';
+import { ApiToken, ObjectStore, generateTokenSecret, initOrm, seedDemo, seedRoles, startBoss, type RoleFixture } from '@earmark/db';
 import { createTestDatabase } from '@earmark/db/testing';
 import { startS3Fake, startSmtpFake, type S3Fake, type SmtpFake } from '@earmark/infra/fakes';
 import type { MikroORM } from '@mikro-orm/postgresql';
@@ -14,8 +14,9 @@ import { startWorkerProcess, type WorkerProcess } from './worker-process.js';
 export interface Stack {
   url: string;
   orm: MikroORM;
+  /** The role fixture (seed `roles`); not set for the demo seed. */
   fixture: RoleFixture;
-  /** A CI token of the fixture project with both scopes. */
+  /** A CI token of the fixture project (or of kestrel-buds for the demo) with both scopes. */
   ciToken: string;
   workerEnv: Record<string, string>;
   smtp: { inboxUrl: string; stop(): Promise<void>; restart(): Promise<void> };
@@ -27,10 +28,12 @@ export interface Stack {
  * Everything on loopback for one test file: its own database, the S3 and SMTP fakes,
  * the API in-process and (on demand) real worker processes.
  */
-export async function startStack(): Promise<Stack> {
+export async function startStack(opts: { seed?: 'roles' | 'demo' } = {}): Promise<Stack> {
   const db = await createTestDatabase();
   const orm = await initOrm({ url: db.url, poolMax: 6 });
-  const fixture = await seedRoles(orm.em.fork());
+  const secret = generateTokenSecret();
+  // `roles`: alpha-dsp with one user per role; `demo`: the Fernwick demo with its CI token.
+  const fixture = opts.seed === 'demo' ? await seedDemo(orm.em.fork(), secret).then(() => null as unknown as RoleFixture) : await seedRoles(orm.em.fork());
   const s3Dir = fs.mkdtempSync(path.join(os.tmpdir(), 'earmark-stack-s3-'));
   const s3: S3Fake = await startS3Fake({ port: 0, directory: s3Dir, bucket: 'earmark-captures' });
   const smtpPort = await freePort();
@@ -52,10 +55,11 @@ export async function startStack(): Promise<Stack> {
   await new Promise<void>((resolve) => server.once('listening', resolve));
   const url = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
 
-  const secret = generateTokenSecret();
-  const em = orm.em.fork();
-  em.create(ApiToken, { project: fixture.project.id, name: 'ci', prefix: secret.prefix, secretHash: secret.hash, scopes: ['submit-captures', 'read-verdicts'], createdBy: fixture.users.admin.id });
-  await em.flush();
+  if (opts.seed !== 'demo') {
+    const em = orm.em.fork();
+    em.create(ApiToken, { project: fixture.project.id, name: 'ci', prefix: secret.prefix, secretHash: secret.hash, scopes: ['submit-captures', 'read-verdicts'], createdBy: fixture.users.admin.id });
+    await em.flush();
+  }
 
   const workerEnv = {
     EARMARK_DATABASE_URL: db.url,

@@ -20,8 +20,9 @@ describe('projects page', () => {
     expect(rows.map((row) => row.getAttribute('data-project-key'))).toEqual(['heron-bar', 'kestrel-buds']);
 
     const kestrelRow = rows[1]!;
+    // A project opens on its builds table, where engineers start.
     expect(within(kestrelRow).getByRole('link', { name: 'Kestrel Buds' }).getAttribute('href')).toBe(
-      '/projects/kestrel-buds',
+      '/projects/kestrel-buds/builds',
     );
     expect(within(kestrelRow).getByText('kestrel-buds')).toBeTruthy();
     expect(within(kestrelRow).getByText('QA manager')).toBeTruthy();

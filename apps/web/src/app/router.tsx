@@ -3,8 +3,13 @@ import { createBrowserRouter, redirect, type RouteObject } from 'react-router';
 import { FullPageLoading } from '@/components/full-page-status';
 import { getMeQueryOptions } from '@/features/auth/api/get-me';
 import { paths } from '@/lib/paths';
+import { BuildRoute, buildLoader } from './routes/app/build';
+import { BuildsRoute, buildsLoader, buildsShouldRevalidate } from './routes/app/builds';
+import { CaptureRoute, captureLoader } from './routes/app/capture';
+import { FindingsRoute, findingsLoader, findingsShouldRevalidate } from './routes/app/findings';
 import { ProjectRoute, projectLoader } from './routes/app/project';
 import { ProjectsRoute, projectsLoader } from './routes/app/projects';
+import { TokensRoute, tokensLoader } from './routes/app/tokens';
 import { NotFoundRoute } from './routes/not-found';
 import { requireSession } from './routes/require-session';
 import { RootErrorBoundary, RouteErrorBoundary } from './routes/route-error';
@@ -43,6 +48,25 @@ export function createAppRoutes(queryClient: QueryClient): RouteObject[] {
           children: [
             { path: 'projects', loader: projectsLoader(queryClient), Component: ProjectsRoute },
             { path: 'projects/:projectKey', loader: projectLoader(queryClient), Component: ProjectRoute },
+            {
+              path: 'projects/:projectKey/builds',
+              loader: buildsLoader(queryClient),
+              shouldRevalidate: buildsShouldRevalidate,
+              Component: BuildsRoute,
+            },
+            { path: 'projects/:projectKey/builds/:sha', loader: buildLoader(queryClient), Component: BuildRoute },
+            {
+              path: 'projects/:projectKey/builds/:sha/captures/:captureId',
+              loader: captureLoader(queryClient),
+              Component: CaptureRoute,
+            },
+            {
+              path: 'projects/:projectKey/findings',
+              loader: findingsLoader(queryClient),
+              shouldRevalidate: findingsShouldRevalidate,
+              Component: FindingsRoute,
+            },
+            { path: 'projects/:projectKey/tokens', loader: tokensLoader(queryClient), Component: TokensRoute },
             { path: '*', Component: NotFoundRoute },
           ],
         },

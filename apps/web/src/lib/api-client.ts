@@ -119,3 +119,35 @@ async function refreshSession(tokens: SessionTokens): Promise<SessionTokens | nu
   sessionStore.set(renewed);
   return renewed;
 }
+
+/**
+ * Like apiRequest, for bodies that are not JSON (WAV audio, downloads): the same bearer
+ * token, the same single refresh on 401 and the same problem+json errors, but the body
+ * comes back as bytes for the caller to decode.
+ */
+export async function apiRequestBinary(
+  path: string,
+  options: { signal?: AbortSignal; accept?: string } = {},
+): Promise<ArrayBuffer> {
+  const accept = `${options.accept ?? 'application/octet-stream'}, ${PROBLEM_CONTENT_TYPE}`;
+  const fetchWith = async (accessToken: string | undefined): Promise<Response> => {
+    const headers = new Headers({ Accept: accept });
+    if (accessToken) headers.set('Authorization', `Bearer ${accessToken}`);
+    try {
+      return await fetch(path, { method: 'GET', headers, signal: options.signal, credentials: 'same-origin' });
+    } catch (cause) {
+      throw ApiError.network(cause);
+    }
+  };
+
+  const tokens = sessionStore.getTokens();
+  let response = await fetchWith(tokens?.accessToken);
+  if (response.status === 401 && tokens) {
+    const renewed = await renewAfter401(tokens);
+    if (!renewed) throw await sessionEnded(response);
+    response = await fetchWith(renewed.accessToken);
+    if (response.status === 401) throw await sessionEnded(response);
+  }
+  if (!response.ok) throw await ApiError.fromResponse(response);
+  return response.arrayBuffer();
+}

@@ -9,6 +9,15 @@ export const paths = {
   },
   projects: (): string => '/projects',
   project: (key: string): string => `/projects/${encodeURIComponent(key)}`,
+  /** The builds table; `search` is the table state (page, sort, filters) without the `?`. */
+  builds: (key: string, search?: string): string =>
+    `/projects/${encodeURIComponent(key)}/builds${search ? `?${search}` : ''}`,
+  build: (key: string, sha: string): string => `/projects/${encodeURIComponent(key)}/builds/${encodeURIComponent(sha)}`,
+  capture: (key: string, sha: string, captureId: string): string =>
+    `/projects/${encodeURIComponent(key)}/builds/${encodeURIComponent(sha)}/captures/${encodeURIComponent(captureId)}`,
+  findings: (key: string, search?: string): string =>
+    `/projects/${encodeURIComponent(key)}/findings${search ? `?${search}` : ''}`,
+  tokens: (key: string): string => `/projects/${encodeURIComponent(key)}/tokens`,
 } as const;
 
 /**

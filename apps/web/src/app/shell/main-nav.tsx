@@ -1,16 +1,18 @@
 import type { ReactNode } from 'react';
-import { NavLink } from 'react-router';
+import { NavLink, useMatch } from 'react-router';
+import { useProjectAbilities } from '@/lib/authorization';
 import { cn } from '@/lib/cn';
 import { paths } from '@/lib/paths';
 
-type NavItem = { label: string; to: string; icon: ReactNode };
+type NavItem = { label: string; to: string; icon: ReactNode; end?: boolean };
 
-// Only areas that exist are listed; builds, findings, masks, approvals, test cases and
-// admin join this list (and its sections) as their pages land.
+// Only areas that exist are listed; masks, approvals, test cases and admin join these
+// lists (and their sections) as their pages land.
 const workspaceItems: NavItem[] = [
   {
     label: 'Projects',
     to: paths.projects(),
+    end: true,
     icon: (
       <svg viewBox="0 0 16 16" aria-hidden="true" className="size-4">
         <path d="M2.5 4.5h4l1.2 1.5h5.8v6.5h-11Z" fill="none" stroke="currentColor" strokeWidth="1.4" strokeLinejoin="round" />
@@ -19,32 +21,105 @@ const workspaceItems: NavItem[] = [
   },
 ];
 
-export function MainNav() {
+function projectItems(projectKey: string, canAdminister: boolean): NavItem[] {
+  const items: NavItem[] = [
+    {
+      label: 'Overview',
+      to: paths.project(projectKey),
+      end: true,
+      icon: (
+        <svg viewBox="0 0 16 16" aria-hidden="true" className="size-4">
+          <rect x="2.5" y="2.5" width="4.5" height="4.5" rx="1" fill="none" stroke="currentColor" strokeWidth="1.4" />
+          <rect x="9" y="2.5" width="4.5" height="4.5" rx="1" fill="none" stroke="currentColor" strokeWidth="1.4" />
+          <rect x="2.5" y="9" width="11" height="4.5" rx="1" fill="none" stroke="currentColor" strokeWidth="1.4" />
+        </svg>
+      ),
+    },
+    {
+      label: 'Builds',
+      to: paths.builds(projectKey),
+      icon: (
+        <svg viewBox="0 0 16 16" aria-hidden="true" className="size-4">
+          <path d="M2.5 4h11M2.5 8h11M2.5 12h11" stroke="currentColor" strokeWidth="1.4" strokeLinecap="round" />
+          <circle cx="5" cy="8" r="1.6" fill="currentColor" />
+        </svg>
+      ),
+    },
+    {
+      label: 'Findings',
+      to: paths.findings(projectKey),
+      icon: (
+        <svg viewBox="0 0 16 16" aria-hidden="true" className="size-4">
+          <path d="M4 13.5V2.5h7.5l-1.8 3 1.8 3H4" fill="none" stroke="currentColor" strokeWidth="1.4" strokeLinejoin="round" />
+        </svg>
+      ),
+    },
+  ];
+  if (canAdminister) {
+    items.push({
+      label: 'API tokens',
+      to: paths.tokens(projectKey),
+      icon: (
+        <svg viewBox="0 0 16 16" aria-hidden="true" className="size-4">
+          <circle cx="5.5" cy="8" r="3" fill="none" stroke="currentColor" strokeWidth="1.4" />
+          <path d="M8.5 8h5M11.5 8v2.5M13.5 8v2" stroke="currentColor" strokeWidth="1.4" strokeLinecap="round" />
+        </svg>
+      ),
+    });
+  }
+  return items;
+}
+
+function NavList({ items }: { items: NavItem[] }) {
   return (
-    <nav aria-label="Main" className="flex min-w-0 items-center gap-1 md:block">
-      <p className="mb-2 hidden px-3 text-[11px] font-semibold uppercase tracking-[0.09em] text-ink-500 md:block">
-        Workspace
-      </p>
-      <ul className="flex gap-1 md:block md:space-y-0.5">
-        {workspaceItems.map((item) => (
-          <li key={item.to}>
-            <NavLink
-              to={item.to}
-              className={({ isActive }) =>
-                cn(
-                  'relative flex h-9 items-center gap-2.5 rounded-md px-3 text-sm font-medium transition-colors',
-                  isActive
-                    ? 'bg-white/[0.08] text-paper before:absolute before:inset-y-2 before:-left-3 before:hidden before:w-[3px] before:rounded-r before:bg-brass-400 md:before:block'
-                    : 'text-ink-300 hover:bg-white/[0.05] hover:text-paper',
-                )
-              }
-            >
-              {item.icon}
-              {item.label}
-            </NavLink>
-          </li>
-        ))}
-      </ul>
+    <ul className="flex gap-1 md:block md:space-y-0.5">
+      {items.map((item) => (
+        <li key={item.to} className="shrink-0">
+          <NavLink
+            to={item.to}
+            end={item.end}
+            className={({ isActive }) =>
+              cn(
+                'relative flex h-9 items-center gap-2.5 rounded-md px-3 text-sm font-medium whitespace-nowrap transition-colors',
+                isActive
+                  ? 'bg-white/[0.08] text-paper before:absolute before:inset-y-2 before:-left-3 before:hidden before:w-[3px] before:rounded-r before:bg-brass-400 md:before:block'
+                  : 'text-ink-300 hover:bg-white/[0.05] hover:text-paper',
+              )
+            }
+          >
+            {item.icon}
+            {item.label}
+          </NavLink>
+        </li>
+      ))}
+    </ul>
+  );
+}
+
+function SectionLabel({ children }: { children: ReactNode }) {
+  return (
+    <p className="mb-2 hidden truncate px-3 text-[11px] font-semibold uppercase tracking-[0.09em] text-ink-500 md:block">{children}</p>
+  );
+}
+
+export function MainNav() {
+  // Inside a project (its overview or any page under it) the project's own areas are listed too.
+  const match = useMatch('/projects/:projectKey/*');
+  const projectKey = match?.params.projectKey;
+  const { canAdminister } = useProjectAbilities(projectKey ?? '');
+
+  return (
+    <nav aria-label="Main" className="flex min-w-0 items-center gap-1 overflow-x-auto md:block md:overflow-visible">
+      <SectionLabel>Workspace</SectionLabel>
+      <NavList items={workspaceItems} />
+      {projectKey ? (
+        <div className="flex md:mt-6 md:block">
+          <SectionLabel>
+            Project · <span className="font-mono normal-case tracking-normal text-ink-400">{projectKey}</span>
+          </SectionLabel>
+          <NavList items={projectItems(projectKey, canAdminister)} />
+        </div>
+      ) : null}
     </nav>
   );
 }

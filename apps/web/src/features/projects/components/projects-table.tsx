@@ -34,7 +34,7 @@ const columns = [
     cell: ({ row }) => (
       <div className="min-w-[220px]">
         <Link
-          to={paths.project(row.original.key)}
+          to={paths.builds(row.original.key)}
           className="font-medium text-ink-950 underline-offset-4 hover:underline focus-visible:underline"
         >
           {row.original.name}
@@ -94,7 +94,7 @@ export function ProjectsTable({ projects }: { projects: Project[] }) {
   });
 
   return (
-    <div className="overflow-x-auto rounded-lg border border-line bg-paper-raised shadow-[0_1px_0_rgb(0_0_0/0.03)]">
+    <div className="relative overflow-x-auto rounded-lg border border-line bg-paper-raised shadow-[0_1px_0_rgb(0_0_0/0.03)]">
       <table className="w-full min-w-[760px] border-collapse text-sm">
         <thead>
           {table.getHeaderGroups().map((group) => (

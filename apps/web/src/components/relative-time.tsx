@@ -1,0 +1,13 @@
+import { formatDateTime, formatRelativeTime } from '@/lib/format-time';
+import { cn } from '@/lib/cn';
+
+/** "3 min ago" with the exact date and time on hover (and in the machine-readable attribute). */
+export function RelativeTime({ iso, className }: { iso: string; className?: string }) {
+  const absolute = formatDateTime(iso);
+  return (
+    <time dateTime={iso} title={absolute} className={cn('whitespace-nowrap', className)}>
+      {formatRelativeTime(iso)}
+      <span className="sr-only"> ({absolute})</span>
+    </time>
+  );
+}
