@@ -1,6 +1,6 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { AnalysisSettings, MaskCheck, StimulusSpec, type AudioKind, type CaptureDetail, type CapturePlot, type MagnitudeEnvelopeCheck, type PlotQuery } from '@earmark/contracts';
-import { Capture, MaskRevision, ObjectMissingError, ObjectStoreUnavailableError, Verdict, type ObjectStore, type Project } from '@earmark/db';
+import { Capture, ObjectMissingError, ObjectStoreUnavailableError, Verdict, type MaskRevision, type ObjectStore, type Project } from '@earmark/db';
 import {
   ENGINE_VERSION,
   decodeCapture,

@@ -61,13 +61,17 @@ export class FindingsService {
   async list(em: EntityManager, project: Project, q: FindingsQuery, me: User): Promise<FindingsPage> {
     const where = ['f.project_id = ?'];
     const params: unknown[] = [project.id];
-    if (q.state === 'active') where.push(`f.state in ('open', 'investigating')`);
-    else if (q.state) (where.push('f.state = ?'), params.push(q.state));
-    if (q.assignee === 'none') where.push('f.assignee_id is null');
-    else if (q.assignee) (where.push('f.assignee_id::text = ?'), params.push(q.assignee === 'me' ? me.id : q.assignee));
-    if (q.testCase) (where.push('tc.key = ?'), params.push(q.testCase));
-    if (q.target) (where.push('t.key = ?'), params.push(q.target));
-    if (q.captureId) (where.push('c.id = ?'), params.push(q.captureId));
+    const add = (clause: string, ...values: unknown[]) => {
+      where.push(clause);
+      params.push(...values);
+    };
+    if (q.state === 'active') add(`f.state in ('open', 'investigating')`);
+    else if (q.state) add('f.state = ?', q.state);
+    if (q.assignee === 'none') add('f.assignee_id is null');
+    else if (q.assignee) add('f.assignee_id::text = ?', q.assignee === 'me' ? me.id : q.assignee);
+    if (q.testCase) add('tc.key = ?', q.testCase);
+    if (q.target) add('t.key = ?', q.target);
+    if (q.captureId) add('c.id = ?', q.captureId);
     const conn = em.getConnection();
     const filter = where.join(' and ');
     const [count] = await conn.execute<{ n: string }[]>(
