@@ -58,7 +58,8 @@ export function MenuButton({
     if (!open) return;
     const items = () => Array.from(menuRef.current?.querySelectorAll<HTMLElement>('[role^="menuitem"]') ?? []);
     const current = items().find((item) => item.getAttribute('aria-checked') === 'true') ?? items()[0];
-    current?.focus();
+    // preventScroll: focusing must not scroll the page, which would close the menu again.
+    current?.focus({ preventScroll: true });
     const close = (returnFocus: boolean) => {
       setOpen(false);
       if (returnFocus) triggerRef.current?.focus();
@@ -78,19 +79,25 @@ export function MenuButton({
         close(event.key === 'Escape');
       } else if (event.key === 'ArrowDown') {
         event.preventDefault();
-        list[(index + 1) % list.length]?.focus();
+        list[(index + 1) % list.length]?.focus({ preventScroll: true });
       } else if (event.key === 'ArrowUp') {
         event.preventDefault();
-        list[(index - 1 + list.length) % list.length]?.focus();
+        list[(index - 1 + list.length) % list.length]?.focus({ preventScroll: true });
       } else if (event.key === 'Home') {
         event.preventDefault();
-        list[0]?.focus();
+        list[0]?.focus({ preventScroll: true });
       } else if (event.key === 'End') {
         event.preventDefault();
-        list[list.length - 1]?.focus();
+        list[list.length - 1]?.focus({ preventScroll: true });
       }
     };
-    const onViewportChange = () => close(false);
+    // Follow the trigger when the page scrolls or reflows (plots drawing late, scroll
+    // anchoring); close only once the trigger has left the viewport.
+    const onViewportChange = () => {
+      const rect = triggerRef.current?.getBoundingClientRect();
+      if (!rect || rect.bottom < 0 || rect.top > window.innerHeight) return close(false);
+      setPosition({ top: rect.bottom + 4, left: Math.max(8, Math.min(rect.left, window.innerWidth - 240 - 8)) });
+    };
     document.addEventListener('pointerdown', onPointerDown);
     document.addEventListener('keydown', onKeyDown, true);
     window.addEventListener('resize', onViewportChange);

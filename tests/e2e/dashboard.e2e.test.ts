@@ -1,0 +1,177 @@
+import { spawn } from 'node:child_process';
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { DEMO_PASSWORD } from '@earmark/db';
+import { encodeWav, stimulusAsPlayed } from '@earmark/dsp';
+import { StimulusSpec } from '@earmark/contracts';
+import { seedDemoBuilds } from '@earmark/infra/demo-builds';
+import type { Page } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { launchBrowser } from '../support/browser.js';
+import { startStack, type Stack } from '../support/stack.js';
+
+/**
+ * The dashboard in a real browser against the running stack (API, worker, PostgreSQL,
+ * S3 and SMTP fakes) with the demo history sent through the pipeline. Writes screenshots
+ * of the main screens to docs/screenshots/ and fails on any console error.
+ */
+const here = path.dirname(fileURLToPath(import.meta.url));
+const shots = path.resolve(here, '../../docs/screenshots');
+const cli = path.resolve(here, '../../apps/cli/bin/earmark.mjs');
+let stack: Stack;
+let browser: Awaited<ReturnType<typeof launchBrowser>>;
+const consoleErrors: string[] = [];
+
+async function pageAs(email: string): Promise<Page> {
+  const page = await browser.context.newPage();
+  page.on('console', (msg) => {
+    if (msg.type() === 'error') consoleErrors.push(`${email}: ${msg.text()}`);
+  });
+  page.on('pageerror', (error) => consoleErrors.push(`${email}: ${error.message}`));
+  await page.goto(`${stack.url}/`);
+  await page.evaluate(() => localStorage.clear());
+  await page.goto(`${stack.url}/sign-in`);
+  await page.getByLabel('Email').fill(email);
+  await page.getByLabel('Password').fill(DEMO_PASSWORD);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.getByRole('heading', { name: 'Projects' }).waitFor();
+  return page;
+}
+
+async function shot(page: Page, name: string) {
+  await page.waitForLoadState('networkidle');
+  await page.screenshot({ path: path.join(shots, `${name}.png`), fullPage: false });
+}
+
+function runCli(args: string[], env: Record<string, string>): Promise<{ code: number | null; out: string }> {
+  return new Promise((resolve) => {
+    const child = spawn(process.execPath, [cli, ...args], { env: { ...process.env, ...env }, stdio: ['ignore', 'pipe', 'pipe'] });
+    let out = '';
+    child.stdout.on('data', (c: Buffer) => (out += c.toString()));
+    child.stderr.on('data', (c: Buffer) => (out += c.toString()));
+    child.once('exit', (code) => resolve({ code, out }));
+  });
+}
+
+beforeAll(async () => {
+  fs.mkdirSync(shots, { recursive: true });
+  stack = await startStack({ seed: 'demo' });
+  await stack.startWorker({ EARMARK_WORKER_CONCURRENCY: '2' });
+  await seedDemoBuilds(stack.url, stack.ciToken, () => {});
+  // Wait until the worker has judged every demo capture.
+  for (const deadline = Date.now() + 90_000; ; ) {
+    const res = await fetch(`${stack.url}/api/v1/projects/kestrel-buds/builds?pageSize=50`, { headers: { authorization: `Bearer ${stack.ciToken}` } });
+    const page = (await res.json()) as { items: { status: string }[] };
+    if (page.items.length > 0 && page.items.every((b) => b.status !== 'pending' && b.status !== 'running')) break;
+    if (Date.now() > deadline) throw new Error('demo builds were not judged in time');
+    await new Promise((r) => setTimeout(r, 500));
+  }
+  browser = await launchBrowser();
+}, 180_000);
+
+afterAll(async () => {
+  await browser?.close();
+  await stack?.close();
+});
+
+describe('dashboard in the browser', () => {
+  it('signs in as each role and shows only what the role allows', async () => {
+    for (const [email, role] of [['admin@fernwick.test', 'admin'], ['qa@fernwick.test', 'qa'], ['engineer@fernwick.test', 'engineer'], ['viewer@fernwick.test', 'viewer']] as const) {
+      const page = await pageAs(email);
+      await page.goto(`${stack.url}/projects/kestrel-buds/builds`);
+      await page.getByRole('heading', { name: 'Builds' }).waitFor();
+      const tokensNav = await page.getByRole('link', { name: 'API tokens' }).count();
+      expect(tokensNav > 0, `${role} sees the API tokens entry`).toBe(role === 'admin');
+      await page.goto(`${stack.url}/projects/kestrel-buds/findings`);
+      await page.getByRole('heading', { name: 'Findings' }).waitFor();
+      await page.getByRole('table').first().waitFor();
+      const assign = await page.getByRole('button', { name: 'Assign' }).count();
+      if (role === 'viewer') expect(assign).toBe(0);
+      else expect(assign).toBeGreaterThan(0);
+      if (role === 'engineer') await shot(page, 'findings');
+      await page.close();
+    }
+  });
+
+  it('opens a failing build and its failing capture: spectrum over the mask, the failing check and its margin', async () => {
+    const page = await pageAs('engineer@fernwick.test');
+    await shot(page, 'projects');
+    await page.goto(`${stack.url}/projects/kestrel-buds/builds`);
+    await page.getByRole('heading', { name: 'Builds' }).waitFor();
+    await page.getByText('nightly 411').waitFor();
+    await shot(page, 'builds');
+    await page.getByText('nightly 411').click();
+    await page.getByRole('heading', { name: /^Build d19b3f8/ }).waitFor();
+    const matrix = page.getByRole('table', { name: 'Build matrix' });
+    await matrix.waitFor();
+    await shot(page, 'build');
+    await matrix.locator('[data-testcase="eq.music.sweep"][data-target="evt2-48k"] a').first().click();
+    await page.getByRole('heading', { name: 'Music EQ preset, exponential sweep' }).waitFor();
+    await page.getByRole('region', { name: 'Spectrum' }).locator('canvas').first().waitFor();
+    const worst = page.getByTestId('worst-point-label');
+    await worst.waitFor();
+    expect(await worst.textContent()).toMatch(/−0\.\d+ dB margin @ 7\.\d+ kHz|−0\.\d+ dB margin @ 8\.\d+ kHz/);
+    const checks = page.getByRole('table', { name: 'Checks' });
+    const responseRow = checks.getByRole('row').filter({ hasText: 'response' }).first();
+    expect(await responseRow.textContent()).toMatch(/−0\.8\d/);
+    await shot(page, 'capture');
+    await page.close();
+  });
+
+  it('assigns and comments on a finding from the capture page', async () => {
+    const page = await pageAs('engineer@fernwick.test');
+    await page.goto(`${stack.url}/projects/kestrel-buds/builds/d19b3f8e44`);
+    await page.getByRole('table', { name: 'Build matrix' }).locator('[data-testcase="eq.music.sweep"][data-target="evt2-48k"] a').first().click();
+    await page.getByRole('region', { name: 'Spectrum' }).locator('canvas').first().waitFor();
+    await page.waitForLoadState('networkidle');
+    const triage = page.getByRole('region', { name: 'Findings' });
+    await triage.getByRole('button', { name: 'Assign' }).first().click();
+    await page.getByRole('menuitemradio', { name: /\(me\)/ }).click();
+    await triage.getByText('Maren Ostrowe').first().waitFor();
+    await triage.getByRole('button', { name: /Comments/ }).first().click();
+    await page.getByLabel('Comment', { exact: true }).fill('The 8 kHz bump arrived with the new presence shelf in 410; reverting it in 412.');
+    await page.getByRole('button', { name: 'Add comment' }).click();
+    await page.getByRole('list', { name: 'Comments' }).getByText('reverting it in 412').waitFor();
+    await page.close();
+  });
+
+  it('creates an API token, submits a capture with it, sees the build, revokes it and sees the CLI refused', async () => {
+    const page = await pageAs('admin@fernwick.test');
+    await page.goto(`${stack.url}/projects/kestrel-buds/tokens`);
+    await page.getByRole('heading', { name: 'API tokens' }).waitFor();
+    await page.getByRole('button', { name: 'Create token' }).first().click();
+    await page.getByLabel('Name').fill('bench-rig-7');
+    await page.getByRole('dialog').getByRole('button', { name: 'Create token' }).click();
+    const secret = (await page.getByTestId('token-secret').textContent())!.trim();
+    expect(secret).toMatch(/^em_[a-z0-9]{10}_/);
+    await shot(page, 'tokens');
+
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'earmark-e2e-'));
+    const file = path.join(dir, 'tone.wav');
+    const spec = StimulusSpec.parse({ kind: 'sine', sampleRate: 48000, seconds: 2, levelDbfs: -20, frequency: 997 });
+    fs.writeFileSync(file, encodeWav(stimulusAsPlayed(spec).channels, 48000, { bitsPerSample: 24 }));
+    const env = { EARMARK_URL: stack.url, EARMARK_TOKEN: secret };
+    const args = ['submit', '--project', 'kestrel-buds', '--case', 'level.tone.997', '--target', 'evt2-48k', file, '--wait', '--timeout', '60'];
+    const ok = await runCli([...args, '--sha', 'abc0e2e001', '--label', 'from the e2e rig'], env);
+    expect(ok.code, ok.out).toBe(0);
+
+    await page.goto(`${stack.url}/projects/kestrel-buds/builds`);
+    await page.getByText('from the e2e rig').waitFor();
+
+    await page.goto(`${stack.url}/projects/kestrel-buds/tokens`);
+    const row = page.getByRole('table', { name: 'API tokens' }).getByRole('row').filter({ hasText: 'bench-rig-7' });
+    await row.getByRole('button', { name: 'Revoke' }).click();
+    await page.getByRole('dialog').getByRole('button', { name: 'Revoke' }).click();
+    await row.getByText(/Revoked/).waitFor();
+    const refused = await runCli([...args, '--sha', 'abc0e2e002'], env);
+    expect(refused.code).toBe(2);
+    expect(refused.out).toMatch(/revoked/i);
+    await page.close();
+  });
+
+  it('wrote no console errors in any page', () => {
+    expect(consoleErrors).toEqual([]);
+  });
+});
