@@ -6,18 +6,14 @@ import pg from 'pg';
 import { pino } from 'pino';
 import { createApp, loadApiEnv } from '@earmark/api';
 import { ObjectStore, TEST_PASSWORD, initOrm, seedRoles, startBoss } from '@earmark/db';
-import { startTestCluster } from '@earmark/infra/test-cluster';
+import { createBenchDatabase } from '../support/bench-database.js';
 
 const BUILDS = 20_000;
 const TARGETS = 5; // one capture per target and build: 100,000 captures, each with a verdict
 const ROUNDS = 60;
 
-const { cluster, templateDb } = await startTestCluster();
-const dbName = `earmark_bench_${Date.now()}`;
-const admin = new pg.Client({ connectionString: cluster.url('postgres') });
-await admin.connect();
-await admin.query(`create database "${dbName}" template "${templateDb}"`);
-const url = cluster.url(dbName);
+const database = await createBenchDatabase('earmark_api_bench');
+const url = database.url;
 const orm = await initOrm({ url, poolMax: 10 });
 try {
   const fixture = await seedRoles(orm.em.fork());
@@ -91,6 +87,5 @@ try {
   objectStore.destroy();
 } finally {
   await orm.close();
-  await admin.query(`drop database if exists "${dbName}" with (force)`);
-  await admin.end();
+  await database.drop();
 }

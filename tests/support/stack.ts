@@ -28,8 +28,9 @@ export interface Stack {
  * Everything on loopback for one test file: its own database, the S3 and SMTP fakes,
  * the API in-process and (on demand) real worker processes.
  */
-export async function startStack(opts: { seed?: 'roles' | 'demo' } = {}): Promise<Stack> {
-  const db = await createTestDatabase();
+export async function startStack(opts: { seed?: 'roles' | 'demo'; database?: { url: string; drop(): Promise<void> } } = {}): Promise<Stack> {
+  // Inside vitest each file clones its own database; scripts (benchmarks) bring one.
+  const db = opts.database ?? (await createTestDatabase());
   const orm = await initOrm({ url: db.url, poolMax: 6 });
   const secret = generateTokenSecret();
   // `roles`: alpha-dsp with one user per role; `demo`: the Fernwick demo with its CI token.

@@ -8,6 +8,8 @@ const BENCHES = {
   dsp: { script: 'packages/dsp/bench/run.ts', cwd: 'packages/dsp' },
   /** The builds API over 100k captures. */
   api: { script: 'tests/bench/builds-api.bench.ts', cwd: 'tests' },
+  /** The capture page's spectrum draw time in Chromium. */
+  plot: { script: 'tests/bench/capture-plot.bench.ts', cwd: 'tests' },
 } as const;
 
 /** `npm run bench [-- dsp|api]`: speed and memory targets, measured (docs/performance.md). */
