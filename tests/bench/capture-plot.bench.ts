@@ -61,6 +61,19 @@ try {
     }
     return times.sort((a, b) => a - b);
   };
+  // The API side: computing the plot data on request (decode, transfer function, envelope, overlay).
+  const session = await page.evaluate(() => JSON.parse(localStorage.getItem('earmark.session') ?? '{}').accessToken as string);
+  const apiTimes: number[] = [];
+  for (let i = 0; i < ROUNDS; i++) {
+    const t0 = performance.now();
+    const res = await fetch(`${stack.url}/api/projects/kestrel-buds/captures/${captureId}/plot?columns=1200`, { headers: { authorization: `Bearer ${session}` } });
+    await res.arrayBuffer();
+    if (!res.ok) throw new Error(`plot: HTTP ${res.status}`);
+    apiTimes.push(performance.now() - t0);
+  }
+  apiTimes.sort((a, b) => a - b);
+  console.log(`\nGET …/captures/{id}/plot?columns=1200 (4.5 s capture, with overlay): median ${apiTimes[Math.floor(ROUNDS / 2)]!.toFixed(0)} ms, max ${apiTimes[ROUNDS - 1]!.toFixed(0)} ms`);
+
   const rows = ['| spectrum points | median (ms) | max (ms) |', '|---|---|---|'];
   for (const points of [null, 65_536]) {
     const t = await measure(points);
