@@ -4,6 +4,8 @@ import { z } from 'zod';
 export const QUEUES = {
   analyzeCapture: 'analyze-capture',
   sendNotifications: 'send-notifications',
+  /** Evaluating a mask revision against past builds' captures (ImpactRun). */
+  evaluateImpact: 'evaluate-impact',
 } as const;
 
 export const AnalyzeCaptureJob = z.object({ captureId: z.uuid() });
@@ -11,3 +13,6 @@ export type AnalyzeCaptureJob = z.infer<typeof AnalyzeCaptureJob>;
 
 export const SendNotificationsJob = z.object({ reason: z.string().max(200).optional() });
 export type SendNotificationsJob = z.infer<typeof SendNotificationsJob>;
+
+export const EvaluateImpactJob = z.object({ impactRunId: z.uuid() });
+export type EvaluateImpactJob = z.infer<typeof EvaluateImpactJob>;

@@ -5,6 +5,7 @@ import { CaptureSchema } from './capture.entity.js';
 import { CheckResultSchema } from './check-result.entity.js';
 import { CommentSchema } from './comment.entity.js';
 import { FindingSchema } from './finding.entity.js';
+import { ImpactRunSchema } from './impact-run.entity.js';
 import { MaskRevisionSchema } from './mask-revision.entity.js';
 import { MembershipSchema } from './membership.entity.js';
 import { NotificationSchema } from './notification.entity.js';
@@ -23,6 +24,7 @@ export * from './capture.entity.js';
 export * from './check-result.entity.js';
 export * from './comment.entity.js';
 export * from './finding.entity.js';
+export * from './impact-run.entity.js';
 export * from './mask-revision.entity.js';
 export * from './membership.entity.js';
 export * from './notification.entity.js';
@@ -36,5 +38,5 @@ export * from './waiver.entity.js';
 export const entitySchemas = [
   UserSchema, ProjectSchema, MembershipSchema, TargetSchema, TestCaseSchema, MaskRevisionSchema,
   BuildSchema, CaptureSchema, VerdictSchema, CheckResultSchema, FindingSchema, CommentSchema,
-  WaiverSchema, ApiTokenSchema, AuditEventSchema, NotificationSchema,
+  WaiverSchema, ApiTokenSchema, AuditEventSchema, NotificationSchema, ImpactRunSchema,
 ];

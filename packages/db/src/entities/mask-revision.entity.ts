@@ -12,7 +12,7 @@ export type MaskRevisionState = (typeof maskRevisionStates)[number];
  * Exactly one approved revision is in force per (test case, target): a partial unique
  * index in the migration enforces it.
  */
-export class MaskRevision extends BaseEntity<'target' | 'state' | 'checks' | 'note' | 'reviewer' | 'submittedAt' | 'decidedAt'> {
+export class MaskRevision extends BaseEntity<'target' | 'state' | 'checks' | 'note' | 'reviewer' | 'submittedAt' | 'decidedAt' | 'decisionComment' | 'basedOn' | 'derivation'> {
   testCase!: TestCase;
   target: Target | null = null;
   revision!: number;
@@ -23,6 +23,11 @@ export class MaskRevision extends BaseEntity<'target' | 'state' | 'checks' | 'no
   reviewer: User | null = null;
   submittedAt: Date | null = null;
   decidedAt: Date | null = null;
+  decisionComment: string | null = null;
+  /** The revision this draft was copied from. */
+  basedOn: MaskRevision | null = null;
+  /** How the limits were derived from golden captures (captures, k, guard, segments), if they were. */
+  derivation: Record<string, unknown> | null = null;
 }
 
 export const MaskRevisionSchema = new EntitySchema<MaskRevision, BaseEntity>({
@@ -39,6 +44,9 @@ export const MaskRevisionSchema = new EntitySchema<MaskRevision, BaseEntity>({
     reviewer: { kind: 'm:1', entity: () => User, nullable: true },
     submittedAt: { type: 'datetime', nullable: true },
     decidedAt: { type: 'datetime', nullable: true },
+    decisionComment: { type: 'text', nullable: true },
+    basedOn: { kind: 'm:1', entity: () => MaskRevision, nullable: true, deleteRule: 'set null' },
+    derivation: { type: 'json', nullable: true },
   },
   uniques: [{ properties: ['testCase', 'revision'] }],
   indexes: [

@@ -7,12 +7,14 @@ export const verdictOutcomes = ['pass', 'fail', 'error'] as const;
 export type VerdictOutcome = (typeof verdictOutcomes)[number];
 
 /** The verdict for one capture under one mask revision, reproducible from both versions. */
-export class Verdict extends BaseEntity<'maskRevision' | 'reason'> {
+export class Verdict extends BaseEntity<'maskRevision' | 'reason' | 'previous'> {
   capture!: Capture;
   maskRevision: MaskRevision | null = null;
   outcome!: VerdictOutcome;
   reason: string | null = null;
   engineVersion!: string;
+  /** For a re-evaluation under a newer revision: the verdict it replaces as the newest. */
+  previous: Verdict | null = null;
 }
 
 export const VerdictSchema = new EntitySchema<Verdict, BaseEntity>({
@@ -24,6 +26,7 @@ export const VerdictSchema = new EntitySchema<Verdict, BaseEntity>({
     outcome: { enum: true, items: () => [...verdictOutcomes], type: 'string' },
     reason: { type: 'text', nullable: true },
     engineVersion: { type: 'string', length: 40 },
+    previous: { kind: 'm:1', entity: () => Verdict, nullable: true, deleteRule: 'set null' },
   },
   // NULLS NOT DISTINCT: a capture judged with no mask in force still gets one verdict only.
   indexes: [

@@ -29,6 +29,14 @@ export async function createQueues(boss: PgBoss, settings: QueueSettings = {}): 
       deadLetter: dead,
     },
     {
+      name: QUEUES.evaluateImpact,
+      policy: 'standard',
+      retryLimit: 2,
+      retryDelay: settings.retryDelaySeconds ?? 5,
+      retryBackoff: true,
+      expireInSeconds: 1800,
+    },
+    {
       name: QUEUES.sendNotifications,
       policy: 'standard',
       retryLimit: 10,
