@@ -40,7 +40,7 @@ export async function analyzeCapture(job: PgBoss.JobWithMetadata<unknown>, deps:
 
   if (attempt >= deps.maxAttempts && job.retryCount > 0) {
     // Earlier attempts crashed or timed out: stop trying rather than loop forever.
-    const judgement = errorJudgement(`Analysis abandoned after ${job.retryCount} failed attempts (worker crash, timeout or storage outage).`, ENGINE_VERSION);
+    const judgement = errorJudgement(`Analysis abandoned after ${job.retryCount} failed attempt${job.retryCount === 1 ? "" : "s"} (worker crash, timeout or storage outage).`, ENGINE_VERSION);
     await recordVerdict(em, captureId, mask, judgement, deps.links);
     log.error('capture judged error after repeated failures');
     return;
