@@ -6,7 +6,7 @@ import { actorName } from '../auth/principal.js';
 import { parseWith } from '../http/validate.js';
 import { requireProject, type RouteDef } from '../http/route.js';
 import { recordAudit } from '../services/audit.service.js';
-import { buildDetail } from '../services/build-detail.service.js';
+import { buildDetail, toBuildRow } from '../services/build-detail.service.js';
 import type { Links } from '../services/links.js';
 
 const BuildListQuery = z.object({
@@ -16,19 +16,7 @@ const BuildListQuery = z.object({
 });
 const ShaParams = z.object({ sha: CommitSha });
 
-async function toBuildRow(em: EntityManager, build: Build, project: Project): Promise<BuildRow> {
-  return {
-    id: build.id,
-    projectKey: project.key,
-    sha: build.sha,
-    label: build.label,
-    branch: build.branch,
-    pipelineUrl: build.pipelineUrl,
-    status: build.status,
-    createdAt: build.createdAt.toISOString(),
-    captureCount: await em.count(Capture, { build }),
-  };
-}
+const rowOf = async (em: EntityManager, build: Build, project: Project): Promise<BuildRow> => toBuildRow(build, project, await em.count(Capture, { build }));
 
 export function ciBuildRoutes(links: Links): RouteDef[] {
   return [
@@ -60,7 +48,7 @@ export function ciBuildRoutes(links: Links): RouteDef[] {
           if (!existing) throw error;
           build = existing;
         }
-        ctx.res.status(created ? 201 : 200).json(await toBuildRow(ctx.em, build, project));
+        ctx.res.status(created ? 201 : 200).json(await rowOf(ctx.em, build, project));
       },
     },
     {
@@ -78,7 +66,7 @@ export function ciBuildRoutes(links: Links): RouteDef[] {
           limit: q.pageSize,
           offset: (q.page - 1) * q.pageSize,
         });
-        const items = await Promise.all(builds.map((b) => toBuildRow(ctx.em, b, project)));
+        const items = await Promise.all(builds.map((b) => rowOf(ctx.em, b, project)));
         ctx.res.json({ items, total, page: q.page, pageSize: q.pageSize });
       },
     },

@@ -7,7 +7,7 @@ import type { Request } from 'express';
 import type PgBoss from 'pg-boss';
 import type { Logger } from 'pino';
 import { z } from 'zod';
-import { ConflictError, NotFoundError, ServiceUnavailableError, UnsupportedCaptureError, UnsupportedMediaTypeError, ValidationError } from '../errors.js';
+import { ConflictError, ServiceUnavailableError, UnsupportedCaptureError, UnsupportedMediaTypeError, ValidationError } from '../errors.js';
 import { readMultipart, readRawBody, type Upload } from '../http/read-upload.js';
 import { parseWith } from '../http/validate.js';
 import { presentCaptures } from './capture-presenter.js';
@@ -199,4 +199,3 @@ export class CaptureIngestService {
   }
 }
 
-export { NotFoundError };

@@ -1,5 +1,5 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
-import type { BulkUpdateFindingsRequest, CommentRow, FindingRow, FindingsPage, FindingsQuery, UpdateFindingRequest } from '@earmark/contracts';
+import type { CommentRow, FindingRow, FindingsPage, FindingsQuery, UpdateFindingRequest } from '@earmark/contracts';
 import { Comment, Finding, Membership, User, type Project } from '@earmark/db';
 import { NotFoundError, ValidationError } from '../errors.js';
 import { recordAudit } from './audit.service.js';
@@ -133,4 +133,3 @@ export class FindingsService {
   }
 }
 
-export type { BulkUpdateFindingsRequest };
