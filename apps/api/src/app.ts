@@ -86,7 +86,7 @@ export function createApp({ orm, env, logger, objectStore, boss }: AppDeps): Ear
   const ingest = new CaptureIngestService({ objectStore, boss, links, logger, maxCaptureBytes: env.EARMARK_MAX_CAPTURE_BYTES });
   const findings = new FindingsService();
   const views = new CaptureViewService(objectStore, findings, links);
-  const routes: RouteDef[] = allRoutes({ sessions: new SessionService(signer), loginLimiter: loginLimiter(env), ingest, links, views, findings });
+  const routes: RouteDef[] = allRoutes({ sessions: new SessionService(signer), loginLimiter: loginLimiter(env), ingest, links, views, findings, boss });
   routes.push(...docsRoutes(() => routes, env.EARMARK_PUBLIC_URL));
   const api = express.Router();
   mountRoutes(api, routes, orm, signer);

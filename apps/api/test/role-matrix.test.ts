@@ -69,6 +69,27 @@ const MATRIX: Record<string, Caller[] | typeof PUBLIC> = {
   'GET /api/v1/projects/:project/builds/:sha/junit.xml': CI_READERS,
   'POST /api/v1/projects/:project/builds/:sha/captures': CI_SUBMITTERS,
   'GET /api/v1/captures/:id': CI_READERS,
+  // mask workflow
+  'GET /api/projects/:project/masks': PROJECT_READERS,
+  'GET /api/projects/:project/test-cases/:caseKey/masks/:revision': PROJECT_READERS,
+  'PATCH /api/projects/:project/test-cases/:caseKey/masks/:revision': CONFIGURERS,
+  'POST /api/projects/:project/test-cases/:caseKey/masks/:revision/submit': CONFIGURERS,
+  'POST /api/projects/:project/test-cases/:caseKey/masks/:revision/reject': ['qa_manager', 'admin'],
+  'POST /api/projects/:project/test-cases/:caseKey/masks/:revision/copy': CONFIGURERS,
+  'GET /api/projects/:project/test-cases/:caseKey/masks/:revision/diff': PROJECT_READERS,
+  'GET /api/projects/:project/test-cases/:caseKey/masks/:revision/history': PROJECT_READERS,
+  'GET /api/projects/:project/audit': ['qa_manager', 'admin'],
+  'POST /api/projects/:project/findings/:id/waivers': CONFIGURERS,
+  'GET /api/projects/:project/waivers': PROJECT_READERS,
+  'POST /api/projects/:project/waivers/:id/approve': ['qa_manager', 'admin'],
+  'POST /api/projects/:project/waivers/:id/reject': ['qa_manager', 'admin'],
+  // derivation, impact, drift
+  'POST /api/projects/:project/test-cases/:caseKey/masks/derive': CONFIGURERS,
+  'POST /api/projects/:project/test-cases/:caseKey/masks/:revision/impact': CONFIGURERS,
+  'GET /api/projects/:project/test-cases/:caseKey/masks/:revision/impact': PROJECT_READERS,
+  'GET /api/projects/:project/test-cases/:caseKey/masks/:revision/impact/:runId': PROJECT_READERS,
+  'POST /api/projects/:project/test-cases/:caseKey/masks/:revision/reevaluate': ['qa_manager', 'admin'],
+  'GET /api/projects/:project/drift': PROJECT_READERS,
 };
 
 const CALLERS: Caller[] = ['anonymous', ...SIGNED_IN, 'token:full', 'token:read', 'token:submit', 'token:foreign'];
@@ -158,7 +179,7 @@ describe('permission matrix', () => {
     const token = await credentialFor(caller);
     const body = method === 'POST' || method === 'PUT' ? {} : undefined;
     const res = await api.request(method, concretePath(path), { token, body });
-    const onlyProjectParam = !/:(userId|tokenId|sha|targetKey|caseKey)|findings\/:id/.test(path);
+    const onlyProjectParam = !/:(userId|tokenId|sha|targetKey|caseKey)|(findings|waivers)\/:id/.test(path);
 
     if (allowed === PUBLIC) {
       expect([401, 403]).not.toContain(res.status);

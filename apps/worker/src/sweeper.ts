@@ -2,11 +2,13 @@ import { QUEUES } from '@earmark/contracts';
 import type { MikroORM } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
 import type { Logger } from 'pino';
+import { expireWaivers } from './verdicts/waivers.js';
 
 /**
  * Safety net for the outbox pattern: captures whose job was never queued (the API could
  * not reach the queue) or got lost, and mail still pending, are queued again. Re-queuing
- * is harmless because verdicts are unique per capture and revision.
+ * is harmless because verdicts are unique per capture and revision. Waivers past their
+ * date expire here too (their mail goes out with the rest below).
  */
 export async function sweep(orm: MikroORM, boss: PgBoss, logger: Logger, olderThanSeconds: number): Promise<void> {
   const conn = orm.em.fork().getConnection();
@@ -20,6 +22,9 @@ export async function sweep(orm: MikroORM, boss: PgBoss, logger: Logger, olderTh
   );
   for (const { id } of orphans) await boss.send(QUEUES.analyzeCapture, { captureId: id });
   if (orphans.length) logger.warn({ count: orphans.length }, 're-queued captures without an analysis job');
+
+  const expired = await expireWaivers(orm.em.fork());
+  if (expired) logger.info({ count: expired }, 'waivers expired; findings re-opened');
 
   const [pending] = await conn.execute<{ n: string }[]>(`select count(*) as n from notification where state = 'pending'`);
   const waiting = await conn.execute<{ n: string }[]>(

@@ -54,6 +54,11 @@ await boss.work(`${QUEUES.analyzeCapture}.dead`, { batchSize: 1, pollingInterval
 await boss.work(QUEUES.sendNotifications, { batchSize: 1, pollingIntervalSeconds: 1 }, async () => {
   await sendNotifications({ orm, mailer, logger });
 });
+// Impact of a mask revision on past builds (ImpactRun): one run at a time, progress in the row.
+const { evaluateImpact } = await import('./jobs/evaluate-impact.job.js');
+await boss.work(QUEUES.evaluateImpact, { batchSize: 1, pollingIntervalSeconds: 1 }, async ([job]) => {
+  if (job) await evaluateImpact(job, { orm, objectStore, logger });
+});
 
 const sweepTimer = setInterval(() => {
   sweep(orm, boss, logger, env.EARMARK_SWEEP_INTERVAL_S * 2).catch((error: unknown) => logger.warn({ err: error }, 'sweep failed'));

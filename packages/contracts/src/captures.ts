@@ -37,6 +37,8 @@ export const VerdictDto = z.object({
   maskRevision: z.number().int().nullable(),
   createdAt: z.string(),
   checks: z.array(CheckResultDto),
+  /** For a re-evaluation: the outcome of the verdict this one replaced. */
+  previousOutcome: VerdictOutcome.nullable().optional(),
 });
 export type VerdictDto = z.infer<typeof VerdictDto>;
 

@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import { BuildRow, BuildStatus } from './builds.js';
 import { CaptureDto, CheckResultDto } from './captures.js';
+import { DriftFlag } from './mask-derivation.js';
 import { MaskCheck } from './masks.js';
 
 /** Verdict counts of a build's captures. */
@@ -65,6 +66,8 @@ export const BuildMatrix = z.object({
   cells: z.array(MatrixCell),
   /** The previous build on the same branch (else the previous build), compared cell by cell. */
   compared: BuildSummary.nullable(),
+  /** Checks on this build's branch whose margin shrank by more than the project's drift threshold while still passing (window ending at this build). Always sent by the API; optional only so older fixtures still type-check. */
+  drift: z.array(DriftFlag).optional(),
 });
 export type BuildMatrix = z.infer<typeof BuildMatrix>;
 

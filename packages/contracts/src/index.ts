@@ -12,3 +12,5 @@ export * from './test-cases.js';
 export * from './masks.js';
 export * from './mask-revisions.js';
 export * from './dashboard.js';
+export * from './mask-workflow.js';
+export * from './mask-derivation.js';

@@ -18,6 +18,12 @@ export const MaskRevisionDto = z.object({
   reviewer: z.string().nullable(),
   createdAt: z.string(),
   decidedAt: z.string().nullable(),
+  /** When the revision entered review; null while it is a draft that was never submitted. */
+  submittedAt: z.string().nullable(),
+  /** The reviewer's comment on approval (optional) or rejection (required). */
+  decisionComment: z.string().nullable(),
+  /** The revision number this one was copied from, if it was. */
+  basedOn: z.number().int().nullable(),
 });
 export type MaskRevisionDto = z.infer<typeof MaskRevisionDto>;
 

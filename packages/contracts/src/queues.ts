@@ -8,7 +8,11 @@ export const QUEUES = {
   evaluateImpact: 'evaluate-impact',
 } as const;
 
-export const AnalyzeCaptureJob = z.object({ captureId: z.uuid() });
+export const AnalyzeCaptureJob = z.object({
+  captureId: z.uuid(),
+  /** Re-evaluation: judge under this (approved) revision instead of the one in force, linking the new verdict to the one it replaces. */
+  maskRevisionId: z.uuid().optional(),
+});
 export type AnalyzeCaptureJob = z.infer<typeof AnalyzeCaptureJob>;
 
 export const SendNotificationsJob = z.object({ reason: z.string().max(200).optional() });

@@ -11,14 +11,17 @@ export const projectPermissions = [
   'finding.triage',
   'mask.draft',
   'mask.approve',
+  'waiver.request',
+  'audit.read',
   'project.configure',
   'project.administer',
 ] as const;
 export type ProjectPermission = (typeof projectPermissions)[number];
 
 const viewer: ProjectPermission[] = ['project.read', 'build.read'];
-const engineer: ProjectPermission[] = [...viewer, 'build.submit', 'finding.triage', 'mask.draft', 'project.configure'];
-const qaManager: ProjectPermission[] = [...engineer, 'mask.approve'];
+const engineer: ProjectPermission[] = [...viewer, 'build.submit', 'finding.triage', 'mask.draft', 'waiver.request', 'project.configure'];
+// `mask.approve` also decides waivers: the same people own masks and their exceptions.
+const qaManager: ProjectPermission[] = [...engineer, 'mask.approve', 'audit.read'];
 
 export const ROLE_PERMISSIONS: Record<ProjectRole, ReadonlySet<ProjectPermission>> = {
   viewer: new Set(viewer),

@@ -1,4 +1,5 @@
 import type { RequestHandler } from 'express';
+import type PgBoss from 'pg-boss';
 import type { RouteDef } from '../http/route.js';
 import type { CaptureIngestService } from '../services/capture-ingest.service.js';
 import type { CaptureViewService } from '../services/capture-view.service.js';
@@ -17,6 +18,8 @@ import { ciCaptureRoutes } from './ci-captures.routes.js';
 import { dashboardRoutes } from './dashboard.routes.js';
 import { healthRoutes } from './health.routes.js';
 import { maskRoutes } from './masks.routes.js';
+import { maskDerivationRoutes } from './mask-derivation.routes.js';
+import { maskWorkflowRoutes } from './mask-workflow.routes.js';
 import { projectRoutes } from './projects.routes.js';
 import { tokenRoutes } from './tokens.routes.js';
 
@@ -27,6 +30,8 @@ export interface RouteDeps {
   views: CaptureViewService;
   findings: FindingsService;
   links: Links;
+  /** Producer side of the job queue (impact runs, re-evaluation). */
+  boss: PgBoss;
 }
 
 /** Every API route; the app mounts exactly these, and the role test walks them all. */
@@ -39,6 +44,8 @@ export function allRoutes(deps: RouteDeps): RouteDef[] {
     ...tokenRoutes(new TokenService()),
     ...catalogRoutes(catalog),
     ...maskRoutes(new MaskService(), catalog),
+    ...maskWorkflowRoutes(catalog, deps),
+    ...maskDerivationRoutes(deps),
     ...adminRoutes(),
     ...dashboardRoutes(deps.views, deps.findings),
     ...ciBuildRoutes(deps.links),

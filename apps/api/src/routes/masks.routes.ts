@@ -1,4 +1,4 @@
-import { CreateMaskRevisionRequest, MaskRevisionDto, TestCaseKey } from '@earmark/contracts';
+import { CreateMaskRevisionRequest, MaskDecisionRequest, MaskRevisionDto, TestCaseKey } from '@earmark/contracts';
 import { z } from 'zod';
 import { parseWith } from '../http/validate.js';
 import { requireProject, requireUser, type RouteContext, type RouteDef } from '../http/route.js';
@@ -40,12 +40,14 @@ export function maskRoutes(masks: MaskService, catalog: CatalogService): RouteDe
       method: 'post',
       path: '/api/projects/:project/test-cases/:caseKey/masks/:revision/approve',
       access: { kind: 'project', permission: 'mask.approve' },
-      summary: 'Approve a revision (not your own); it replaces the revision in force',
-      doc: { response: MaskRevisionDto },
+      summary: 'Approve a revision in review or a draft (not your own), with an optional comment; it replaces the revision in force',
+      doc: { body: MaskDecisionRequest, response: MaskRevisionDto },
       async handle(ctx) {
         const { revision } = parseWith(RevisionParams, ctx.req.params, 'params');
-        const approved = await masks.approve(ctx.em, requireProject(ctx), await testCaseOf(ctx), revision, requireUser(ctx).user);
-        ctx.res.json(toMaskRevisionDto(approved));
+        const { comment } = parseWith(MaskDecisionRequest, ctx.req.body, 'body');
+        const testCase = await testCaseOf(ctx);
+        await masks.approve(ctx.em, requireProject(ctx), testCase, revision, requireUser(ctx).user, comment);
+        ctx.res.json(toMaskRevisionDto(await masks.get(ctx.em, testCase, revision)));
       },
     },
   ];

@@ -4,6 +4,7 @@ import { Build, Capture, Target, TestCase, type Project } from '@earmark/db';
 import { NotFoundError } from '../errors.js';
 import { buildSummary } from './builds-query.service.js';
 import { latestVerdicts } from './capture-presenter.js';
+import { DriftService } from './drift.service.js';
 
 async function cellsOf(em: EntityManager, build: Build) {
   const captures = await em.find(Capture, { build }, { populate: ['testCase', 'target'], orderBy: { createdAt: 'asc' } });
@@ -50,5 +51,6 @@ export async function buildMatrix(em: EntityManager, project: Project, sha: stri
     targets: targets.filter((t) => usedTargets.has(t.key)).map((t) => ({ key: t.key, name: t.name })),
     cells,
     compared: previous ? await buildSummary(em, project, previous.id) : null,
+    drift: await new DriftService().flagsAt(em, project, build),
   };
 }

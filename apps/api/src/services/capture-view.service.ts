@@ -1,9 +1,8 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { AnalysisSettings, MaskCheck, StimulusSpec, type AudioKind, type CaptureDetail, type CapturePlot, type MagnitudeEnvelopeCheck, type PlotQuery } from '@earmark/contracts';
-import { Capture, ObjectMissingError, ObjectStoreUnavailableError, Verdict, type MaskRevision, type ObjectStore, type Project } from '@earmark/db';
+import { Capture, Verdict, type MaskRevision, type ObjectStore, type Project } from '@earmark/db';
 import {
   ENGINE_VERSION,
-  decodeCapture,
   encodeWav,
   estimateLatency,
   estimateTransferFunction,
@@ -14,7 +13,8 @@ import {
   unwrapPhase,
   type DecodedAudio,
 } from '@earmark/dsp';
-import { NotFoundError, ServiceUnavailableError } from '../errors.js';
+import { NotFoundError } from '../errors.js';
+import { CaptureAudioLoader } from './capture-audio.js';
 import { buildSummary } from './builds-query.service.js';
 import { presentCaptures } from './capture-presenter.js';
 import type { FindingsService } from './findings.service.js';
@@ -24,11 +24,16 @@ type LoadedCapture = Capture;
 
 /** Capture page data: details, decimated plot data and audio for listening. */
 export class CaptureViewService {
+  /** Shared with other services that decode stored captures (mask derivation). */
+  readonly audioLoader: CaptureAudioLoader;
+
   constructor(
-    private readonly objectStore: ObjectStore,
+    objectStore: ObjectStore,
     private readonly findings: FindingsService,
     private readonly links: Links,
-  ) {}
+  ) {
+    this.audioLoader = new CaptureAudioLoader(objectStore);
+  }
 
   async load(em: EntityManager, project: Project, id: string): Promise<LoadedCapture> {
     const capture = await em.findOne(Capture, { id, project }, { populate: ['project', 'build', 'testCase', 'target'] });
@@ -70,14 +75,8 @@ export class CaptureViewService {
     };
   }
 
-  private async audioOf(capture: Capture): Promise<DecodedAudio> {
-    const bytes = await this.objectStore.get(capture.objectKey).catch((error: unknown) => {
-      if (error instanceof ObjectMissingError) throw new NotFoundError(`The stored bytes of capture ${capture.id} are missing.`);
-      if (error instanceof ObjectStoreUnavailableError) throw new ServiceUnavailableError('Capture storage is unavailable right now; try again shortly.');
-      throw error;
-    });
-    const container = capture.format.container === 'raw-f32le' ? 'raw-f32le' : 'wav';
-    return decodeCapture(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength), { container, sampleRate: capture.sampleRate, channels: capture.channelCount });
+  private audioOf(capture: Capture): Promise<DecodedAudio> {
+    return this.audioLoader.load(capture);
   }
 
   async plot(em: EntityManager, project: Project, id: string, q: PlotQuery): Promise<CapturePlot> {

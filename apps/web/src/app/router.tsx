@@ -7,6 +7,10 @@ import { BuildRoute, buildLoader } from './routes/app/build';
 import { BuildsRoute, buildsLoader, buildsShouldRevalidate } from './routes/app/builds';
 import { CaptureRoute, captureLoader } from './routes/app/capture';
 import { FindingsRoute, findingsLoader, findingsShouldRevalidate } from './routes/app/findings';
+import { ApprovalsRoute, approvalsLoader } from './routes/app/approvals';
+import { AuditRoute, auditLoader, auditShouldRevalidate } from './routes/app/audit';
+import { MasksRoute, masksLoader } from './routes/app/masks';
+import { TestCasesRoute, testCasesLoader } from './routes/app/test-cases';
 import { ProjectRoute, projectLoader } from './routes/app/project';
 import { ProjectsRoute, projectsLoader } from './routes/app/projects';
 import { TokensRoute, tokensLoader } from './routes/app/tokens';
@@ -67,6 +71,15 @@ export function createAppRoutes(queryClient: QueryClient): RouteObject[] {
               Component: FindingsRoute,
             },
             { path: 'projects/:projectKey/tokens', loader: tokensLoader(queryClient), Component: TokensRoute },
+            { path: 'projects/:projectKey/test-cases', loader: testCasesLoader(queryClient), Component: TestCasesRoute },
+            { path: 'projects/:projectKey/test-cases/:caseKey/masks', loader: masksLoader(queryClient), Component: MasksRoute },
+            { path: 'projects/:projectKey/approvals', loader: approvalsLoader(queryClient), Component: ApprovalsRoute },
+            {
+              path: 'projects/:projectKey/audit',
+              loader: auditLoader(queryClient),
+              shouldRevalidate: auditShouldRevalidate,
+              Component: AuditRoute,
+            },
             { path: '*', Component: NotFoundRoute },
           ],
         },

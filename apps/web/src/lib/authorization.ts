@@ -26,6 +26,12 @@ export type ProjectAbilities = {
   canTriage: boolean;
   /** API tokens, members (global admins only). */
   canAdminister: boolean;
+  /** Draft mask revisions (engineers and above). */
+  canDraftMasks: boolean;
+  /** Add and change test cases and targets (engineers and above). */
+  canConfigure: boolean;
+  /** Approve or reject mask revisions and waivers, read the audit log (QA managers and admins). */
+  canApprove: boolean;
 };
 
 /** Mirrors the API's permission matrix so the UI hides what the API would refuse with 403. */
@@ -35,6 +41,9 @@ export function abilitiesIn(user: CurrentUser | undefined, projectKey: string): 
     role,
     canTriage: role === 'engineer' || role === 'qa_manager' || role === 'admin',
     canAdminister: role === 'admin',
+    canDraftMasks: role === 'engineer' || role === 'qa_manager' || role === 'admin',
+    canConfigure: role === 'engineer' || role === 'qa_manager' || role === 'admin',
+    canApprove: role === 'qa_manager' || role === 'admin',
   };
 }
 

@@ -18,6 +18,12 @@ export const paths = {
   findings: (key: string, search?: string): string =>
     `/projects/${encodeURIComponent(key)}/findings${search ? `?${search}` : ''}`,
   tokens: (key: string): string => `/projects/${encodeURIComponent(key)}/tokens`,
+  testCases: (key: string): string => `/projects/${encodeURIComponent(key)}/test-cases`,
+  /** A test case's mask revisions; `search` selects a revision, the editor or a diff. */
+  masks: (key: string, caseKey: string, search?: string): string =>
+    `/projects/${encodeURIComponent(key)}/test-cases/${encodeURIComponent(caseKey)}/masks${search ? `?${search}` : ''}`,
+  approvals: (key: string): string => `/projects/${encodeURIComponent(key)}/approvals`,
+  audit: (key: string, search?: string): string => `/projects/${encodeURIComponent(key)}/audit${search ? `?${search}` : ''}`,
 } as const;
 
 /**

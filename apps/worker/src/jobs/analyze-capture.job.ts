@@ -1,10 +1,11 @@
 import { AnalyzeCaptureJob, QUEUES } from '@earmark/contracts';
-import { Build, Capture, ObjectStoreUnavailableError, type ObjectStore } from '@earmark/db';
+import { Build, Capture, MaskRevision, ObjectStoreUnavailableError, type ObjectStore } from '@earmark/db';
 import { ENGINE_VERSION } from '@earmark/dsp';
 import { LockMode, type MikroORM } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
 import type { Logger } from 'pino';
 import { computeBuildStatus } from '../verdicts/build-aggregate.js';
+import { noteDrift } from '../verdicts/drift-notice.js';
 import { judgeCapture } from '../verdicts/judge-capture.js';
 import { errorJudgement } from '../verdicts/judgement.js';
 import { findMaskInForce } from '../verdicts/mask-in-force.js';
@@ -27,14 +28,15 @@ export interface AnalyzeDeps {
  * attempt on, the capture is judged `error` so no job stays stuck.
  */
 export async function analyzeCapture(job: PgBoss.JobWithMetadata<unknown>, deps: AnalyzeDeps): Promise<void> {
-  const { captureId } = AnalyzeCaptureJob.parse(job.data);
+  const { captureId, maskRevisionId } = AnalyzeCaptureJob.parse(job.data);
   const em = deps.orm.em.fork();
   const capture = await em.findOne(Capture, { id: captureId }, { populate: ['project', 'build', 'testCase', 'target'] });
   if (!capture) {
     deps.logger.warn({ captureId }, 'capture no longer exists; nothing to analyse');
     return;
   }
-  const mask = await findMaskInForce(em, capture.testCase, capture.target);
+  // A re-evaluation names its (approved) revision; otherwise the revision in force judges.
+  const mask = maskRevisionId ? await em.findOne(MaskRevision, { id: maskRevisionId }) : await findMaskInForce(em, capture.testCase, capture.target);
   const attempt = job.retryCount + 1;
   const log = deps.logger.child({ captureId, attempt, mask: mask?.id ?? null });
 
@@ -64,7 +66,12 @@ export async function analyzeCapture(job: PgBoss.JobWithMetadata<unknown>, deps:
   const judgement = judgeCapture(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength), capture, mask);
   const result = await recordVerdict(em, captureId, mask, judgement, deps.links);
   log.info({ outcome: judgement.outcome, ms: Math.round(performance.now() - started), written: result.written }, 'capture judged');
-  if (result.notificationsQueued > 0) await deps.boss.send(QUEUES.sendNotifications, { reason: 'build failed' });
+  const driftMails = result.written && judgement.outcome === 'pass' ? await noteDrift(deps.orm.em.fork(), captureId, deps.links).catch((error: unknown) => {
+    // Drift mail is advisory: a failure here must not fail (and re-run) a recorded verdict.
+    log.warn({ err: error }, 'drift check failed');
+    return 0;
+  }) : 0;
+  if (result.notificationsQueued > 0 || driftMails > 0) await deps.boss.send(QUEUES.sendNotifications, { reason: result.notificationsQueued > 0 ? 'build failed' : 'drift' });
 }
 
 /** Shows the capture (and so its build) as running while the engine works. */

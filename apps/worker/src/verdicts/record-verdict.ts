@@ -2,6 +2,7 @@ import { LockMode, UniqueConstraintViolationException, type EntityManager } from
 import { Build, Capture, CheckResult, Finding, Membership, Notification, Verdict, type MaskRevision } from '@earmark/db';
 import { computeBuildStatus } from './build-aggregate.js';
 import { describeFailure, type Judgement } from './judgement.js';
+import { applyWaivers } from './waivers.js';
 
 export interface RecordResult {
   /** False when this capture already had a verdict under this revision (a re-run job). */
@@ -24,7 +25,7 @@ export async function recordVerdict(
   em: EntityManager,
   captureId: string,
   mask: MaskRevision | null,
-  judgement: Judgement,
+  analysed: Judgement,
   deps: RecordDeps,
 ): Promise<RecordResult> {
   try {
@@ -34,13 +35,17 @@ export async function recordVerdict(
       // "turned failed" transition are decided once.
       const build = await tx.findOneOrFail(Build, { id: capture.build.id }, { lockMode: LockMode.PESSIMISTIC_WRITE });
       if (await tx.findOne(Verdict, { capture, maskRevision: mask ? mask.id : null })) return { written: false, notificationsQueued: 0 };
+      const { judgement, waivers } = await applyWaivers(tx, capture, analysed);
 
+      // A capture judged again (re-evaluation under a newer revision) links to the verdict it replaces as the newest.
+      const replaced = await tx.findOne(Verdict, { capture }, { orderBy: { createdAt: 'desc' } });
       const verdict = tx.create(Verdict, {
         capture,
         maskRevision: mask ? mask.id : null,
         outcome: judgement.outcome,
         reason: judgement.reason,
         engineVersion: judgement.engineVersion,
+        previous: replaced,
       });
       const results = judgement.checks.map((c) =>
         tx.create(CheckResult, {
@@ -62,13 +67,13 @@ export async function recordVerdict(
       build.status = await computeBuildStatus(tx, build.id);
 
       const failing = judgement.checks.map((c, i) => ({ check: c, result: results[i]! })).filter(({ check }) => !check.pass);
-      for (const { check, result } of failing) await openOrUpdateFinding(tx, capture, check.id, describeFailure(check), result);
+      for (const { check, result } of failing) await openOrUpdateFinding(tx, capture, check.id, describeFailure(check), result, waivers.get(check.id)?.finding ?? null, waivers.has(check.id));
 
       let notificationsQueued = 0;
       if (previous !== 'fail' && build.status === 'fail' && !(await alreadyNotified(tx, capture.project.key, build.sha))) {
         const subscribers = await tx.find(Membership, { project: capture.project, subscribed: true }, { populate: ['user'] });
         const link = deps.buildPage(capture.project.key, build.sha);
-        const lines = failing.map(({ check }) => `- ${capture.testCase.key} on ${capture.target.key}: ${describeFailure(check)}`);
+        const lines = failing.filter(({ check }) => !waivers.has(check.id)).map(({ check }) => `- ${capture.testCase.key} on ${capture.target.key}: ${describeFailure(check)}`);
         for (const m of subscribers.filter((s) => !s.user.disabled)) {
           tx.create(Notification, {
             kind: 'build-failed',
@@ -102,22 +107,36 @@ const finite = (v: number | null) => (v !== null && Number.isFinite(v) ? v : nul
 
 /**
  * One open finding per test case, target and check: a check that keeps failing across
- * builds updates its finding (newest capture) instead of opening another.
+ * builds updates its finding (newest capture) instead of opening another. A waived check
+ * updates its waiver's finding (or the accepted deviation of this target) and opens one
+ * as an accepted deviation only when there is none.
  */
-async function openOrUpdateFinding(tx: EntityManager, capture: Capture, checkId: string, title: string, result: CheckResult): Promise<void> {
-  const existing = await tx.findOne(Finding, {
-    project: capture.project,
-    checkId,
-    state: { $in: ['open', 'investigating'] },
-    capture: { testCase: capture.testCase, target: capture.target },
-  });
+async function openOrUpdateFinding(
+  tx: EntityManager,
+  capture: Capture,
+  checkId: string,
+  title: string,
+  result: CheckResult,
+  waiverFinding: Finding | null,
+  waived: boolean,
+): Promise<void> {
+  const sameTarget = waiverFinding ? (await tx.populate(waiverFinding, ['capture'])).capture.target.id === capture.target.id : false;
+  const existing =
+    (sameTarget ? waiverFinding : null) ??
+    (await tx.findOne(Finding, {
+      project: capture.project,
+      checkId,
+      state: { $in: waived ? ['accepted_deviation', 'open', 'investigating'] : ['open', 'investigating'] },
+      capture: { testCase: capture.testCase, target: capture.target },
+    }, { orderBy: { updatedAt: 'desc' } }));
   if (existing) {
     existing.capture = capture;
     existing.checkResult = result;
     existing.title = title;
+    if (waived && (existing.state === 'open' || existing.state === 'investigating')) existing.state = 'accepted_deviation';
     return;
   }
-  tx.create(Finding, { project: capture.project, capture, checkResult: result, checkId, title });
+  tx.create(Finding, { project: capture.project, capture, checkResult: result, checkId, title, state: waived ? 'accepted_deviation' : 'open' });
 }
 
 /** A build is announced as failed once, even when later captures send it back to pending and it fails again. */

@@ -21,7 +21,7 @@ const workspaceItems: NavItem[] = [
   },
 ];
 
-function projectItems(projectKey: string, canAdminister: boolean): NavItem[] {
+function projectItems(projectKey: string, canAdminister: boolean, canApprove = false): NavItem[] {
   const items: NavItem[] = [
     {
       label: 'Overview',
@@ -54,7 +54,40 @@ function projectItems(projectKey: string, canAdminister: boolean): NavItem[] {
         </svg>
       ),
     },
+    {
+      label: 'Test cases',
+      to: paths.testCases(projectKey),
+      icon: (
+        <svg viewBox="0 0 16 16" aria-hidden="true" className="size-4">
+          <path d="M1.5 8h2l1.5-4 2.5 8 2-6 1.5 2h3.5" fill="none" stroke="currentColor" strokeWidth="1.4" strokeLinecap="round" strokeLinejoin="round" />
+        </svg>
+      ),
+    },
   ];
+  if (canApprove) {
+    items.push(
+      {
+        label: 'Approvals',
+        to: paths.approvals(projectKey),
+        icon: (
+          <svg viewBox="0 0 16 16" aria-hidden="true" className="size-4">
+            <path d="M8 1.8 13.5 4v3.8c0 3-2.4 5.3-5.5 6.4-3.1-1.1-5.5-3.4-5.5-6.4V4Z" fill="none" stroke="currentColor" strokeWidth="1.4" strokeLinejoin="round" />
+            <path d="m5.6 8 1.7 1.6 3.1-3.3" fill="none" stroke="currentColor" strokeWidth="1.4" strokeLinecap="round" strokeLinejoin="round" />
+          </svg>
+        ),
+      },
+      {
+        label: 'Audit log',
+        to: paths.audit(projectKey),
+        icon: (
+          <svg viewBox="0 0 16 16" aria-hidden="true" className="size-4">
+            <rect x="3" y="2" width="10" height="12" rx="1.5" fill="none" stroke="currentColor" strokeWidth="1.4" />
+            <path d="M5.5 5.5h5M5.5 8h5M5.5 10.5h3" stroke="currentColor" strokeWidth="1.4" strokeLinecap="round" />
+          </svg>
+        ),
+      },
+    );
+  }
   if (canAdminister) {
     items.push({
       label: 'API tokens',
@@ -106,7 +139,7 @@ export function MainNav() {
   // Inside a project (its overview or any page under it) the project's own areas are listed too.
   const match = useMatch('/projects/:projectKey/*');
   const projectKey = match?.params.projectKey;
-  const { canAdminister } = useProjectAbilities(projectKey ?? '');
+  const { canAdminister, canApprove } = useProjectAbilities(projectKey ?? '');
 
   return (
     <nav aria-label="Main" className="flex min-w-0 items-center gap-1 overflow-x-auto md:block md:overflow-visible">
@@ -117,7 +150,7 @@ export function MainNav() {
           <SectionLabel>
             Project · <span className="font-mono normal-case tracking-normal text-ink-400">{projectKey}</span>
           </SectionLabel>
-          <NavList items={projectItems(projectKey, canAdminister)} />
+          <NavList items={projectItems(projectKey, canAdminister, canApprove)} />
         </div>
       ) : null}
     </nav>

@@ -1,0 +1,108 @@
+import {
+  CreateImpactRunRequest,
+  DeriveMaskRequest,
+  DeriveMaskResponse,
+  DriftQuery,
+  DriftResponse,
+  ImpactRunDto,
+  ReevaluateRequest,
+  ReevaluateResponse,
+  TestCaseKey,
+} from '@earmark/contracts';
+import { z } from 'zod';
+import { requireProject, requireUser, type RouteContext, type RouteDef } from '../http/route.js';
+import { parseWith } from '../http/validate.js';
+import { CatalogService } from '../services/catalog.service.js';
+import { DriftService } from '../services/drift.service.js';
+import { ImpactService, toImpactRunDto } from '../services/impact.service.js';
+import { MaskDerivationService } from '../services/mask-derivation.service.js';
+import type { RouteDeps } from './index.js';
+
+const CaseParams = z.object({ caseKey: TestCaseKey });
+const RevisionParams = CaseParams.extend({ revision: z.coerce.number().int().min(1) });
+const RunParams = RevisionParams.extend({ runId: z.uuid() });
+const base = '/api/projects/:project/test-cases/:caseKey/masks';
+
+/** Deriving limits from golden captures, impact of a revision on past builds, re-evaluation, drift. */
+export function maskDerivationRoutes(deps: RouteDeps): RouteDef[] {
+  const catalog = new CatalogService();
+  const derivation = new MaskDerivationService(deps.views.audioLoader);
+  const impact = new ImpactService(deps.boss);
+  const drift = new DriftService();
+  const testCaseOf = async (ctx: RouteContext) => {
+    const { caseKey } = parseWith(CaseParams, ctx.req.params, 'params');
+    return catalog.getTestCase(ctx.em, requireProject(ctx), caseKey);
+  };
+  return [
+    {
+      method: 'post',
+      path: `${base}/derive`,
+      access: { kind: 'project', permission: 'mask.draft' },
+      summary: 'Propose a magnitude envelope from 2–50 golden captures: mean ± (k·σ + guard), simplified to maxSegments segments per limit',
+      doc: { body: DeriveMaskRequest, response: DeriveMaskResponse, tags: ['masks'] },
+      async handle(ctx) {
+        const body = parseWith(DeriveMaskRequest, ctx.req.body, 'body');
+        ctx.res.json(await derivation.derive(ctx.em, requireProject(ctx), await testCaseOf(ctx), body));
+      },
+    },
+    {
+      method: 'post',
+      path: `${base}/:revision/impact`,
+      access: { kind: 'project', permission: 'mask.draft' },
+      summary: "Start evaluating a revision on the captures of the project's last N builds (a job with progress)",
+      doc: { body: CreateImpactRunRequest, response: ImpactRunDto, status: 202, tags: ['masks'] },
+      async handle(ctx) {
+        const { revision } = parseWith(RevisionParams, ctx.req.params, 'params');
+        const body = parseWith(CreateImpactRunRequest, ctx.req.body, 'body');
+        const testCase = await testCaseOf(ctx);
+        const run = await impact.start(ctx.em, requireProject(ctx), testCase, revision, body, requireUser(ctx).user);
+        ctx.res.status(202).json(toImpactRunDto(await impact.get(ctx.em, testCase, revision, run.id)));
+      },
+    },
+    {
+      method: 'get',
+      path: `${base}/:revision/impact`,
+      access: { kind: 'project', permission: 'project.read' },
+      summary: "A revision's impact runs, newest first",
+      doc: { response: z.object({ items: z.array(ImpactRunDto) }), tags: ['masks'] },
+      async handle(ctx) {
+        const { revision } = parseWith(RevisionParams, ctx.req.params, 'params');
+        ctx.res.json({ items: (await impact.list(ctx.em, await testCaseOf(ctx), revision)).map(toImpactRunDto) });
+      },
+    },
+    {
+      method: 'get',
+      path: `${base}/:revision/impact/:runId`,
+      access: { kind: 'project', permission: 'project.read' },
+      summary: 'An impact run: state, progress and, when done, current vs draft verdicts per build and check',
+      doc: { response: ImpactRunDto, tags: ['masks'] },
+      async handle(ctx) {
+        const { revision, runId } = parseWith(RunParams, ctx.req.params, 'params');
+        ctx.res.json(toImpactRunDto(await impact.get(ctx.em, await testCaseOf(ctx), revision, runId)));
+      },
+    },
+    {
+      method: 'post',
+      path: `${base}/:revision/reevaluate`,
+      access: { kind: 'project', permission: 'mask.approve' },
+      summary: 'Re-judge recent captures under the approved revision; new verdicts link to the ones they replace',
+      doc: { body: ReevaluateRequest, response: ReevaluateResponse, status: 202, tags: ['masks'] },
+      async handle(ctx) {
+        const { revision } = parseWith(RevisionParams, ctx.req.params, 'params');
+        const body = parseWith(ReevaluateRequest, ctx.req.body, 'body');
+        ctx.res.status(202).json(await impact.reevaluate(ctx.em, requireProject(ctx), await testCaseOf(ctx), revision, body, requireUser(ctx).user));
+      },
+    },
+    {
+      method: 'get',
+      path: '/api/projects/:project/drift',
+      access: { kind: 'project', permission: 'build.read' },
+      summary: "Check margins over the branch's last driftWindow builds, with a flag where a passing margin shrank by more than driftThresholdDb",
+      doc: { query: DriftQuery, response: DriftResponse, tags: ['dashboard'] },
+      async handle(ctx) {
+        const q = parseWith(DriftQuery, ctx.req.query, 'query');
+        ctx.res.json(await drift.series(ctx.em, requireProject(ctx), q));
+      },
+    },
+  ];
+}

@@ -1,0 +1,113 @@
+import type { EntityManager } from '@mikro-orm/postgresql';
+import { ImpactResult, QUEUES, type CreateImpactRunRequest, type ImpactRunDto, type ReevaluateRequest, type ReevaluateResponse } from '@earmark/contracts';
+import { ImpactRun, MaskRevision, type Project, type TestCase, type User } from '@earmark/db';
+import type PgBoss from 'pg-boss';
+import { ConflictError, NotFoundError, ServiceUnavailableError } from '../errors.js';
+import { recordAudit } from './audit.service.js';
+
+export function toImpactRunDto(run: ImpactRun): ImpactRunDto {
+  const result = run.state === 'done' && run.result ? ImpactResult.safeParse(run.result) : null;
+  return {
+    id: run.id,
+    testCase: run.maskRevision.testCase.key,
+    revision: run.maskRevision.revision,
+    builds: run.builds,
+    state: run.state,
+    progress: run.progress,
+    total: run.total,
+    requestedBy: run.requestedBy.email,
+    createdAt: run.createdAt.toISOString(),
+    finishedAt: run.finishedAt?.toISOString() ?? null,
+    error: run.error,
+    result: result?.success ? result.data : null,
+  };
+}
+
+/**
+ * Captures a revision governs in a project's recent builds: the newest capture of each build
+ * and target of the test case (earlier ones were re-runs), on the revision's target, or — for an
+ * all-targets revision — on every target without an approved revision of its own. The worker's
+ * evaluate-impact job selects the same cells with the same query.
+ */
+export async function governedCaptures(em: EntityManager, revision: MaskRevision, buildIds: string[]): Promise<{ id: string; build_id: string }[]> {
+  if (buildIds.length === 0) return [];
+  return em.getConnection().execute(
+    `select distinct on (c.build_id, c.target_id) c.id, c.build_id from capture c
+      where c.test_case_id = ? and c.build_id = any(?::uuid[]) and c.status in ('done', 'error')
+        and (?::uuid is not null and c.target_id = ?::uuid
+             or ?::uuid is null and not exists (select 1 from mask_revision m where m.test_case_id = c.test_case_id
+                                                  and m.target_id = c.target_id and m.state = 'approved'))
+      order by c.build_id, c.target_id, c.created_at desc`,
+    [revision.testCase.id, `{${buildIds.join(',')}}`, revision.target?.id ?? null, revision.target?.id ?? null, revision.target?.id ?? null],
+  );
+}
+
+/** Impact runs of a revision over past builds, and re-evaluation under an approved revision. */
+export class ImpactService {
+  constructor(private readonly boss: PgBoss) {}
+
+  private async revision(em: EntityManager, testCase: TestCase, revision: number): Promise<MaskRevision> {
+    const mask = await em.findOne(MaskRevision, { testCase, revision }, { populate: ['testCase', 'target'] });
+    if (!mask) throw new NotFoundError(`Test case ${testCase.key} has no mask revision ${revision}.`);
+    return mask;
+  }
+
+  /** Creates the run and queues it; the worker fills in progress and the result. */
+  async start(em: EntityManager, project: Project, testCase: TestCase, revision: number, req: CreateImpactRunRequest, user: User): Promise<ImpactRun> {
+    const mask = await this.revision(em, testCase, revision);
+    const run = em.create(ImpactRun, { maskRevision: mask, requestedBy: user, builds: req.builds });
+    recordAudit(em, { actor: `user:${user.email}`, action: 'mask.impact', subject: `mask:${testCase.key}#${revision}`, project, details: { builds: req.builds } });
+    await em.flush();
+    const jobId = await this.boss.send(QUEUES.evaluateImpact, { impactRunId: run.id }).catch(() => null);
+    if (!jobId) {
+      run.state = 'error';
+      run.error = 'The job queue could not be reached; start the impact run again.';
+      await em.flush();
+      throw new ServiceUnavailableError('The job queue is unavailable right now; try again shortly.');
+    }
+    return run;
+  }
+
+  async get(em: EntityManager, testCase: TestCase, revision: number, runId: string): Promise<ImpactRun> {
+    const run = await em.findOne(ImpactRun, { id: runId, maskRevision: { testCase, revision } }, { populate: ['maskRevision', 'maskRevision.testCase', 'requestedBy'] });
+    if (!run) throw new NotFoundError(`Revision ${revision} of ${testCase.key} has no impact run ${runId}.`);
+    return run;
+  }
+
+  /** The revision's runs, newest first (the last 20). */
+  list(em: EntityManager, testCase: TestCase, revision: number): Promise<ImpactRun[]> {
+    return em.find(ImpactRun, { maskRevision: { testCase, revision } }, { populate: ['maskRevision', 'maskRevision.testCase', 'requestedBy'], orderBy: { createdAt: 'desc' }, limit: 20 });
+  }
+
+  /**
+   * Queues an analysis under this approved revision for each governed capture of the selected
+   * builds that has no verdict under it yet; the worker links each new verdict to the one it
+   * replaces and recomputes the build's status.
+   * @throws ConflictError unless the revision is approved
+   */
+  async reevaluate(em: EntityManager, project: Project, testCase: TestCase, revision: number, req: ReevaluateRequest, user: User): Promise<ReevaluateResponse> {
+    const mask = await this.revision(em, testCase, revision);
+    if (mask.state !== 'approved') throw new ConflictError(`Revision ${revision} is ${mask.state}; only the approved revision in force can re-evaluate builds.`);
+    const builds = await em.getConnection().execute<{ id: string }[]>(
+      req.scope === 'last-n'
+        ? `select b.id from build b where b.project_id = ? and exists (select 1 from capture c where c.build_id = b.id and c.test_case_id = ?)
+            order by b.created_at desc limit ?`
+        : `select distinct on (coalesce(b.branch, '')) b.id from build b
+            where b.project_id = ? and exists (select 1 from capture c where c.build_id = b.id and c.test_case_id = ?)
+            order by coalesce(b.branch, ''), b.created_at desc limit ?`,
+      [project.id, testCase.id, req.builds ?? 20],
+    );
+    const captures = await governedCaptures(em, mask, builds.map((b) => b.id));
+    const judged = await em.getConnection().execute<{ capture_id: string }[]>(`select capture_id from verdict where mask_revision_id = ? and capture_id = any(?::uuid[])`, [mask.id, `{${captures.map((c) => c.id).join(',')}}`]);
+    const skip = new Set(judged.map((j) => j.capture_id));
+    const todo = captures.filter((c) => !skip.has(c.id)).map((c) => c.id);
+    if (todo.length > 0) {
+      // send() (not insert()) so each job gets the queue's retry, expiry and dead-letter settings.
+      const ids = await Promise.all(todo.map((captureId) => this.boss.send(QUEUES.analyzeCapture, { captureId, maskRevisionId: mask.id }).catch(() => null)));
+      if (ids.some((id) => !id)) throw new ServiceUnavailableError('The job queue is unavailable right now; try again shortly.');
+    }
+    recordAudit(em, { actor: `user:${user.email}`, action: 'mask.reevaluate', subject: `mask:${testCase.key}#${revision}`, project, details: { scope: req.scope, builds: builds.length, queued: todo.length } });
+    await em.flush();
+    return { revision, builds: builds.length, queued: todo.length, captureIds: todo };
+  }
+}

@@ -1,0 +1,97 @@
+import type { EntityManager } from '@mikro-orm/postgresql';
+import { AnalysisSettings, StimulusSpec, type DeriveMaskRequest, type DeriveMaskResponse } from '@earmark/contracts';
+import { Capture, type Project, type TestCase } from '@earmark/db';
+import { ENGINE_VERSION, deriveEnvelope, stimulusAsPlayed } from '@earmark/dsp';
+import { ValidationError } from '../errors.js';
+import type { CaptureAudioLoader } from './capture-audio.js';
+
+/** Default smoothing of a derived envelope (1/6 octave): per-bin scatter would otherwise set σ. */
+const DEFAULT_SMOOTHING = 6;
+
+/**
+ * Proposes a magnitude envelope from golden captures of one test case (mean ± (k·σ + guard),
+ * simplified by Ramer–Douglas–Peucker; packages/dsp deriveEnvelope). Synchronous: 50 captures
+ * of a few seconds decode and analyse in well under the request timeout.
+ */
+export class MaskDerivationService {
+  constructor(private readonly audio: CaptureAudioLoader) {}
+
+  async derive(em: EntityManager, project: Project, testCase: TestCase, req: DeriveMaskRequest): Promise<DeriveMaskResponse> {
+    const captures = await em.find(Capture, { id: { $in: req.captureIds }, project, testCase });
+    const found = new Map(captures.map((c) => [c.id, c]));
+    const missing = req.captureIds.map((id, i) => ({ id, i })).filter(({ id }) => !found.has(id));
+    if (missing.length > 0) {
+      throw new ValidationError(
+        `${missing.length} of the captures are not captures of ${testCase.key} in ${project.key}: ${missing.map((m) => m.id).join(', ')}.`,
+        missing.map(({ i }) => ({ path: `body.captureIds.${i}`, message: `not a capture of test case ${testCase.key}` })),
+      );
+    }
+    const ordered = req.captureIds.map((id) => found.get(id) as Capture);
+    const rates = new Set(ordered.map((c) => c.sampleRate));
+    if (rates.size > 1) throw new ValidationError(`The golden captures must share one sample rate (got ${[...rates].join(', ')} Hz).`, [{ path: 'body.captureIds', message: 'mixed sample rates' }]);
+
+    const spec = StimulusSpec.parse(testCase.stimulus);
+    const settings = AnalysisSettings.parse(testCase.analysis);
+    if (req.measure === 'transfer' && spec.kind === 'silence') throw new ValidationError('A transfer envelope needs a stimulus; this test case plays silence. Use measure "level".', [{ path: 'body.measure', message: 'no stimulus' }]);
+    if (req.measure === 'level' && req.referenceHz !== undefined) throw new ValidationError('referenceHz applies only to measure "transfer".', [{ path: 'body.referenceHz', message: 'only for transfer' }]);
+    const sampleRate = (ordered[0] as Capture).sampleRate;
+    const bandHz = req.bandHz ?? settings.transferBandHz ?? [20, Math.min(20000, 0.95 * (sampleRate / 2))];
+    const channel = req.channel ?? testCase.channelMap[0] ?? 0;
+    const smoothing = req.smoothing ?? DEFAULT_SMOOTHING;
+
+    const audio = [];
+    for (const c of ordered) audio.push(await this.audio.load(c));
+    let derived;
+    try {
+      derived = deriveEnvelope(
+        {
+          captures: audio,
+          ...(spec.kind !== 'silence' ? { reference: stimulusAsPlayed(spec) } : {}),
+          transferMethod: settings.transferMethod ?? (spec.kind === 'sweep' ? 'deconvolution' : 'h1'),
+        },
+        {
+          measure: req.measure,
+          ...(req.measure === 'transfer' && req.referenceHz !== undefined ? { referenceHz: req.referenceHz } : {}),
+          smoothing,
+          k: req.k,
+          guardDb: req.guardDb,
+          maxSegments: req.maxSegments,
+          bandHz,
+          channel,
+          checkId: req.checkId,
+        },
+      );
+    } catch (error) {
+      // The engine's preconditions name what was wrong (a channel, the band, no stimulus energy).
+      if (error instanceof RangeError) throw new ValidationError(`The limits cannot be derived: ${error.message}`, [{ path: 'body', message: error.message }]);
+      throw error;
+    }
+    return {
+      check: derived.check,
+      stats: {
+        captures: ordered.length,
+        channel,
+        unit: derived.unit,
+        ...derived.plot,
+        pointsUsed: derived.hz.length,
+        maxDeviationDb: derived.maxDeviationDb,
+        maxStrayDb: derived.maxStrayDb,
+        worstGoldenMarginDb: derived.worstGoldenMarginDb,
+      },
+      derivation: {
+        captureIds: req.captureIds,
+        k: req.k,
+        guardDb: req.guardDb,
+        maxSegments: req.maxSegments,
+        smoothing,
+        referenceHz: req.measure === 'transfer' ? (req.referenceHz === undefined ? 1000 : req.referenceHz) : null,
+        measure: req.measure,
+        channel,
+        bandHz: [bandHz[0], bandHz[1]],
+        engineVersion: ENGINE_VERSION,
+        maxDeviationDb: derived.maxDeviationDb.overall,
+        derivedAt: new Date().toISOString(),
+      },
+    };
+  }
+}

@@ -1,0 +1,274 @@
+import type { EntityManager } from '@mikro-orm/postgresql';
+import {
+  MaskCheck,
+  MaskDocument,
+  type AuditTrailEntry,
+  type CheckDiff,
+  type CheckFieldChange,
+  type CopyMaskRevisionRequest,
+  type MaskDiff,
+  type MaskHistory,
+  type MaskRevisionState,
+  type ProjectAuditPage,
+  type ProjectAuditQuery,
+  type UpdateMaskDraftRequest,
+} from '@earmark/contracts';
+import { AuditEvent, MaskRevision, Membership, Notification, type Project, type TestCase, type User } from '@earmark/db';
+import { ConflictError, ForbiddenError, NotFoundError } from '../errors.js';
+import { parseWith } from '../http/validate.js';
+import { MASK_POPULATE, assertNotAuthor, maskSubject, recordMaskTransition, type MaskService } from './mask.service.js';
+
+/** Absolute links to the dashboard pages mail points to. */
+export interface WorkflowPages {
+  masks(project: string, testCase: string): string;
+  approvals(project: string): string;
+  findings(project: string): string;
+}
+
+export interface OutboxMail {
+  kind: string;
+  subject: string;
+  body: string;
+  payload: Record<string, unknown>;
+}
+
+/**
+ * Mail to the project's QA managers, written to the outbox in the caller's unit of work
+ * (so it commits with the change it announces). People in `except` (the actor, the
+ * author) are left out: they cannot decide on their own work anyway.
+ * @returns the number of messages queued
+ */
+export async function mailQaManagers(em: EntityManager, project: Project, mail: OutboxMail, except: User[]): Promise<number> {
+  const managers = await em.find(Membership, { project, role: 'qa_manager' }, { populate: ['user'] });
+  const skip = new Set(except.map((u) => u.id));
+  let queued = 0;
+  for (const m of managers) {
+    if (m.user.disabled || skip.has(m.user.id)) continue;
+    em.create(Notification, { kind: mail.kind, recipient: m.user.email, subject: mail.subject, body: mail.body, payload: mail.payload });
+    queued += 1;
+  }
+  return queued;
+}
+
+const isRecord = (v: unknown): v is Record<string, unknown> => typeof v === 'object' && v !== null && !Array.isArray(v);
+
+/** Field-by-field differences of two JSON values, as dotted paths (`upper.2.db`). */
+export function diffValues(before: unknown, after: unknown, path: string, out: CheckFieldChange[]): void {
+  if (isRecord(before) && isRecord(after)) {
+    const keys = [...new Set([...Object.keys(before), ...Object.keys(after)])];
+    for (const k of keys) diffValues(before[k], after[k], path ? `${path}.${k}` : k, out);
+    return;
+  }
+  if (Array.isArray(before) && Array.isArray(after)) {
+    for (let i = 0; i < Math.max(before.length, after.length); i++) diffValues(before[i], after[i], `${path}.${i}`, out);
+    return;
+  }
+  if (JSON.stringify(before) !== JSON.stringify(after)) out.push({ path, before: before ?? null, after: after ?? null });
+}
+
+/**
+ * Check-by-check comparison, matched by check id. Checks go through the schema first so
+ * fields come in its order (the database stores JSON with its keys re-ordered).
+ */
+export function diffChecks(baseChecks: unknown[], headChecks: unknown[]): CheckDiff[] {
+  const asChecks = (list: unknown[]) =>
+    list.map((c) => {
+      const parsed = MaskCheck.safeParse(c);
+      return parsed.success ? (parsed.data as Record<string, unknown>) : c;
+    }).filter(isRecord);
+  const base = new Map(asChecks(baseChecks).map((c) => [String(c.id), c]));
+  const head = asChecks(headChecks);
+  const headIds = new Set(head.map((c) => String(c.id)));
+  const result: CheckDiff[] = head.map((after) => {
+    const id = String(after.id);
+    const before = base.get(id) ?? null;
+    if (!before) return { id, kind: String(after.kind), status: 'added', changes: [], before: null, after };
+    const changes: CheckFieldChange[] = [];
+    diffValues(before, after, '', changes);
+    return { id, kind: String(after.kind), status: changes.length ? 'changed' : 'unchanged', changes, before, after };
+  });
+  for (const [id, before] of base) {
+    if (!headIds.has(id)) result.push({ id, kind: String(before.kind), status: 'removed', changes: [], before, after: null });
+  }
+  return result;
+}
+
+const str = (v: unknown) => (typeof v === 'string' ? v : null);
+
+export function toTrailEntry(e: AuditEvent): AuditTrailEntry {
+  return {
+    id: e.id,
+    at: e.createdAt.toISOString(),
+    actor: e.actor,
+    action: e.action,
+    fromState: str(e.details.from),
+    toState: str(e.details.to),
+    comment: str(e.details.comment),
+    details: e.details,
+  };
+}
+
+const likeLiteral = (s: string) => s.replace(/[\\%_]/g, (c) => `\\${c}`);
+
+/**
+ * The review workflow of mask revisions: edit while draft, submit for review, approve
+ * (MaskService) or reject with a comment, copy any revision to a new draft, diff two
+ * revisions and read a revision's history. A submitted revision never changes again.
+ */
+export class MaskWorkflowService {
+  constructor(
+    private readonly masks: MaskService,
+    private readonly pages: WorkflowPages,
+  ) {}
+
+  listForProject(em: EntityManager, project: Project, state: MaskRevisionState | undefined) {
+    return em.find(
+      MaskRevision,
+      { testCase: { project }, ...(state ? { state } : {}) },
+      { populate: MASK_POPULATE, orderBy: { createdAt: 'desc' }, limit: 500 },
+    );
+  }
+
+  /** @throws ConflictError unless the revision is a draft. */
+  async updateDraft(em: EntityManager, project: Project, testCase: TestCase, revision: number, input: UpdateMaskDraftRequest, actor: User): Promise<MaskRevision> {
+    const mask = await this.masks.get(em, testCase, revision);
+    assertDraft(mask, 'changed');
+    const changed: string[] = [];
+    if (input.checks !== undefined) {
+      mask.checks = parseWith(MaskDocument, { checks: input.checks }, 'body').checks;
+      changed.push('checks');
+    }
+    if (input.note !== undefined) {
+      mask.note = input.note;
+      changed.push('note');
+    }
+    if (input.target !== undefined) {
+      mask.target = await this.masks.resolveTarget(em, project, input.target);
+      changed.push('target');
+    }
+    recordMaskTransition(em, project, mask, { actor, action: 'mask.edit', from: 'draft', to: 'draft', details: { changed } });
+    await em.flush();
+    return mask;
+  }
+
+  /** Draft → in review; the project's QA managers get mail. @throws ConflictError unless it is a draft. */
+  async submit(em: EntityManager, project: Project, testCase: TestCase, revision: number, actor: User): Promise<{ mask: MaskRevision; mailed: number }> {
+    return em.transactional(async (tx) => {
+      const mask = await this.masks.get(tx, testCase, revision);
+      assertDraft(mask, 'submitted');
+      mask.state = 'in_review';
+      mask.submittedAt = new Date();
+      recordMaskTransition(tx, project, mask, { actor, action: 'mask.submit', from: 'draft', to: 'in_review' });
+      const where = mask.target ? `target ${mask.target.key}` : 'all targets';
+      const mailed = await mailQaManagers(
+        tx,
+        project,
+        {
+          kind: 'mask-review',
+          subject: `[Earmark] ${project.key}: mask ${testCase.key} revision ${mask.revision} awaits review`,
+          body: [
+            `${actor.displayName} (${actor.email}) submitted revision ${mask.revision} of the tolerance mask for ${testCase.key} (${where}) in ${project.name} for review.`,
+            `Author: ${mask.author.email}. Checks: ${mask.checks.length}.${mask.basedOn ? ` Copied from revision ${mask.basedOn.revision}.` : ''}`,
+            ...(mask.note ? ['', `Note: ${mask.note}`] : []),
+            '',
+            `Review it: ${this.pages.masks(project.key, testCase.key)}`,
+            `All reviews waiting: ${this.pages.approvals(project.key)}`,
+            '',
+            'You get this because you are a QA manager of this project in Earmark.',
+          ].join('\n'),
+          payload: { project: project.key, testCase: testCase.key, revision: mask.revision },
+        },
+        [actor, mask.author],
+      );
+      await tx.flush();
+      return { mask, mailed };
+    });
+  }
+
+  /**
+   * In review → rejected, with the reviewer's reason.
+   * @throws ForbiddenError for the author; ConflictError unless it is in review.
+   */
+  async reject(em: EntityManager, project: Project, testCase: TestCase, revision: number, reviewer: User, comment: string): Promise<MaskRevision> {
+    const mask = await this.masks.get(em, testCase, revision);
+    assertNotAuthor(mask, reviewer, 'rejected');
+    if (mask.state !== 'in_review') throw new ConflictError(`Revision ${revision} is ${mask.state}; only revisions in review can be rejected.`);
+    mask.state = 'rejected';
+    mask.reviewer = reviewer;
+    mask.decidedAt = new Date();
+    mask.decisionComment = comment;
+    recordMaskTransition(em, project, mask, { actor: reviewer, action: 'mask.reject', from: 'in_review', to: 'rejected', comment });
+    await em.flush();
+    return mask;
+  }
+
+  /** Any revision → a new draft with the same checks, remembering where it came from. */
+  async copy(em: EntityManager, project: Project, testCase: TestCase, revision: number, input: CopyMaskRevisionRequest, author: User): Promise<MaskRevision> {
+    const source = await this.masks.get(em, testCase, revision);
+    const draft = await this.masks.createDraft(
+      em,
+      project,
+      testCase,
+      {
+        checks: source.checks,
+        note: input.note ?? `Copy of revision ${source.revision}${source.note ? `: ${source.note}` : ''}`.slice(0, 4000),
+        target: input.target === undefined ? (source.target?.key ?? null) : input.target,
+      },
+      author,
+      source,
+    );
+    return this.masks.get(em, testCase, draft.revision);
+  }
+
+  /** What changed from `base` (default: the revision it was copied from, else the one before) to `revision`. */
+  async diff(em: EntityManager, testCase: TestCase, revision: number, baseRevision: number | undefined): Promise<MaskDiff> {
+    const head = await this.masks.get(em, testCase, revision);
+    const baseNumber = baseRevision ?? head.basedOn?.revision ?? revision - 1;
+    if (baseNumber < 1) throw new NotFoundError(`Revision ${revision} of ${testCase.key} is the first; give ?base= to compare it with another.`);
+    const base = await this.masks.get(em, testCase, baseNumber);
+    const checks = diffChecks(base.checks, head.checks);
+    const count = (s: CheckDiff['status']) => checks.filter((c) => c.status === s).length;
+    const side = (m: MaskRevision) => ({ revision: m.revision, state: m.state, target: m.target?.key ?? null });
+    return {
+      testCase: testCase.key,
+      base: side(base),
+      head: side(head),
+      checks,
+      summary: { added: count('added'), removed: count('removed'), changed: count('changed'), unchanged: count('unchanged') },
+      noteChanged: base.note !== head.note,
+      targetChanged: (base.target?.id ?? null) !== (head.target?.id ?? null),
+    };
+  }
+
+  /** Every recorded transition of one revision, oldest first. */
+  async history(em: EntityManager, project: Project, testCase: TestCase, revision: number): Promise<MaskHistory> {
+    const mask = await this.masks.get(em, testCase, revision);
+    const events = await em.find(AuditEvent, { project, subject: maskSubject(testCase, mask.revision) }, { orderBy: { createdAt: 'asc', id: 'asc' } });
+    return { testCase: testCase.key, revision: mask.revision, items: events.map(toTrailEntry) };
+  }
+
+  /** The project's audit log, newest first, filtered by actor, action (or `prefix.`) and entity (kind or subject). */
+  async projectAudit(em: EntityManager, project: Project, q: ProjectAuditQuery): Promise<ProjectAuditPage> {
+    const where: Record<string, unknown> = { project };
+    if (q.actor) where.actor = q.actor;
+    if (q.action) where.action = q.action.endsWith('.') ? { $like: `${likeLiteral(q.action)}%` } : q.action;
+    if (q.entity) where.subject = q.entity.includes(':') ? q.entity : { $like: `${likeLiteral(q.entity)}:%` };
+    const [events, total] = await em.findAndCount(AuditEvent, where, {
+      orderBy: { createdAt: 'desc', id: 'desc' },
+      limit: q.pageSize,
+      offset: (q.page - 1) * q.pageSize,
+    });
+    return { items: events.map((e) => ({ ...toTrailEntry(e), subject: e.subject })), total, page: q.page, pageSize: q.pageSize };
+  }
+}
+
+function assertDraft(mask: MaskRevision, verb: string): void {
+  if (mask.state !== 'draft') {
+    throw new ConflictError(`Revision ${mask.revision} is ${mask.state.replace('_', ' ')} and can no longer be ${verb}; copy it to a new draft instead.`);
+  }
+}
+
+/** Kept for symmetry with assertNotAuthor: a requester may not decide on their own waiver. */
+export function assertNotRequester(requester: User, decider: User, verb: 'approved' | 'rejected'): void {
+  if (requester.id === decider.id) throw new ForbiddenError(`A waiver must be ${verb} by someone other than the person who requested it (${requester.email}).`);
+}

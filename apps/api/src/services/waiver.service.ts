@@ -1,0 +1,186 @@
+import type { EntityManager } from '@mikro-orm/postgresql';
+import type { RequestWaiverRequest, WaiverDto, WaiverListQuery } from '@earmark/contracts';
+import { Finding, Notification, Waiver, type Project, type User, type WaiverState } from '@earmark/db';
+import { ConflictError, NotFoundError, ValidationError } from '../errors.js';
+import { recordAudit } from './audit.service.js';
+import { assertNotRequester, mailQaManagers, type WorkflowPages } from './mask-workflow.service.js';
+
+const POPULATE = ['project', 'testCase', 'target', 'requestedBy', 'approvedBy', 'finding'] as const;
+
+export const isActive = (w: Waiver, now = new Date()) => w.state === 'approved' && w.expiresAt > now;
+
+export function toWaiverDto(w: Waiver): WaiverDto {
+  return {
+    id: w.id,
+    project: w.project.key,
+    testCase: w.testCase.key,
+    target: w.target?.key ?? null,
+    checkId: w.checkId,
+    reason: w.reason,
+    until: w.expiresAt.toISOString(),
+    state: w.state,
+    active: isActive(w),
+    requestedBy: w.requestedBy.email,
+    decidedBy: w.approvedBy?.email ?? null,
+    decidedAt: w.decidedAt?.toISOString() ?? null,
+    decisionComment: w.decisionComment,
+    findingId: w.finding?.id ?? null,
+    createdAt: w.createdAt.toISOString(),
+  };
+}
+
+/** A bare date means the end of that day in UTC, so "until 2027-03-31" covers the 31st. */
+export function parseUntil(until: string): Date {
+  return /^\d{4}-\d{2}-\d{2}$/.test(until) ? new Date(`${until}T23:59:59.999Z`) : new Date(until);
+}
+
+/**
+ * Waivers: an engineer asks to accept a finding's deviation until a date; a QA manager
+ * other than the requester decides. While a waiver is active the worker counts the
+ * check as passed with waiver and the finding stays an accepted deviation; the sweeper
+ * expires it, re-opens the finding and mails its assignee.
+ */
+export class WaiverService {
+  constructor(private readonly pages: WorkflowPages) {}
+
+  async list(em: EntityManager, project: Project, q: WaiverListQuery): Promise<Waiver[]> {
+    const state = q.state === 'active' ? { state: 'approved' as const, expiresAt: { $gt: new Date() } } : q.state ? { state: q.state } : {};
+    return em.find(Waiver, { project, ...state }, { populate: POPULATE, orderBy: { createdAt: 'desc' }, limit: 500 });
+  }
+
+  async get(em: EntityManager, project: Project, id: string): Promise<Waiver> {
+    const waiver = /^[0-9a-f-]{36}$/i.test(id) ? await em.findOne(Waiver, { id, project }, { populate: POPULATE }) : null;
+    if (!waiver) throw new NotFoundError(`Project ${project.key} has no waiver ${id}.`);
+    return waiver;
+  }
+
+  /**
+   * Scope: the finding's check on its test case, on every target or (targetOnly) its own.
+   * @throws ValidationError for a date not in the future; ConflictError when the finding already has a pending or active waiver.
+   */
+  async request(em: EntityManager, project: Project, findingId: string, input: RequestWaiverRequest, requester: User): Promise<{ waiver: Waiver; mailed: number }> {
+    return em.transactional(async (tx) => {
+      const finding = /^[0-9a-f-]{36}$/i.test(findingId)
+        ? await tx.findOne(Finding, { id: findingId, project }, { populate: ['capture.testCase', 'capture.target'] })
+        : null;
+      if (!finding) throw new NotFoundError(`Project ${project.key} has no finding ${findingId}.`);
+      const until = parseUntil(input.until);
+      if (!(until.getTime() > Date.now())) throw new ValidationError('A waiver must run until a date in the future.', [{ path: 'body.until', message: 'must be in the future' }]);
+      if (finding.state === 'fixed' || finding.state === 'not_a_defect') throw new ConflictError(`Finding ${finding.id} is ${finding.state.replaceAll('_', ' ')}; there is nothing to waive.`);
+      const pending = await tx.findOne(Waiver, { finding, $or: [{ state: 'requested' }, { state: 'approved', expiresAt: { $gt: new Date() } }] });
+      if (pending) throw new ConflictError(`Finding ${finding.id} already has a ${pending.state} waiver (${pending.id}).`);
+      const { testCase, target } = finding.capture;
+      const waiver = tx.create(Waiver, {
+        project,
+        testCase,
+        target: input.targetOnly ? target : null,
+        checkId: finding.checkId,
+        reason: input.reason,
+        expiresAt: until,
+        requestedBy: requester,
+        finding,
+      });
+      recordWaiverTransition(tx, project, waiver, requester, 'waiver.request', null, 'requested', null, { findingId: finding.id, checkId: finding.checkId, until: until.toISOString() });
+      const scope = `${testCase.key} / ${finding.checkId} on ${input.targetOnly ? `target ${target.key}` : 'every target'}`;
+      const mailed = await mailQaManagers(
+        tx,
+        project,
+        {
+          kind: 'waiver-requested',
+          subject: `[Earmark] ${project.key}: waiver requested for ${testCase.key} / ${finding.checkId}`,
+          body: [
+            `${requester.displayName} (${requester.email}) asks to accept a deviation in ${project.name} until ${until.toISOString().slice(0, 10)}:`,
+            '',
+            `Scope: ${scope}`,
+            `Finding: ${finding.title}`,
+            `Reason: ${input.reason}`,
+            '',
+            `Decide: ${this.pages.approvals(project.key)}`,
+            '',
+            'You get this because you are a QA manager of this project in Earmark.',
+          ].join('\n'),
+          payload: { project: project.key, waiverId: waiver.id, findingId: finding.id },
+        },
+        [requester],
+      );
+      await tx.flush();
+      return { waiver: await tx.findOneOrFail(Waiver, { id: waiver.id }, { populate: POPULATE }), mailed };
+    });
+  }
+
+  /**
+   * Requested → approved; the finding becomes an accepted deviation while the waiver runs.
+   * @throws ForbiddenError for the requester; ConflictError unless requested and still in the future.
+   */
+  async approve(em: EntityManager, project: Project, id: string, decider: User, comment: string | undefined): Promise<Waiver> {
+    return em.transactional(async (tx) => {
+      const waiver = await this.get(tx, project, id);
+      assertNotRequester(waiver.requestedBy, decider, 'approved');
+      if (waiver.state !== 'requested') throw new ConflictError(`Waiver ${id} is ${waiver.state}; only requested waivers can be approved.`);
+      if (waiver.expiresAt <= new Date()) throw new ConflictError(`Waiver ${id} ran until ${waiver.expiresAt.toISOString()}, which has passed; ask for a new one.`);
+      this.decide(waiver, 'approved', decider, comment ?? null);
+      const finding = waiver.finding;
+      let findingFrom: string | null = null;
+      if (finding && (finding.state === 'open' || finding.state === 'investigating')) {
+        findingFrom = finding.state;
+        finding.state = 'accepted_deviation';
+        recordAudit(tx, { actor: `user:${decider.email}`, action: 'finding.waive', subject: `finding:${finding.id}`, project, details: { from: findingFrom, to: 'accepted_deviation', waiverId: waiver.id } });
+      }
+      recordWaiverTransition(tx, project, waiver, decider, 'waiver.approve', 'requested', 'approved', waiver.decisionComment, { findingState: finding ? { from: findingFrom, to: finding.state } : null });
+      this.mailRequester(tx, project, waiver, decider);
+      await tx.flush();
+      return waiver;
+    });
+  }
+
+  /** Requested → rejected, with the reason. @throws ForbiddenError for the requester; ConflictError unless requested. */
+  async reject(em: EntityManager, project: Project, id: string, decider: User, comment: string): Promise<Waiver> {
+    const waiver = await this.get(em, project, id);
+    assertNotRequester(waiver.requestedBy, decider, 'rejected');
+    if (waiver.state !== 'requested') throw new ConflictError(`Waiver ${id} is ${waiver.state}; only requested waivers can be rejected.`);
+    this.decide(waiver, 'rejected', decider, comment);
+    recordWaiverTransition(em, project, waiver, decider, 'waiver.reject', 'requested', 'rejected', comment, {});
+    this.mailRequester(em, project, waiver, decider);
+    await em.flush();
+    return waiver;
+  }
+
+  private decide(waiver: Waiver, state: WaiverState, decider: User, comment: string | null) {
+    waiver.state = state;
+    waiver.approvedBy = decider;
+    waiver.decidedAt = new Date();
+    waiver.decisionComment = comment ? comment : null;
+  }
+
+  /** The requester hears the decision (outbox, same transaction). */
+  private mailRequester(em: EntityManager, project: Project, waiver: Waiver, decider: User) {
+    if (waiver.requestedBy.disabled) return;
+    em.create(Notification, {
+      kind: `waiver-${waiver.state}`,
+      recipient: waiver.requestedBy.email,
+      subject: `[Earmark] ${project.key}: your waiver for ${waiver.testCase.key} / ${waiver.checkId} was ${waiver.state}`,
+      body: [
+        `${decider.displayName} (${decider.email}) ${waiver.state} your waiver for ${waiver.testCase.key} / ${waiver.checkId} in ${project.name}` +
+          (waiver.state === 'approved' ? `; it runs until ${waiver.expiresAt.toISOString().slice(0, 10)}.` : '.'),
+        ...(waiver.decisionComment ? ['', `Comment: ${waiver.decisionComment}`] : []),
+        '',
+        `Findings: ${this.pages.findings(project.key)}`,
+      ].join('\n'),
+      payload: { project: project.key, waiverId: waiver.id },
+    });
+  }
+}
+
+function recordWaiverTransition(
+  em: EntityManager,
+  project: Project,
+  waiver: Waiver,
+  actor: User,
+  action: string,
+  from: WaiverState | null,
+  to: WaiverState,
+  comment: string | null,
+  details: Record<string, unknown>,
+) {
+  recordAudit(em, { actor: `user:${actor.email}`, action, subject: `waiver:${waiver.id}`, project, details: { from, to, comment, checkId: waiver.checkId, testCase: waiver.testCase.key, ...details } });
+}

@@ -1,0 +1,240 @@
+import type { MagnitudeEnvelopeCheck, MaskCheck, MaskRevisionDto } from '@earmark/contracts';
+import { useMemo, useState } from 'react';
+import { Button } from '@/components/button';
+import { Select, TextArea } from '@/components/form-controls';
+import { InlineError } from '@/components/inline-error';
+import { RevisionStateBadge } from '@/components/revision-state-badge';
+import { apiFieldIssues } from '@/lib/field-issues';
+import { formatDateTime } from '@/lib/format-time';
+import { useCandidateCaptures } from '../api/get-candidate-captures';
+import { useTargets } from '../api/get-targets';
+import { useCopyRevision, useSubmitRevision } from '../api/revision-actions';
+import { useSaveDraft } from '../api/save-draft';
+import { drawablePoints, starterCheck, toEditorCheck, validateChecks, type EditorCheck } from '../utils/editor-checks';
+import { ChecksEditor } from './checks-editor';
+import { DeriveWizard } from './derive-wizard';
+import { LimitPreview } from './limit-preview';
+
+/** What the editor holds: a stored revision, or a new draft that is not saved yet. */
+export type EditorSource = { revision: MaskRevisionDto } | { unsaved: { checks: MaskCheck[]; note: string; target: string | null } };
+
+function initialChecks(source: EditorSource): EditorCheck[] {
+  const checks = 'revision' in source ? source.revision.checks : source.unsaved.checks;
+  return checks.length ? checks.map(toEditorCheck) : [starterCheck('magnitude-envelope', 'response')];
+}
+
+/** Puts a derived envelope into a list of checks: it replaces a check with the same id, else it is added. */
+export function withDerived(checks: readonly MaskCheck[], derived: MagnitudeEnvelopeCheck): MaskCheck[] {
+  return checks.some((c) => c.id === derived.id) ? checks.map((c) => (c.id === derived.id ? derived : c)) : [...checks, derived];
+}
+
+/**
+ * One revision open: its checks in the table editor (editable for drafts the user may
+ * change, read-only otherwise), the live preview over a recent capture, and the actions
+ * that fit its state. The parent keys this component by the revision, so switching starts
+ * from the stored checks.
+ */
+export function MaskWorkspace({
+  projectKey,
+  caseKey,
+  source,
+  canDraft,
+  onOpenRevision,
+  onStartDraft,
+}: {
+  projectKey: string;
+  caseKey: string;
+  source: EditorSource;
+  canDraft: boolean;
+  onOpenRevision: (revision: number) => void;
+  /** Opens a new unsaved draft holding these checks. */
+  onStartDraft: (checks: MaskCheck[]) => void;
+}) {
+  const stored = 'revision' in source ? source.revision : null;
+  const editable = canDraft && (stored === null || stored.state === 'draft');
+  const [checks, setChecks] = useState<EditorCheck[]>(() => initialChecks(source));
+  const [note, setNote] = useState(stored?.note ?? ('unsaved' in source ? source.unsaved.note : ''));
+  const [target, setTarget] = useState<string | null>(stored ? stored.target : 'unsaved' in source ? source.unsaved.target : null);
+  const [dirty, setDirty] = useState(stored === null);
+  const [deriving, setDeriving] = useState(false);
+  const [previewUid, setPreviewUid] = useState<string | null>(null);
+  const [captureId, setCaptureId] = useState<string | null>(null);
+
+  const save = useSaveDraft(projectKey, caseKey);
+  const submit = useSubmitRevision(projectKey, caseKey);
+  const copy = useCopyRevision(projectKey, caseKey);
+  const targets = useTargets(projectKey);
+  const candidates = useCandidateCaptures(projectKey, caseKey);
+
+  const validation = useMemo(() => validateChecks(checks), [checks]);
+  const issues = validation.ok ? (save.error ? apiFieldIssues(save.error) : {}) : validation.issues;
+  const change = (next: EditorCheck[]) => {
+    setChecks(next);
+    setDirty(true);
+  };
+
+  // The preview follows the chosen envelope, else the first one in the draft.
+  const envelopes = checks.filter((c) => c.kind === 'magnitude-envelope');
+  const previewed = envelopes.find((c) => c.uid === previewUid) ?? envelopes[0] ?? null;
+  const upper = useMemo(() => drawablePoints(previewed?.upper ?? null), [previewed?.upper]);
+  const lower = useMemo(() => drawablePoints(previewed?.lower ?? null), [previewed?.lower]);
+  const chosenCapture = captureId ?? candidates.data?.[0]?.captureId ?? null;
+
+  const saveDraft = async (): Promise<MaskRevisionDto | null> => {
+    if (!validation.ok) return null;
+    const saved = await save.mutateAsync({ revision: stored?.revision ?? null, checks: validation.checks, note, target });
+    setDirty(false);
+    return saved;
+  };
+
+  const onSave = () => {
+    void saveDraft()
+      .then((saved) => {
+        if (saved && stored === null) onOpenRevision(saved.revision);
+      })
+      .catch(() => undefined);
+  };
+
+  const onSubmit = () => {
+    void (async () => {
+      const revision = dirty || stored === null ? await saveDraft() : stored;
+      if (!revision) return;
+      await submit.mutateAsync(revision.revision);
+      onOpenRevision(revision.revision);
+    })().catch(() => undefined);
+  };
+
+  const onUseDerived = (derived: MagnitudeEnvelopeCheck) => {
+    setDeriving(false);
+    if (editable) {
+      const next = toEditorCheck(derived);
+      const at = checks.findIndex((c) => (c.fields.id ?? '') === derived.id);
+      change(at >= 0 ? checks.map((c, i) => (i === at ? next : c)) : [...checks, next]);
+      setPreviewUid(next.uid);
+    } else {
+      onStartDraft(withDerived(stored?.checks ?? [], derived));
+    }
+  };
+
+  const actionError = save.error ?? submit.error ?? copy.error;
+  return (
+    <div className="space-y-4">
+      <div className="flex flex-wrap items-start justify-between gap-3 rounded-lg border border-line bg-paper-raised px-4 py-3">
+        <div className="min-w-0 space-y-1">
+          <div className="flex flex-wrap items-center gap-2">
+            <h2 className="text-base font-semibold text-ink-950">{stored ? `Revision ${stored.revision}` : 'New draft'}</h2>
+            {stored ? <RevisionStateBadge state={stored.state} /> : <RevisionStateBadge state="draft" />}
+            {editable && dirty ? <span className="text-xs text-ink-500">Unsaved changes</span> : null}
+          </div>
+          {stored ? (
+            <p className="text-xs text-ink-600">
+              Drafted by {stored.author} on {formatDateTime(stored.createdAt)}
+              {stored.reviewer ? ` · ${stored.state === 'rejected' ? 'rejected' : 'reviewed'} by ${stored.reviewer}` : ''}
+              {stored.decidedAt ? ` on ${formatDateTime(stored.decidedAt)}` : ''}
+            </p>
+          ) : (
+            <p className="text-xs text-ink-600">Not saved yet. Save it to keep it; submit it when it is ready for a QA manager.</p>
+          )}
+        </div>
+        {canDraft ? (
+          <div className="flex flex-wrap items-center gap-2">
+            <Button variant="secondary" onClick={() => setDeriving(true)} disabled={!candidates.data}>
+              Derive from captures
+            </Button>
+            {stored ? (
+              <Button variant="secondary" busy={copy.isPending} onClick={() => copy.mutate({ revision: stored.revision, body: {} }, { onSuccess: (r) => onOpenRevision(r.revision) })}>
+                Copy to new draft
+              </Button>
+            ) : null}
+            {editable ? (
+              <>
+                <Button variant="secondary" busy={save.isPending && !submit.isPending} disabled={!validation.ok || (!dirty && stored !== null)} onClick={onSave}>
+                  Save draft
+                </Button>
+                <Button busy={submit.isPending} disabled={!validation.ok} onClick={onSubmit}>
+                  Submit for review
+                </Button>
+              </>
+            ) : null}
+          </div>
+        ) : null}
+      </div>
+
+      {actionError ? <InlineError error={actionError} /> : null}
+      {editable && !validation.ok ? (
+        <p role="status" className="text-xs text-fail">
+          {Object.keys(validation.issues).length === 1 ? 'One problem' : `${Object.keys(validation.issues).length} problems`} to fix before this draft can be saved;
+          each is shown under its cell.
+        </p>
+      ) : null}
+
+      {editable ? (
+        <div className="grid gap-3 sm:grid-cols-[minmax(0,2fr)_minmax(0,1fr)]">
+          <label className="block text-[11px] font-semibold uppercase tracking-[0.07em] text-ink-500">
+            Note
+            <TextArea
+              rows={2}
+              value={note}
+              onChange={(e) => {
+                setNote(e.target.value);
+                setDirty(true);
+              }}
+              placeholder="What changed and why, for the reviewer"
+              className="mt-1 normal-case tracking-normal"
+            />
+          </label>
+          <label className="block text-[11px] font-semibold uppercase tracking-[0.07em] text-ink-500">
+            Target
+            <Select
+              value={target ?? ''}
+              onChange={(e) => {
+                setTarget(e.target.value || null);
+                setDirty(true);
+              }}
+              className="mt-1 w-full normal-case tracking-normal"
+            >
+              <option value="">All targets without their own mask</option>
+              {targets.data?.map((t) => (
+                <option key={t.key} value={t.key}>
+                  {t.key} — {t.name}
+                </option>
+              ))}
+            </Select>
+          </label>
+        </div>
+      ) : stored?.note ? (
+        <p className="rounded-md border border-line bg-paper-raised px-3 py-2 text-sm text-ink-700">{stored.note}</p>
+      ) : null}
+
+      <ChecksEditor
+        checks={checks}
+        issues={editable ? issues : {}}
+        readOnly={!editable}
+        onChange={change}
+        selectedUid={previewed?.uid ?? null}
+        onSelect={setPreviewUid}
+      />
+
+      <LimitPreview
+        projectKey={projectKey}
+        candidates={{ data: candidates.data, isPending: candidates.isPending, error: candidates.error }}
+        captureId={chosenCapture}
+        onCaptureChange={setCaptureId}
+        upper={upper}
+        lower={lower}
+        checkName={previewed ? previewed.fields.id || 'unnamed check' : null}
+      />
+
+      {deriving && candidates.data ? (
+        <DeriveWizard
+          projectKey={projectKey}
+          caseKey={caseKey}
+          open
+          onClose={() => setDeriving(false)}
+          candidates={candidates.data}
+          onUse={onUseDerived}
+        />
+      ) : null}
+    </div>
+  );
+}

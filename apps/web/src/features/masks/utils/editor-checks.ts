@@ -1,0 +1,283 @@
+import {
+  CHECK_KINDS,
+  DISTORTION_METRICS,
+  INTEGRITY_METRICS,
+  LEVEL_METRICS,
+  MaskDocument,
+  TIMING_METRICS,
+  type CheckKind,
+  type LimitPoint,
+  type MaskCheck,
+} from '@earmark/contracts';
+import { issuesByPath, type FieldIssues } from '@/lib/field-issues';
+
+/**
+ * The table editor's model. People type into cells, so every value is kept as typed (a
+ * half-written "-0." must survive a re-render) and turned into a check only to validate,
+ * preview and save. The conversion keeps list positions, so the schema's issue paths
+ * (`checks.2.upper.1.hz`) point straight at the cell that caused them.
+ */
+
+export type PointRow = { hz: string; db: string };
+export type BandRow = { centerHz: string; min: string; max: string };
+
+export type EditorCheck = {
+  /** React key; stable across reorders, never sent. */
+  uid: string;
+  kind: CheckKind;
+  /** Scalar fields by their schema name; tuple fields as `bandHz.0`, `bandHz.1`. */
+  fields: Record<string, string>;
+  upper: PointRow[] | null;
+  lower: PointRow[] | null;
+  bands: BandRow[];
+};
+
+export type FieldSpec = {
+  /** Schema field, or `name.0`/`name.1` for a tuple's parts. */
+  name: string;
+  label: string;
+  unit?: string;
+  type: 'text' | 'number' | 'select' | 'list' | 'pairs';
+  options?: readonly { value: string; label: string }[];
+  placeholder?: string;
+};
+
+export const CHECK_KIND_LABELS: Record<CheckKind, string> = {
+  'magnitude-envelope': 'Magnitude envelope',
+  'band-levels': 'Band levels',
+  level: 'Level and energy',
+  'phase-linearity': 'Phase linearity',
+  distortion: 'Distortion and noise',
+  timing: 'Timing',
+  integrity: 'Time-domain integrity',
+};
+
+const options = (values: readonly string[]) => values.map((value) => ({ value, label: value }));
+const measure: FieldSpec = { name: 'measure', label: 'Measure', type: 'select', options: options(['transfer', 'level']) };
+const referenceHz: FieldSpec = { name: 'referenceHz', label: 'Reference', unit: 'Hz', type: 'number', placeholder: '1000' };
+const min: FieldSpec = { name: 'min', label: 'Min', type: 'number' };
+const max: FieldSpec = { name: 'max', label: 'Max', type: 'number' };
+const band = (label: string): FieldSpec[] => [
+  { name: 'bandHz.0', label: `${label} from`, unit: 'Hz', type: 'number', placeholder: 'auto' },
+  { name: 'bandHz.1', label: `${label} to`, unit: 'Hz', type: 'number', placeholder: 'auto' },
+];
+
+/** Per kind, the fields the MaskCheck schema defines besides id, label, channels and the curve/band tables. */
+export const KIND_FIELDS: Record<CheckKind, FieldSpec[]> = {
+  'magnitude-envelope': [
+    measure,
+    referenceHz,
+    { name: 'smoothing', label: 'Smoothing', unit: '1/N oct', type: 'select', options: [{ value: '', label: 'none' }, ...options(['1', '3', '6', '12', '24'])] },
+  ],
+  'band-levels': [{ name: 'fraction', label: 'Bands', unit: '1/N oct', type: 'select', options: options(['1', '3', '6', '12']) }, measure, referenceHz],
+  level: [
+    { name: 'metric', label: 'Metric', type: 'select', options: options(LEVEL_METRICS) },
+    min,
+    max,
+    { name: 'timeSeconds.0', label: 'From', unit: 's', type: 'number', placeholder: 'start' },
+    { name: 'timeSeconds.1', label: 'To', unit: 's', type: 'number', placeholder: 'end' },
+  ],
+  'phase-linearity': [
+    ...band('Band'),
+    { name: 'maxDeviationDeg', label: 'Max deviation', unit: '°', type: 'number' },
+    { name: 'maxGroupDelayVariationMs', label: 'Max GD variation', unit: 'ms', type: 'number' },
+  ],
+  distortion: [
+    { name: 'metric', label: 'Metric', type: 'select', options: options(DISTORTION_METRICS) },
+    min,
+    max,
+    { name: 'weighting', label: 'Weighting', type: 'select', options: [{ value: '', label: 'default' }, { value: 'none', label: 'none' }, { value: 'a', label: 'A' }] },
+    ...band('Band'),
+  ],
+  timing: [
+    { name: 'metric', label: 'Metric', type: 'select', options: options(TIMING_METRICS) },
+    { ...min, unit: 'ms' },
+    { ...max, unit: 'ms' },
+    { name: 'pairs', label: 'Pairs', type: 'pairs', placeholder: '0-1, 0-2' },
+  ],
+  integrity: [
+    { name: 'metric', label: 'Metric', type: 'select', options: options(INTEGRITY_METRICS) },
+    max,
+    { name: 'clipThreshold', label: 'Clip threshold', unit: 'FS', type: 'number' },
+    { name: 'minDropoutMs', label: 'Min dropout', unit: 'ms', type: 'number' },
+  ],
+};
+
+export { CHECK_KINDS };
+
+let uidCounter = 0;
+export function newUid(): string {
+  uidCounter += 1;
+  return `c${uidCounter}`;
+}
+
+/** A fresh check of a kind with sensible starting values (valid as it stands, except its id if taken). */
+export function starterCheck(kind: CheckKind, id: string): EditorCheck {
+  const base = { uid: newUid(), kind, upper: null, lower: null, bands: [] as BandRow[] };
+  switch (kind) {
+    case 'magnitude-envelope':
+      return {
+        ...base,
+        fields: { id, measure: 'transfer', smoothing: '6' },
+        upper: [
+          { hz: '20', db: '1' },
+          { hz: '20000', db: '1' },
+        ],
+        lower: [
+          { hz: '20', db: '-1' },
+          { hz: '20000', db: '-1' },
+        ],
+      };
+    case 'band-levels':
+      return { ...base, fields: { id, fraction: '3', measure: 'level' }, bands: [{ centerHz: '1000', min: '', max: '-100' }] };
+    case 'level':
+      return { ...base, fields: { id, metric: 'rms-dbfs', min: '-21', max: '-19' } };
+    case 'phase-linearity':
+      return { ...base, fields: { id, maxDeviationDeg: '5' } };
+    case 'distortion':
+      return { ...base, fields: { id, metric: 'thd-percent', max: '0.1' } };
+    case 'timing':
+      return { ...base, fields: { id, metric: 'latency-ms', min: '0', max: '10' } };
+    case 'integrity':
+      return { ...base, fields: { id, metric: 'clipped-samples', max: '0' } };
+  }
+}
+
+function text(value: unknown): string {
+  return value === undefined || value === null ? '' : String(value);
+}
+
+/** A stored check as editor rows. */
+export function toEditorCheck(check: MaskCheck): EditorCheck {
+  const fields: Record<string, string> = {};
+  let upper: PointRow[] | null = null;
+  let lower: PointRow[] | null = null;
+  let bands: BandRow[] = [];
+  for (const [name, value] of Object.entries(check)) {
+    if (name === 'kind') continue;
+    if (name === 'upper' || name === 'lower') {
+      const rows = (value as LimitPoint[]).map((p) => ({ hz: text(p.hz), db: text(p.db) }));
+      if (name === 'upper') upper = rows;
+      else lower = rows;
+    } else if (name === 'bands') {
+      bands = (value as { centerHz: number; min?: number; max?: number }[]).map((b) => ({ centerHz: text(b.centerHz), min: text(b.min), max: text(b.max) }));
+    } else if (name === 'channels') {
+      fields.channels = (value as number[]).join(', ');
+    } else if (name === 'pairs') {
+      fields.pairs = (value as [number, number][]).map(([a, b]) => `${a}-${b}`).join(', ');
+    } else if (name === 'bandHz' || name === 'timeSeconds') {
+      const [a, b] = value as [number, number];
+      fields[`${name}.0`] = text(a);
+      fields[`${name}.1`] = text(b);
+    } else if (name === 'referenceHz' && value === null) {
+      fields.referenceHz = 'none';
+    } else {
+      fields[name] = text(value);
+    }
+  }
+  return { uid: newUid(), kind: check.kind, fields, upper, lower, bands };
+}
+
+/** "12.5" → 12.5, "" → undefined, "abc" → NaN (so the schema says "expected number" at that cell). */
+function num(raw: string | undefined): number | undefined {
+  const trimmed = (raw ?? '').trim().replace(/\u2212/g, '-');
+  if (trimmed === '') return undefined;
+  const value = Number(trimmed);
+  return Number.isFinite(value) ? value : Number.NaN;
+}
+
+function numList(raw: string | undefined): number[] | undefined {
+  const parts = (raw ?? '').split(/[,\s;]+/).filter(Boolean);
+  return parts.length ? parts.map((part) => num(part) ?? Number.NaN) : undefined;
+}
+
+function pairList(raw: string | undefined): [number, number][] | undefined {
+  const parts = (raw ?? '').split(/[,;]+/).map((p) => p.trim()).filter(Boolean);
+  if (!parts.length) return undefined;
+  return parts.map((part) => {
+    const [a, b] = part.split(/[-–:>\s]+/).filter(Boolean);
+    return [num(a) ?? Number.NaN, num(b) ?? Number.NaN];
+  });
+}
+
+/** The check as the API takes it; blanks are left out so the schema's defaults and rules apply. */
+export function toCheckInput(check: EditorCheck): Record<string, unknown> {
+  const out: Record<string, unknown> = { kind: check.kind, id: (check.fields.id ?? '').trim() };
+  const label = (check.fields.label ?? '').trim();
+  if (label) out.label = label;
+  const channels = numList(check.fields.channels);
+  if (channels) out.channels = channels;
+  for (const spec of KIND_FIELDS[check.kind]) {
+    const raw = check.fields[spec.name] ?? '';
+    if (spec.name.endsWith('.0') || spec.name.endsWith('.1')) continue;
+    if (raw.trim() === '') continue;
+    if (spec.name === 'referenceHz' && raw.trim().toLowerCase() === 'none') out.referenceHz = null;
+    else if (spec.type === 'pairs') out.pairs = pairList(raw);
+    else if (spec.type === 'select') out[spec.name] = /^\d+$/.test(raw) ? Number(raw) : raw;
+    else if (spec.type === 'number') out[spec.name] = num(raw);
+    else out[spec.name] = raw;
+  }
+  for (const tuple of ['bandHz', 'timeSeconds']) {
+    const a = check.fields[`${tuple}.0`] ?? '';
+    const b = check.fields[`${tuple}.1`] ?? '';
+    if (KIND_FIELDS[check.kind].some((f) => f.name === `${tuple}.0`) && (a.trim() || b.trim())) {
+      out[tuple] = [num(a) ?? Number.NaN, num(b) ?? Number.NaN];
+    }
+  }
+  if (check.kind === 'magnitude-envelope') {
+    if (check.upper) out.upper = check.upper.map((p) => ({ hz: num(p.hz) ?? Number.NaN, db: num(p.db) ?? Number.NaN }));
+    if (check.lower) out.lower = check.lower.map((p) => ({ hz: num(p.hz) ?? Number.NaN, db: num(p.db) ?? Number.NaN }));
+  }
+  if (check.kind === 'band-levels') {
+    out.bands = check.bands.map((b) => {
+      const row: Record<string, number> = { centerHz: num(b.centerHz) ?? Number.NaN };
+      const lo = num(b.min);
+      const hi = num(b.max);
+      if (lo !== undefined) row.min = lo;
+      if (hi !== undefined) row.max = hi;
+      return row;
+    });
+  }
+  return out;
+}
+
+export type Validation = { ok: true; checks: MaskCheck[] } | { ok: false; issues: FieldIssues };
+
+/** The whole draft against MaskDocument: every message keyed by its path (`checks.0.upper.1.hz`). */
+export function validateChecks(checks: readonly EditorCheck[]): Validation {
+  const parsed = MaskDocument.safeParse({ checks: checks.map(toCheckInput) });
+  if (parsed.success) return { ok: true, checks: parsed.data.checks };
+  const issues = issuesByPath(parsed.error);
+  // zod words a NaN as "expected number, received NaN"; say it the way a person typed it.
+  for (const messages of Object.values(issues)) {
+    messages.forEach((message, i) => {
+      if (/received NaN/i.test(message)) messages[i] = 'must be a number';
+    });
+  }
+  return { ok: false, issues };
+}
+
+/** The points of a typed limit curve that can be drawn (numbers, positive frequency), in order. */
+export function drawablePoints(rows: readonly PointRow[] | null): LimitPoint[] | null {
+  if (!rows) return null;
+  const points = rows
+    .map((row) => ({ hz: num(row.hz), db: num(row.db) }))
+    .filter((p): p is LimitPoint => p.hz !== undefined && p.db !== undefined && Number.isFinite(p.hz) && Number.isFinite(p.db) && p.hz > 0);
+  return points.length >= 2 ? points : null;
+}
+
+/** An id not yet used in the draft: `kind`, `kind-2`, … */
+export function freeId(checks: readonly EditorCheck[], stem: string): string {
+  const taken = new Set(checks.map((c) => (c.fields.id ?? '').trim()));
+  if (!taken.has(stem)) return stem;
+  for (let n = 2; ; n++) if (!taken.has(`${stem}-${n}`)) return `${stem}-${n}`;
+}
+
+/** Moves the item at `from` to `to`, returning a new array. */
+export function move<T>(items: readonly T[], from: number, to: number): T[] {
+  const next = [...items];
+  const [item] = next.splice(from, 1);
+  if (item === undefined || to < 0 || to > next.length) return [...items];
+  next.splice(to, 0, item);
+  return next;
+}

@@ -1,0 +1,173 @@
+import type { CurrentUser, ImpactRunDto, MaskRevisionDto, WaiverDto } from '@earmark/contracts';
+import { screen, waitFor, within } from '@testing-library/react';
+import userEvent from '@testing-library/user-event';
+import { describe, expect, it, vi } from 'vitest';
+import { json, mockApi, problem, seedSession } from './mock-api';
+import { renderApp } from './render-app';
+
+vi.mock('@/app/routes/app/capture', () => ({ CaptureRoute: () => null, captureLoader: () => () => null }));
+
+const qa: CurrentUser = {
+  id: 'u-qa',
+  email: 'qa@aurora-acoustics.test',
+  displayName: 'Quinn Abara',
+  isAdmin: false,
+  memberships: [{ projectKey: 'kestrel-buds', projectName: 'Kestrel Buds', role: 'qa_manager' }],
+};
+
+const inReview = (n: number, author: string): MaskRevisionDto => ({
+  id: `00000000-0000-4000-8000-00000000020${n}`,
+  testCase: n === 1 ? 'eq.sweep' : 'thd.1k',
+  target: null,
+  revision: n,
+  state: 'in_review',
+  checks: [{ kind: 'level', id: 'output-level', metric: 'rms-dbfs', min: -21, max: -19 }],
+  note: 'Tighter level window',
+  author,
+  reviewer: null,
+  createdAt: '2025-06-01T08:00:00.000Z',
+  decidedAt: null,
+  submittedAt: '2025-06-01T09:00:00.000Z',
+  decisionComment: null,
+  basedOn: null,
+});
+
+const waiver: WaiverDto = {
+  id: '00000000-0000-4000-8000-000000000301',
+  project: 'kestrel-buds',
+  testCase: 'eq.sweep',
+  target: 'rev-b',
+  checkId: 'eq-response',
+  reason: 'Known tweeter resonance on rev B boards',
+  until: '2025-09-30',
+  state: 'requested',
+  active: false,
+  requestedBy: 'eli@aurora-acoustics.test',
+  decidedBy: null,
+  decidedAt: null,
+  decisionComment: null,
+  findingId: null,
+  createdAt: '2025-06-02T08:00:00.000Z',
+};
+
+const run = (state: ImpactRunDto['state'], progress: number): ImpactRunDto => ({
+  id: 'run-1',
+  testCase: 'eq.sweep',
+  revision: 1,
+  builds: 20,
+  state,
+  progress,
+  total: 40,
+  requestedBy: 'qa@aurora-acoustics.test',
+  createdAt: '2025-06-03T08:00:00.000Z',
+  finishedAt: state === 'done' ? '2025-06-03T08:01:00.000Z' : null,
+  error: null,
+  result:
+    state === 'done'
+      ? {
+          builds: [
+            {
+              sha: 'b'.repeat(40),
+              branch: 'main',
+              label: null,
+              createdAt: '2025-06-02T08:00:00.000Z',
+              current: 'pass',
+              draft: 'fail',
+              flip: 'pass-to-fail',
+              checks: [{ checkId: 'output-level', unit: 'dBFS', current: { pass: true, margin: 0.4 }, draft: { pass: false, margin: -0.3 }, flip: 'pass-to-fail' }],
+              captures: [],
+            },
+          ],
+          summary: {
+            builds: 1,
+            captures: 2,
+            passToFail: 1,
+            failToPass: 0,
+            capturesPassToFail: 1,
+            capturesFailToPass: 0,
+            worst: [{ checkId: 'output-level', unit: 'dBFS', current: 0.4, draft: -0.3 }],
+          },
+        }
+      : null,
+});
+
+function setup() {
+  seedSession();
+  const polls: string[] = [];
+  let pollCount = 0;
+  const api = mockApi({
+    'GET /api/me': () => json(qa),
+    'GET /api/projects/kestrel-buds/masks': () => json({ items: [inReview(1, 'eli@aurora-acoustics.test'), inReview(2, 'qa@aurora-acoustics.test')] }),
+    'GET /api/projects/kestrel-buds/waivers': () => json({ items: [waiver] }),
+    'GET /api/projects/kestrel-buds/test-cases/eq.sweep/masks/1/impact': () => json({ items: [] }),
+    'GET /api/projects/kestrel-buds/test-cases/thd.1k/masks/2/impact': () => json({ items: [] }),
+    'POST /api/projects/kestrel-buds/test-cases/eq.sweep/masks/1/impact': () => json(run('queued', 0), 202),
+    'GET /api/projects/kestrel-buds/test-cases/eq.sweep/masks/1/impact/run-1': () => {
+      pollCount += 1;
+      polls.push(`poll ${pollCount}`);
+      return json(pollCount === 1 ? run('running', 10) : run('done', 40));
+    },
+    'POST /api/projects/kestrel-buds/test-cases/eq.sweep/masks/1/approve': () => json({ ...inReview(1, 'eli@aurora-acoustics.test'), state: 'approved' }),
+    'POST /api/projects/kestrel-buds/test-cases/eq.sweep/masks/1/reject': () => json({ ...inReview(1, 'eli@aurora-acoustics.test'), state: 'rejected' }),
+    [`POST /api/projects/kestrel-buds/waivers/${waiver.id}/approve`]: () => problem(409, 'Waiver already decided'),
+  });
+  return { ...api, polls };
+}
+
+describe('approvals queue', () => {
+  it('approves with the optional comment and rejects only with one', async () => {
+    const api = setup();
+    renderApp('/projects/kestrel-buds/approvals');
+    const user = userEvent.setup();
+
+    expect(await screen.findByRole('heading', { name: 'Approvals' })).toBeTruthy();
+    expect(screen.getByRole('link', { name: 'Approvals' })).toBeTruthy();
+    const card = await screen.findByRole('article', { name: 'Revision 1 of eq.sweep' });
+
+    await user.click(within(card).getByRole('button', { name: 'Reject' }));
+    expect(within(card).getByText('say why the revision is rejected')).toBeTruthy();
+    expect(api.requests.some((r) => r.path.endsWith('/reject'))).toBe(false);
+
+    await user.type(within(card).getByLabelText(/Comment/), '  Too tight for rev B  ');
+    await user.click(within(card).getByRole('button', { name: 'Reject' }));
+    await waitFor(() => expect(api.requests.find((r) => r.path.endsWith('/masks/1/reject'))?.body).toEqual({ comment: 'Too tight for rev B' }));
+
+    await user.click(within(card).getByRole('button', { name: 'Approve' }));
+    await waitFor(() => expect(api.requests.find((r) => r.path.endsWith('/masks/1/approve'))?.body).toEqual({ comment: 'Too tight for rev B' }));
+  });
+
+  it('disables the decision for the author, with the reason', async () => {
+    setup();
+    renderApp('/projects/kestrel-buds/approvals');
+    const card = await screen.findByRole('article', { name: 'Revision 2 of thd.1k' });
+    const approve = within(card).getByRole('button', { name: 'Approve' }) as HTMLButtonElement;
+    expect(approve.disabled).toBe(true);
+    expect((within(card).getByRole('button', { name: 'Reject' }) as HTMLButtonElement).disabled).toBe(true);
+    const reason = document.getElementById(approve.getAttribute('aria-describedby') ?? '');
+    expect(reason?.textContent).toBe('You drafted this revision; another QA manager must approve it');
+    // Someone else's waiver can be decided; the API's refusal is shown in its own words.
+    const waiverCard = screen.getByRole('article', { name: 'Waiver of eq-response on eq.sweep' });
+    const user = userEvent.setup();
+    await user.click(within(waiverCard).getByRole('button', { name: 'Approve' }));
+    expect(await within(waiverCard).findByText('Waiver already decided')).toBeTruthy();
+  });
+
+  it('starts an impact run and polls its progress until the flips are in', async () => {
+    const api = setup();
+    renderApp('/projects/kestrel-buds/approvals');
+    const user = userEvent.setup();
+    const card = await screen.findByRole('article', { name: 'Revision 1 of eq.sweep' });
+    await within(card).findByText(/No impact run yet/);
+
+    await user.click(within(card).getByRole('button', { name: 'Run impact' }));
+    await waitFor(() => expect(api.requests.find((r) => r.method === 'POST' && r.path.endsWith('/impact'))?.body).toEqual({ builds: 20 }));
+    const bar = await within(card).findByRole('progressbar', { name: 'Impact run of revision 1' });
+    await waitFor(() => expect(bar.getAttribute('aria-valuenow')).toBe('10'));
+    expect(within(card).getByText('Evaluated 10 of 40 captures')).toBeTruthy();
+
+    const table = await within(card).findByRole('table', { name: 'Impact of revision 1 per build' }, { timeout: 4000 });
+    expect(within(table).getByText('would now fail')).toBeTruthy();
+    expect(within(card).getByRole('table', { name: 'Worst margins of revision 1' }).textContent).toContain('−0.30 dBFS');
+    expect(api.polls.length).toBe(2);
+  });
+});

@@ -1,0 +1,297 @@
+import type { MagnitudeEnvelopeCheck, SpectralMeasure } from '@earmark/contracts';
+import type { AudioBuffers } from '../analyze/analyze-capture.js';
+import { precondition } from '../util/preconditions.js';
+import { sampleLimit, type LimitBreakpoint } from './limit-curve.js';
+import { MaskContext } from './mask-context.js';
+import { validateMaskInput } from './mask-input.js';
+import { DEFAULT_REFERENCE_HZ, envelopePoints, type SpectrumPoints } from './spectral-curves.js';
+
+/** What limits are derived from: golden captures of one test case and the stimulus they answer. */
+export interface DeriveEnvelopeInput {
+  captures: readonly AudioBuffers[];
+  /** Needed for `measure: 'transfer'`. */
+  reference?: AudioBuffers;
+  transferMethod?: 'h1' | 'deconvolution';
+}
+
+/** Options of `deriveEnvelope`. */
+export interface DeriveEnvelopeOptions {
+  measure: SpectralMeasure;
+  /** Transfer only: normalisation frequency (default 1000 Hz), null for the absolute gain. */
+  referenceHz?: number | null;
+  /** 1/N-octave smoothing, as the envelope check applies it (none when absent). */
+  smoothing?: 1 | 3 | 6 | 12 | 24;
+  /** Limits sit k standard deviations plus `guardDb` from the mean. */
+  k: number;
+  guardDb: number;
+  /** Most straight segments per limit (so at most maxSegments + 1 breakpoints). */
+  maxSegments: number;
+  /** Span of the limits, Hz. */
+  bandHz: readonly [number, number];
+  /** Capture channel (default 0). */
+  channel?: number;
+  /** Id of the proposed check (default `derived-envelope`). */
+  checkId?: string;
+  /** Log-spaced columns of the plotted statistics (default 256). */
+  columns?: number;
+}
+
+/** A proposal: the check, the statistics behind it and how far simplification moved the limits. */
+export interface DerivedEnvelope {
+  check: MagnitudeEnvelopeCheck;
+  unit: 'dB' | 'dBFS';
+  /** Frequencies measured in every golden capture, and the per-frequency statistics there. */
+  hz: Float64Array;
+  mean: Float64Array;
+  /** Sample standard deviation (N − 1 in the denominator). */
+  std: Float64Array;
+  upperRaw: Float64Array;
+  lowerRaw: Float64Array;
+  /** The statistics averaged into log-spaced columns, for plotting. */
+  plot: { hz: number[]; mean: number[]; std: number[]; upperRaw: number[]; lowerRaw: number[] };
+  /** Largest |simplified − raw| over the measured frequencies, dB. */
+  maxDeviationDb: { upper: number; lower: number; overall: number };
+  /** Largest amount the simplified upper falls below the raw upper (lower above raw lower), dB; 0 by construction. */
+  maxStrayDb: number;
+  /** Smallest margin of any golden capture against the proposed limits, dB. */
+  worstGoldenMarginDb: number;
+}
+
+/**
+ * Indices (ascending, first and last included) of at most `maxSegments + 1` points that keep
+ * the polyline through (x, y) closest to all points, by top-down refinement: start from the
+ * end points and repeatedly split the segment whose interior point lies farthest (vertically)
+ * from it at that point — the Ramer–Douglas–Peucker split rule, driven by a segment budget
+ * instead of a distance tolerance, and with the vertical distance because a limit is a
+ * function of frequency (its error is in dB, not in a mix of dB and decades).
+ * @throws RangeError when x and y differ in length, fewer than two points, or maxSegments < 1
+ * @see U. Ramer, "An iterative procedure for the polygonal approximation of plane curves",
+ *   Computer Graphics and Image Processing 1(3), 1972; D. H. Douglas, T. K. Peucker,
+ *   "Algorithms for the reduction of the number of points required to represent a digitized
+ *   line or its caricature", The Canadian Cartographer 10(2), 1973
+ */
+export function simplifyPolyline(x: Float64Array, y: Float64Array, maxSegments: number): number[] {
+  const fn = 'simplifyPolyline';
+  precondition(x.length === y.length, fn, `x and y must have the same length (${x.length} vs ${y.length})`);
+  precondition(x.length >= 2, fn, `need at least two points (got ${x.length})`);
+  precondition(Number.isInteger(maxSegments) && maxSegments >= 1, fn, `maxSegments must be a whole number ≥ 1 (got ${maxSegments})`);
+  /** Farthest interior point of segment a…b and its distance (−1 when none). */
+  const farthest = (a: number, b: number): [number, number] => {
+    let at = -1;
+    let dist = -1;
+    const xa = x[a] as number;
+    const ya = y[a] as number;
+    const slope = ((y[b] as number) - ya) / ((x[b] as number) - xa);
+    for (let i = a + 1; i < b; i++) {
+      const d = Math.abs((y[i] as number) - (ya + slope * ((x[i] as number) - xa)));
+      if (d > dist) {
+        dist = d;
+        at = i;
+      }
+    }
+    return [at, dist];
+  };
+  const kept = [0, x.length - 1];
+  // Open segments with their farthest point; the budget is small (≤ a few hundred), so a linear scan for the worst is enough.
+  const open: { a: number; b: number; at: number; dist: number }[] = [];
+  const push = (a: number, b: number) => {
+    const [at, dist] = farthest(a, b);
+    if (at >= 0 && dist > 0) open.push({ a, b, at, dist });
+  };
+  push(0, x.length - 1);
+  while (kept.length - 1 < maxSegments && open.length > 0) {
+    let w = 0;
+    for (let i = 1; i < open.length; i++) if ((open[i] as (typeof open)[number]).dist > (open[w] as (typeof open)[number]).dist) w = i;
+    const seg = open.splice(w, 1)[0] as (typeof open)[number];
+    kept.push(seg.at);
+    push(seg.a, seg.at);
+    push(seg.at, seg.b);
+  }
+  return kept.sort((p, q) => p - q);
+}
+
+/**
+ * Breakpoints through `y` at the kept indices, each segment then lifted (side +1) or lowered
+ * (side −1) just enough that no point of `y` lies outside it: a breakpoint shared by two
+ * segments takes the larger shift. A segment whose two ends moved by at least d moved by at
+ * least d everywhere, so the result bounds `y` on its side at every point.
+ */
+function boundingBreakpoints(x: Float64Array, y: Float64Array, kept: readonly number[], side: 1 | -1): Float64Array {
+  const shift = new Float64Array(kept.length);
+  for (let s = 0; s + 1 < kept.length; s++) {
+    const a = kept[s] as number;
+    const b = kept[s + 1] as number;
+    const slope = ((y[b] as number) - (y[a] as number)) / ((x[b] as number) - (x[a] as number));
+    let need = 0;
+    for (let i = a + 1; i < b; i++) need = Math.max(need, side * ((y[i] as number) - ((y[a] as number) + slope * ((x[i] as number) - (x[a] as number)))));
+    shift[s] = Math.max(shift[s] as number, need);
+    shift[s + 1] = Math.max(shift[s + 1] as number, need);
+  }
+  return Float64Array.from(kept, (i, s) => (y[i] as number) + side * (shift[s] as number));
+}
+
+/** Rounds outward to 0.01 dB, so rounding never moves a limit inside its raw curve. */
+const outward = (db: number, side: 1 | -1) => (side === 1 ? Math.ceil(db * 100 - 1e-9) : Math.floor(db * 100 + 1e-9)) / 100;
+
+/** `values` on `grid` from a curve measured at other frequencies: linear in dB over log f; NaN outside it. */
+function onGrid(points: SpectrumPoints, grid: Float64Array): Float64Array {
+  const same = points.hz.length === grid.length && points.hz.every((f, i) => f === grid[i]);
+  if (same) return points.db;
+  const out = new Float64Array(grid.length).fill(Number.NaN);
+  let j = 1;
+  for (let i = 0; i < grid.length; i++) {
+    const f = grid[i] as number;
+    if (f < (points.hz[0] as number) || f > (points.hz[points.hz.length - 1] as number)) continue;
+    while (j < points.hz.length - 1 && f > (points.hz[j] as number)) j++;
+    const fa = points.hz[j - 1] as number;
+    const fb = points.hz[j] as number;
+    const t = fb > fa ? Math.log(f / fa) / Math.log(fb / fa) : 0;
+    out[i] = (points.db[j - 1] as number) + t * ((points.db[j] as number) - (points.db[j - 1] as number));
+  }
+  return out;
+}
+
+/**
+ * Proposes a magnitude envelope from golden captures: each capture's curve is measured exactly
+ * as the envelope check measures it (transfer |H| normalised at referenceHz, or the level
+ * spectrum; the same 1/N-octave smoothing), then per frequency the mean m and sample standard
+ * deviation σ give raw limits m ± (k·σ + guardDb). Each raw limit is simplified to at most
+ * `maxSegments` segments on (log10 f, dB) by Ramer–Douglas–Peucker refinement and then moved
+ * outward just enough that the simplified upper limit is never below the raw upper (nor the
+ * lower above the raw lower) at any measured frequency; breakpoint levels are rounded outward to
+ * 0.01 dB. The result is a valid `magnitude-envelope` check of contracts' MaskCheck schema.
+ * Curves measured on different frequency grids (captures of different lengths) are
+ * interpolated onto the first capture's grid; only frequencies every capture covers are used.
+ * @throws RangeError (message starting "deriveEnvelope:") on fewer than two captures, captures at
+ *   different sample rates, bad k/guard/segments/band, or a capture whose curve cannot be measured
+ *   (e.g. a transfer measure without a stimulus, no stimulus energy in the band)
+ * @see simplifyPolyline (Ramer 1972; Douglas & Peucker 1973); docs/masks.md, "Deriving limits, impact and drift"
+ */
+export function deriveEnvelope(input: DeriveEnvelopeInput, options: DeriveEnvelopeOptions): DerivedEnvelope {
+  const fn = 'deriveEnvelope';
+  const { captures } = input;
+  precondition(captures.length >= 2, fn, `need at least two golden captures (got ${captures.length})`);
+  precondition(Number.isFinite(options.k) && options.k >= 0, fn, `k must be ≥ 0 (got ${options.k})`);
+  precondition(Number.isFinite(options.guardDb) && options.guardDb >= 0, fn, `guardDb must be ≥ 0 (got ${options.guardDb})`);
+  precondition(Number.isInteger(options.maxSegments) && options.maxSegments >= 1 && options.maxSegments <= 511, fn, `maxSegments must be a whole number 1…511 (got ${options.maxSegments})`);
+  const [lo, hi] = options.bandHz;
+  precondition(lo > 0 && hi > lo, fn, `bandHz must satisfy 0 < low < high (got ${lo}…${hi})`);
+  const channel = options.channel ?? 0;
+  const columns = options.columns ?? 256;
+  precondition(Number.isInteger(columns) && columns >= 1 && columns <= 4096, fn, `columns must be a whole number 1…4096 (got ${columns})`);
+  const rate = captures[0]?.sampleRate;
+  const measure = { measure: options.measure, referenceHz: options.measure === 'transfer' ? (options.referenceHz === undefined ? DEFAULT_REFERENCE_HZ : options.referenceHz) : undefined, smoothing: options.smoothing };
+
+  const curves: SpectrumPoints[] = captures.map((capture, i) => {
+    precondition(capture.sampleRate === rate, fn, `capture ${i} is at ${capture.sampleRate} Hz, capture 0 at ${rate} Hz`);
+    const evalInput = { capture, ...(input.reference ? { reference: input.reference } : {}), ...(input.transferMethod ? { transferMethod: input.transferMethod } : {}) };
+    validateMaskInput(evalInput, fn);
+    precondition(channel < capture.channels.length, fn, `capture ${i} has no channel ${channel} (it has ${capture.channels.length})`);
+    try {
+      return envelopePoints(new MaskContext(evalInput, [channel]), channel, measure, [lo, hi]).points;
+    } catch (error) {
+      throw new RangeError(`${fn}: capture ${i}: ${(error as Error).message}`);
+    }
+  });
+
+  // Statistics on the first capture's grid, where every capture has a value.
+  const grid = (curves[0] as SpectrumPoints).hz;
+  const values = curves.map((c) => onGrid(c, grid));
+  const n = captures.length;
+  const keep: number[] = [];
+  for (let i = 0; i < grid.length; i++) if (values.every((v) => Number.isFinite(v[i] as number))) keep.push(i);
+  precondition(keep.length >= 2, fn, `fewer than two frequencies in ${lo}…${hi} Hz are measured in every capture`);
+  const hz = Float64Array.from(keep, (i) => grid[i] as number);
+  const mean = new Float64Array(keep.length);
+  const std = new Float64Array(keep.length);
+  keep.forEach((gi, j) => {
+    let s = 0;
+    for (const v of values) s += v[gi] as number;
+    const m = s / n;
+    let ss = 0;
+    for (const v of values) ss += ((v[gi] as number) - m) ** 2;
+    mean[j] = m;
+    std[j] = Math.sqrt(ss / (n - 1));
+  });
+  const upperRaw = Float64Array.from(mean, (m, j) => m + options.k * (std[j] as number) + options.guardDb);
+  const lowerRaw = Float64Array.from(mean, (m, j) => m - options.k * (std[j] as number) - options.guardDb);
+
+  const logHz = Float64Array.from(hz, (f) => Math.log10(f));
+  const simplify = (raw: Float64Array, side: 1 | -1): LimitBreakpoint[] => {
+    const kept = simplifyPolyline(logHz, raw, options.maxSegments);
+    const db = boundingBreakpoints(logHz, raw, kept, side);
+    return kept.map((i, s) => ({ hz: hz[i] as number, db: outward(db[s] as number, side) }));
+  };
+  const upper = simplify(upperRaw, 1);
+  const lower = simplify(lowerRaw, -1);
+
+  const upperAt = sampleLimit(upper, hz);
+  const lowerAt = sampleLimit(lower, hz);
+  let devUpper = 0;
+  let devLower = 0;
+  let stray = 0;
+  for (let j = 0; j < hz.length; j++) {
+    const du = (upperAt[j] as number) - (upperRaw[j] as number);
+    const dl = (lowerRaw[j] as number) - (lowerAt[j] as number);
+    devUpper = Math.max(devUpper, Math.abs(du));
+    devLower = Math.max(devLower, Math.abs(dl));
+    stray = Math.max(stray, -du, -dl);
+  }
+  let worstGolden = Infinity;
+  for (const v of values) {
+    keep.forEach((gi, j) => {
+      const x = v[gi] as number;
+      worstGolden = Math.min(worstGolden, (upperAt[j] as number) - x, x - (lowerAt[j] as number));
+    });
+  }
+
+  const check: MagnitudeEnvelopeCheck = {
+    kind: 'magnitude-envelope',
+    id: options.checkId ?? 'derived-envelope',
+    label: `Derived from ${n} golden captures: mean ± (${options.k}σ + ${options.guardDb} dB)`,
+    measure: options.measure,
+    ...(options.measure === 'transfer' ? { referenceHz: measure.referenceHz ?? null } : {}),
+    ...(options.smoothing ? { smoothing: options.smoothing } : {}),
+    ...(options.channel !== undefined ? { channels: [channel] } : {}),
+    upper,
+    lower,
+  };
+  return {
+    check,
+    unit: options.measure === 'transfer' ? 'dB' : 'dBFS',
+    hz,
+    mean,
+    std,
+    upperRaw,
+    lowerRaw,
+    plot: decimate(hz, { mean, std, upperRaw, lowerRaw }, columns),
+    maxDeviationDb: { upper: devUpper, lower: devLower, overall: Math.max(devUpper, devLower) },
+    maxStrayDb: Math.max(0, stray),
+    worstGoldenMarginDb: worstGolden,
+  };
+}
+
+/** Column means over equal steps of log frequency; empty columns are left out. */
+function decimate(hz: Float64Array, series: Record<'mean' | 'std' | 'upperRaw' | 'lowerRaw', Float64Array>, columns: number): DerivedEnvelope['plot'] {
+  const first = hz[0] as number;
+  const last = hz[hz.length - 1] as number;
+  const step = last > first ? Math.log(last / first) / columns : 1;
+  const out: DerivedEnvelope['plot'] = { hz: [], mean: [], std: [], upperRaw: [], lowerRaw: [] };
+  let j = 0;
+  for (let c = 0; c < columns && j < hz.length; c++) {
+    const edge = c === columns - 1 ? Infinity : first * Math.exp((c + 1) * step);
+    let count = 0;
+    let sumLog = 0;
+    const sums = { mean: 0, std: 0, upperRaw: 0, lowerRaw: 0 };
+    while (j < hz.length && (hz[j] as number) < edge) {
+      sumLog += Math.log(hz[j] as number);
+      for (const key of ['mean', 'std', 'upperRaw', 'lowerRaw'] as const) sums[key] += series[key][j] as number;
+      count++;
+      j++;
+    }
+    if (count === 0) continue;
+    out.hz.push(Math.exp(sumLog / count));
+    for (const key of ['mean', 'std', 'upperRaw', 'lowerRaw'] as const) out[key].push(sums[key] / count);
+  }
+  return out;
+}
