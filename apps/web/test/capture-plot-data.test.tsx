@@ -2,9 +2,9 @@ import type { CapturePlot, CheckResultDto } from '@earmark/contracts';
 import { describe, expect, it } from 'vitest';
 import { formatMargin, formatValue, worstPointLabel } from '@/features/captures/utils/check-format';
 import { sortChecks } from '@/features/captures/utils/check-order';
-import { formatHz, formatHzTick, logFrequencyTicks, panLogRange, rangeAround, zoomLogRange } from '@/features/captures/utils/frequency';
+import { formatHz, formatHzTick, logFrequencyTicks, panLogRange, rangeAround, zoomLogRange } from '@/lib/plot/log-frequency';
 import { allowedZone, alignToColumns, columnsForWidth, failingSpans, spectrumColumns, spectrumYRange } from '@/features/captures/utils/plot-data';
-import { tickDecimals } from '@/features/captures/utils/plot-options';
+import { tickDecimals } from '@/lib/plot/axes';
 import { clampPlaybackLevelDb, dbToGain, gainToDb, PLAYBACK_LEVEL, peakOf, playbackGain } from '@/features/captures/utils/playback-level';
 
 const MINUS = '\u2212';

@@ -6,7 +6,7 @@ import { VerdictBadge } from '@/components/verdict-badge';
 import { formatDate } from '@/lib/format';
 import { paths } from '@/lib/paths';
 import { isCaptureInProgress } from '../api/get-capture';
-import { plain } from '../utils/frequency';
+import { plain } from '@/lib/plot/log-frequency';
 
 function Meta({ label, children }: { label: string; children: React.ReactNode }) {
   return (

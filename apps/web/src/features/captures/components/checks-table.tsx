@@ -4,7 +4,7 @@ import { VerdictBadge } from '@/components/verdict-badge';
 import { cn } from '@/lib/cn';
 import { checkKindLabel, formatMargin, formatValue, isSpectralCheck } from '../utils/check-format';
 import { defaultCheckSort, sortChecks, type CheckSort, type CheckSortKey } from '../utils/check-order';
-import { formatHz } from '../utils/frequency';
+import { formatHz } from '@/lib/plot/log-frequency';
 import { PanelCard } from './panel-card';
 
 type Column = { key: CheckSortKey | null; label: string; numeric?: boolean };

@@ -6,7 +6,7 @@ import { ApiError } from '@/lib/api-error';
 import { cn } from '@/lib/cn';
 import { getCaptureAudioQueryOptions } from '../api/get-capture-audio';
 import { audioContextConstructor, createAudioPlayer, type AudioPlayer } from '../utils/audio-player';
-import { plain } from '../utils/frequency';
+import { plain } from '@/lib/plot/log-frequency';
 import { clampPlaybackLevelDb, PLAYBACK_LEVEL } from '../utils/playback-level';
 import { PanelCard } from './panel-card';
 

@@ -2,7 +2,7 @@ import 'uplot/dist/uPlot.min.css';
 import { memo, useEffect, useLayoutEffect, useRef, useState, type KeyboardEvent, type ReactNode } from 'react';
 import type uPlot from 'uplot';
 import { cn } from '@/lib/cn';
-import { clampLogRange, panLogRange, zoomLogRange, type FrequencyRange } from '../utils/frequency';
+import { clampLogRange, panLogRange, zoomLogRange, type FrequencyRange } from '@/lib/plot/log-frequency';
 
 /**
  * The one place that owns a uPlot instance. Everything else hands it column data and an

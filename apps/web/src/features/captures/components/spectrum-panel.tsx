@@ -5,10 +5,10 @@ import { ErrorState } from '@/components/error-state';
 import { useCapturePlot } from '../api/get-capture-plot';
 import type { CaptureView } from '../hooks/use-capture-view';
 import { worstPointLabel } from '../utils/check-format';
-import { formatHz, plain, zoomLogRange } from '../utils/frequency';
+import { formatHz, plain, zoomLogRange } from '@/lib/plot/log-frequency';
 import { allowedZone, failingSpans, limitValueAt, spectrumColumns, spectrumYRange, SPECTRUM_SERIES, type SpectrumColumns } from '../utils/plot-data';
-import { frequencyAxes, logFrequencyScale, pixelRatio, tickDecimals, valueAxis } from '../utils/plot-options';
-import { plotPalette } from '../utils/plot-palette';
+import { frequencyAxes, logFrequencyScale, pixelRatio, tickDecimals, valueAxis } from '@/lib/plot/axes';
+import { plotPalette } from '@/lib/plot/palette';
 import { PanelCard, PlotToolbarButton } from './panel-card';
 import { PlotCanvas } from './plot-canvas';
 

@@ -1,7 +1,7 @@
 import { useCallback, useMemo, useRef, useState } from 'react';
 import type { CapturePlotParams } from '../api/get-capture-plot';
 import { columnsForWidth } from '../utils/plot-data';
-import type { FrequencyRange } from '../utils/frequency';
+import type { FrequencyRange } from '@/lib/plot/log-frequency';
 
 /**
  * What the capture page's panels share: the channel shown, the plot resolution (set by the

@@ -1,5 +1,5 @@
 import type { CheckResultDto } from '@earmark/contracts';
-import { formatHz, plain, signed } from './frequency';
+import { formatHz, plain, signed } from '@/lib/plot/log-frequency';
 
 /** Earmark's names for the check kinds (docs/masks.md). */
 export const checkKindLabels: Record<string, string> = {

@@ -1,5 +1,5 @@
 import { limitAt, type CapturePlot, type LimitPoint } from '@earmark/contracts';
-import type { FrequencyRange } from './frequency';
+import type { FrequencyRange } from '@/lib/plot/log-frequency';
 
 /**
  * Turns the API's CapturePlot into the column arrays uPlot draws, and computes the
