@@ -157,8 +157,15 @@ describe('re-evaluation under an approved revision', () => {
     expect(res.status, res.text).toBe(202);
     expect(res.body).toMatchObject({ revision: 3, builds: 4, queued: 4 });
     const after = [];
-    for (const h of HISTORY) after.push((await verdictOf(captures[h.sha]!, 3)).verdict!.outcome);
+    const before = [];
+    for (const h of HISTORY) {
+      const v = (await verdictOf(captures[h.sha]!, 3)).verdict!;
+      after.push(v.outcome);
+      before.push(v.previousOutcome);
+    }
     expect(after).toEqual(['pass', 'pass', 'pass', 'pass']);
+    // The API shows what each re-evaluation changed: the outcome under the revision before.
+    expect(before).toEqual(['pass', 'fail', 'pass', 'pass']);
 
     const fresh = em.fork();
     for (const h of HISTORY) {

@@ -96,6 +96,7 @@ describe('waivers in the pipeline', () => {
     expect(after.verdict!.reason).toBe('passed with waiver: loudness');
     const loudness = after.verdict!.checks.find((c) => c.id === 'loudness')!;
     expect(loudness.pass).toBe(false); // the measurement is not rewritten
+    expect(loudness.waived).toBe(true); // and the API says why it no longer fails the capture
     const stored = await stack.orm.em.fork().findOneOrFail(CheckResult, { verdict: { capture: after.id }, checkId: 'loudness' });
     expect(stored.details.waived).toMatchObject({ waiverId, until: requested.body.until });
     expect((await call('GET', '/api/v1/projects/alpha-dsp/builds/2222bbb')).body.status).toBe('pass');

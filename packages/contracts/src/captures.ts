@@ -26,6 +26,8 @@ export const CheckResultDto = z.object({
   margin: z.number().nullable(),
   unit: z.string().nullable(),
   worstHz: z.number().nullable(),
+  /** A failing check covered by an approved waiver (the verdict counts it as passed with waiver). */
+  waived: z.boolean().optional(),
 });
 export type CheckResultDto = z.infer<typeof CheckResultDto>;
 

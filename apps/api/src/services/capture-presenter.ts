@@ -9,7 +9,7 @@ export async function latestVerdicts(em: EntityManager, captures: Capture[]): Pr
   const verdicts = await em.find(
     Verdict,
     { capture: { $in: captures.map((c) => c.id) } },
-    { populate: ['maskRevision'], orderBy: { createdAt: 'desc' } },
+    { populate: ['maskRevision', 'previous'], orderBy: { createdAt: 'desc' } },
   );
   const newest = new Map<string, Verdict>();
   for (const v of verdicts) if (!newest.has(v.capture.id)) newest.set(v.capture.id, v);
@@ -27,6 +27,7 @@ export async function latestVerdicts(em: EntityManager, captures: Capture[]): Pr
       margin: c.margin,
       unit: typeof c.details.unit === 'string' ? c.details.unit : null,
       worstHz: c.worstHz,
+      ...(c.details.waived ? { waived: true } : {}),
     });
     byVerdict.set(c.verdict.id, list);
   }
@@ -40,6 +41,7 @@ export async function latestVerdicts(em: EntityManager, captures: Capture[]): Pr
         maskRevisionId: v.maskRevision?.id ?? null,
         maskRevision: v.maskRevision?.revision ?? null,
         createdAt: v.createdAt.toISOString(),
+        ...(v.previous ? { previousOutcome: v.previous.outcome } : {}),
         checks: byVerdict.get(v.id) ?? [],
       },
     ]),
