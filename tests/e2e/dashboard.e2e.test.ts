@@ -3,14 +3,14 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { DEMO_PASSWORD } from '@earmark/db';
 import { encodeWav, stimulusAsPlayed } from '@earmark/dsp';
 import { StimulusSpec } from '@earmark/contracts';
-import { seedDemoBuilds } from '@earmark/infra/demo-builds';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { launchBrowser } from '../support/browser.js';
-import { startStack, type Stack } from '../support/stack.js';
+import { screenshot, screenshotsDir, signedInPage } from '../support/browser-session.js';
+import { startDemoHistory } from '../support/demo-history.js';
+import type { Stack } from '../support/stack.js';
 
 /**
  * The dashboard in a real browser against the running stack (API, worker, PostgreSQL,
@@ -18,32 +18,13 @@ import { startStack, type Stack } from '../support/stack.js';
  * of the main screens to docs/screenshots/ and fails on any console error.
  */
 const here = path.dirname(fileURLToPath(import.meta.url));
-const shots = path.resolve(here, '../../docs/screenshots');
 const cli = path.resolve(here, '../../apps/cli/bin/earmark.mjs');
 let stack: Stack;
 let browser: Awaited<ReturnType<typeof launchBrowser>>;
 const consoleErrors: string[] = [];
 
-async function pageAs(email: string): Promise<Page> {
-  const page = await browser.context.newPage();
-  page.on('console', (msg) => {
-    if (msg.type() === 'error') consoleErrors.push(`${email}: ${msg.text()}`);
-  });
-  page.on('pageerror', (error) => consoleErrors.push(`${email}: ${error.message}`));
-  await page.goto(`${stack.url}/`);
-  await page.evaluate(() => localStorage.clear());
-  await page.goto(`${stack.url}/sign-in`);
-  await page.getByLabel('Email').fill(email);
-  await page.getByLabel('Password').fill(DEMO_PASSWORD);
-  await page.getByRole('button', { name: 'Sign in' }).click();
-  await page.getByRole('heading', { name: 'Projects' }).waitFor();
-  return page;
-}
-
-async function shot(page: Page, name: string) {
-  await page.waitForLoadState('networkidle');
-  await page.screenshot({ path: path.join(shots, `${name}.png`), fullPage: false });
-}
+const pageAs = (email: string): Promise<Page> => signedInPage(browser.context, stack.url, email, consoleErrors);
+const shot = screenshot;
 
 function runCli(args: string[], env: Record<string, string>): Promise<{ code: number | null; out: string }> {
   return new Promise((resolve) => {
@@ -56,18 +37,8 @@ function runCli(args: string[], env: Record<string, string>): Promise<{ code: nu
 }
 
 beforeAll(async () => {
-  fs.mkdirSync(shots, { recursive: true });
-  stack = await startStack({ seed: 'demo' });
-  await stack.startWorker({ EARMARK_WORKER_CONCURRENCY: '2' });
-  await seedDemoBuilds(stack.url, stack.ciToken, () => {});
-  // Wait until the worker has judged every demo capture.
-  for (const deadline = Date.now() + 90_000; ; ) {
-    const res = await fetch(`${stack.url}/api/v1/projects/kestrel-buds/builds?pageSize=50`, { headers: { authorization: `Bearer ${stack.ciToken}` } });
-    const page = (await res.json()) as { items: { status: string }[] };
-    if (page.items.length > 0 && page.items.every((b) => b.status !== 'pending' && b.status !== 'running')) break;
-    if (Date.now() > deadline) throw new Error('demo builds were not judged in time');
-    await new Promise((r) => setTimeout(r, 500));
-  }
+  fs.mkdirSync(screenshotsDir, { recursive: true });
+  stack = await startDemoHistory();
   browser = await launchBrowser();
 }, 180_000);
 

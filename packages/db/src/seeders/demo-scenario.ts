@@ -7,6 +7,8 @@ export const DEMO_PASSWORD = 'earmark-demo-2026';
 export const demoUsers = [
   { email: 'admin@fernwick.test', displayName: 'Ilse Brandvold', isAdmin: true, role: null },
   { email: 'qa@fernwick.test', displayName: 'Tomasz Quillan', isAdmin: false, role: 'qa_manager' },
+  // A second QA manager, so a revision drafted by one can be approved by the other (four eyes).
+  { email: 'qa2@fernwick.test', displayName: 'Saskia Terhoeven', isAdmin: false, role: 'qa_manager' },
   { email: 'engineer@fernwick.test', displayName: 'Maren Ostrowe', isAdmin: false, role: 'engineer' },
   { email: 'viewer@fernwick.test', displayName: 'Dorian Felsk', isAdmin: false, role: 'viewer' },
 ] as const;

@@ -14,6 +14,7 @@ import { drawablePoints, starterCheck, toEditorCheck, validateChecks, type Edito
 import { ChecksEditor } from './checks-editor';
 import { DeriveWizard } from './derive-wizard';
 import { LimitPreview } from './limit-preview';
+import { ReevaluateButton } from './reevaluate-button';
 
 /** What the editor holds: a stored revision, or a new draft that is not saved yet. */
 export type EditorSource = { revision: MaskRevisionDto } | { unsaved: { checks: MaskCheck[]; note: string; target: string | null } };
@@ -146,6 +147,7 @@ export function MaskWorkspace({
                 Copy to new draft
               </Button>
             ) : null}
+            {stored?.state === 'approved' ? <ReevaluateButton projectKey={projectKey} caseKey={caseKey} revision={stored.revision} /> : null}
             {editable ? (
               <>
                 <Button variant="secondary" busy={save.isPending && !submit.isPending} disabled={!validation.ok || (!dirty && stored !== null)} onClick={onSave}>
