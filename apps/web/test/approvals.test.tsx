@@ -9,7 +9,7 @@ vi.mock('@/app/routes/app/capture', () => ({ CaptureRoute: () => null, captureLo
 
 const qa: CurrentUser = {
   id: 'u-qa',
-  email: 'qa@aurora-acoustics.test',
+  email: 'qa@fernwick.test',
   displayName: 'Quinn Abara',
   isAdmin: false,
   memberships: [{ projectKey: 'kestrel-buds', projectName: 'Kestrel Buds', role: 'qa_manager' }],
@@ -42,7 +42,7 @@ const waiver: WaiverDto = {
   until: '2025-09-30',
   state: 'requested',
   active: false,
-  requestedBy: 'eli@aurora-acoustics.test',
+  requestedBy: 'eli@fernwick.test',
   decidedBy: null,
   decidedAt: null,
   decisionComment: null,
@@ -58,7 +58,7 @@ const run = (state: ImpactRunDto['state'], progress: number): ImpactRunDto => ({
   state,
   progress,
   total: 40,
-  requestedBy: 'qa@aurora-acoustics.test',
+  requestedBy: 'qa@fernwick.test',
   createdAt: '2025-06-03T08:00:00.000Z',
   finishedAt: state === 'done' ? '2025-06-03T08:01:00.000Z' : null,
   error: null,
@@ -97,7 +97,7 @@ function setup() {
   let pollCount = 0;
   const api = mockApi({
     'GET /api/me': () => json(qa),
-    'GET /api/projects/kestrel-buds/masks': () => json({ items: [inReview(1, 'eli@aurora-acoustics.test'), inReview(2, 'qa@aurora-acoustics.test')] }),
+    'GET /api/projects/kestrel-buds/masks': () => json({ items: [inReview(1, 'eli@fernwick.test'), inReview(2, 'qa@fernwick.test')] }),
     'GET /api/projects/kestrel-buds/waivers': () => json({ items: [waiver] }),
     'GET /api/projects/kestrel-buds/test-cases/eq.sweep/masks/1/impact': () => json({ items: [] }),
     'GET /api/projects/kestrel-buds/test-cases/thd.1k/masks/2/impact': () => json({ items: [] }),
@@ -107,8 +107,8 @@ function setup() {
       polls.push(`poll ${pollCount}`);
       return json(pollCount === 1 ? run('running', 10) : run('done', 40));
     },
-    'POST /api/projects/kestrel-buds/test-cases/eq.sweep/masks/1/approve': () => json({ ...inReview(1, 'eli@aurora-acoustics.test'), state: 'approved' }),
-    'POST /api/projects/kestrel-buds/test-cases/eq.sweep/masks/1/reject': () => json({ ...inReview(1, 'eli@aurora-acoustics.test'), state: 'rejected' }),
+    'POST /api/projects/kestrel-buds/test-cases/eq.sweep/masks/1/approve': () => json({ ...inReview(1, 'eli@fernwick.test'), state: 'approved' }),
+    'POST /api/projects/kestrel-buds/test-cases/eq.sweep/masks/1/reject': () => json({ ...inReview(1, 'eli@fernwick.test'), state: 'rejected' }),
     [`POST /api/projects/kestrel-buds/waivers/${waiver.id}/approve`]: () => problem(409, 'Waiver already decided'),
   });
   return { ...api, polls };

@@ -7,10 +7,10 @@ import { renderApp } from './render-app';
 
 vi.mock('@/app/routes/app/capture', () => ({ CaptureRoute: () => null, captureLoader: () => () => null }));
 
-const admin: CurrentUser = { id: 'u-admin', email: 'ada@aurora-acoustics.test', displayName: 'Ada Admin', isAdmin: true, memberships: [] };
+const admin: CurrentUser = { id: 'u-admin', email: 'ada@fernwick.test', displayName: 'Ada Admin', isAdmin: true, memberships: [] };
 const engineer: CurrentUser = {
   id: 'u-eng',
-  email: 'eli@aurora-acoustics.test',
+  email: 'eli@fernwick.test',
   displayName: 'Eli Okafor',
   isAdmin: false,
   memberships: [{ projectKey: 'kestrel-buds', projectName: 'Kestrel Buds', role: 'engineer' }],
@@ -19,7 +19,7 @@ const engineer: CurrentUser = {
 const row = (n: number): ProjectAuditRow => ({
   id: `a-${n}`,
   at: '2025-06-03T08:00:00.000Z',
-  actor: 'user:qa@aurora-acoustics.test',
+  actor: 'user:qa@fernwick.test',
   action: 'mask.approve',
   fromState: 'in_review',
   toState: 'approved',
@@ -33,7 +33,7 @@ function setup(user: CurrentUser) {
   const api = mockApi({
     'GET /api/me': () => json(user),
     'GET /api/projects/kestrel-buds/members': () =>
-      json({ items: [{ userId: 'u-qa', email: 'qa@aurora-acoustics.test', displayName: 'Quinn Abara', role: 'qa_manager' }] }),
+      json({ items: [{ userId: 'u-qa', email: 'qa@fernwick.test', displayName: 'Quinn Abara', role: 'qa_manager' }] }),
     'GET /api/projects/kestrel-buds/audit': () => json({ items: [row(1), row(2)], total: 120, page: 1, pageSize: 50 }),
   });
   const auditQueries = () =>
@@ -56,16 +56,16 @@ describe('audit log', () => {
     expect(auditQueries()[0]).toEqual({ entity: 'mask', page: '1', pageSize: '50' });
 
     await waitFor(() => expect(screen.getByRole('option', { name: /Quinn Abara/ })).toBeTruthy());
-    await user.selectOptions(screen.getByLabelText('Actor'), 'user:qa@aurora-acoustics.test');
-    expect(Object.fromEntries(new URLSearchParams(router.state.location.search))).toEqual({ actor: 'user:qa@aurora-acoustics.test', entity: 'mask' });
+    await user.selectOptions(screen.getByLabelText('Actor'), 'user:qa@fernwick.test');
+    expect(Object.fromEntries(new URLSearchParams(router.state.location.search))).toEqual({ actor: 'user:qa@fernwick.test', entity: 'mask' });
 
     await user.type(screen.getByLabelText('Action'), 'waiver.{Enter}');
     expect(Object.fromEntries(new URLSearchParams(router.state.location.search))).toEqual({
-      actor: 'user:qa@aurora-acoustics.test',
+      actor: 'user:qa@fernwick.test',
       action: 'waiver.',
       entity: 'mask',
     });
-    await waitFor(() => expect(auditQueries().at(-1)).toEqual({ actor: 'user:qa@aurora-acoustics.test', action: 'waiver.', entity: 'mask', page: '1', pageSize: '50' }));
+    await waitFor(() => expect(auditQueries().at(-1)).toEqual({ actor: 'user:qa@fernwick.test', action: 'waiver.', entity: 'mask', page: '1', pageSize: '50' }));
 
     await user.click(screen.getByRole('button', { name: /next/i }));
     expect(new URLSearchParams(router.state.location.search).get('page')).toBe('2');

@@ -9,7 +9,7 @@ vi.mock('@/app/routes/app/capture', () => ({ CaptureRoute: () => null, captureLo
 
 const viewer: CurrentUser = {
   id: '00000000-0000-4000-8000-000000000009',
-  email: 'rel@aurora-acoustics.test',
+  email: 'rel@fernwick.test',
   displayName: 'Release Desk',
   isAdmin: false,
   memberships: [{ projectKey: 'kestrel-buds', projectName: 'Kestrel Buds', role: 'viewer' }],

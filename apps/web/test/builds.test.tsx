@@ -10,7 +10,7 @@ vi.mock('@/app/routes/app/capture', () => ({ CaptureRoute: () => null, captureLo
 
 const engineer: CurrentUser = {
   id: '00000000-0000-4000-8000-000000000001',
-  email: 'eli@aurora-acoustics.test',
+  email: 'eli@fernwick.test',
   displayName: 'Eli Okafor',
   isAdmin: false,
   memberships: [{ projectKey: 'kestrel-buds', projectName: 'Kestrel Buds', role: 'engineer' }],

@@ -30,7 +30,7 @@ const pagePath = `/projects/${projectKey}/builds/${sha}/captures/${captureId}`;
 
 const engineer: CurrentUser = {
   id: 'u-eng',
-  email: 'ana@aurora-acoustics.test',
+  email: 'ana@fernwick.test',
   displayName: 'Ana Ferreira',
   isAdmin: false,
   memberships: [{ projectKey, projectName: 'Kestrel Buds', role: 'engineer' }],

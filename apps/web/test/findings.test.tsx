@@ -17,7 +17,7 @@ const id = (n: number) => `00000000-0000-4000-8000-${String(n).padStart(12, '0')
 
 const engineer: CurrentUser = {
   id: id(1),
-  email: 'eli@aurora-acoustics.test',
+  email: 'eli@fernwick.test',
   displayName: 'Eli Okafor',
   isAdmin: false,
   memberships: [{ projectKey: 'kestrel-buds', projectName: 'Kestrel Buds', role: 'engineer' }],
@@ -25,9 +25,9 @@ const engineer: CurrentUser = {
 const viewer: CurrentUser = { ...engineer, id: id(9), memberships: [{ projectKey: 'kestrel-buds', projectName: 'Kestrel Buds', role: 'viewer' }] };
 
 const members: MemberRow[] = [
-  { userId: id(1), email: 'eli@aurora-acoustics.test', displayName: 'Eli Okafor', role: 'engineer' },
-  { userId: id(3), email: 'mara@aurora-acoustics.test', displayName: 'Mara Lindqvist', role: 'engineer' },
-  { userId: id(9), email: 'rel@aurora-acoustics.test', displayName: 'Release Desk', role: 'viewer' },
+  { userId: id(1), email: 'eli@fernwick.test', displayName: 'Eli Okafor', role: 'engineer' },
+  { userId: id(3), email: 'mara@fernwick.test', displayName: 'Mara Lindqvist', role: 'engineer' },
+  { userId: id(9), email: 'rel@fernwick.test', displayName: 'Release Desk', role: 'viewer' },
 ];
 
 function finding(n: number, overrides: Partial<FindingRow> = {}): FindingRow {

@@ -15,7 +15,7 @@ vi.mock('@/components/plot-figure', () => ({
 
 const engineer: CurrentUser = {
   id: 'u-eng',
-  email: 'eli@aurora-acoustics.test',
+  email: 'eli@fernwick.test',
   displayName: 'Eli Okafor',
   isAdmin: false,
   memberships: [{ projectKey: 'kestrel-buds', projectName: 'Kestrel Buds', role: 'engineer' }],
@@ -55,7 +55,7 @@ const revision = (n: number, state: MaskRevisionDto['state'], extra: Partial<Mas
     },
   ],
   note: '',
-  author: 'eli@aurora-acoustics.test',
+  author: 'eli@fernwick.test',
   reviewer: null,
   createdAt: '2025-06-01T08:00:00.000Z',
   decidedAt: null,
@@ -169,14 +169,14 @@ function setup(revisions: MaskRevisionDto[]) {
 
 describe('masks page', () => {
   it('lists revisions with their states and shows schema messages under the cell their path names', async () => {
-    setup([revision(2, 'draft'), revision(1, 'approved', { reviewer: 'qa@aurora-acoustics.test', decidedAt: '2025-06-01T09:00:00.000Z' })]);
+    setup([revision(2, 'draft'), revision(1, 'approved', { reviewer: 'qa@fernwick.test', decidedAt: '2025-06-01T09:00:00.000Z' })]);
     renderApp('/projects/kestrel-buds/test-cases/eq.sweep/masks');
     const user = userEvent.setup();
 
     expect(await screen.findByRole('heading', { name: 'Masks — eq.sweep' })).toBeTruthy();
     const revisions = screen.getByRole('table', { name: 'Mask revisions' });
     expect(within(revisions).getByText('Approved')).toBeTruthy();
-    expect(within(revisions).getByText('qa@aurora-acoustics.test')).toBeTruthy();
+    expect(within(revisions).getByText('qa@fernwick.test')).toBeTruthy();
 
     const editor = screen.getByRole('table', { name: 'Checks editor' });
     const hz = within(editor).getByRole('textbox', { name: 'Upper limit of check 1 point 2 frequency (Hz)' });

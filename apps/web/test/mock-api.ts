@@ -39,7 +39,7 @@ export function mockApi(handlers: Record<string, Handler>) {
 
 export const qaUser: CurrentUser = {
   id: 'u-qa',
-  email: 'qa@aurora-acoustics.test',
+  email: 'qa@fernwick.test',
   displayName: 'Quinn Abara',
   isAdmin: false,
   memberships: [

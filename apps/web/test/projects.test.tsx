@@ -74,7 +74,7 @@ describe('projects page', () => {
 
     await user.click(await screen.findByRole('button', { name: /Quinn Abara/ }));
     const menu = screen.getByRole('menu');
-    expect(within(menu).getByText('qa@aurora-acoustics.test')).toBeTruthy();
+    expect(within(menu).getByText('qa@fernwick.test')).toBeTruthy();
     await user.click(within(menu).getByRole('menuitem', { name: 'Sign out' }));
 
     expect(await screen.findByRole('button', { name: 'Sign in' })).toBeTruthy();

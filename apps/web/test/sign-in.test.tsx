@@ -22,21 +22,21 @@ describe('sign-in page', () => {
     });
     renderApp('/sign-in');
 
-    await fillAndSubmit('qa@aurora-acoustics.test', 'wrong-password');
+    await fillAndSubmit('qa@fernwick.test', 'wrong-password');
 
     const alert = await screen.findByRole('alert');
     expect(alert.textContent).toContain('Sign-in failed');
     expect(alert.textContent).toContain('That e-mail and password do not match an account.');
     // A refused sign-in is not an expired session: nothing is refreshed or stored.
     expect(api.requests.map((r) => `${r.method} ${r.path}`)).toEqual(['POST /api/auth/login']);
-    expect(api.requests[0]?.body).toEqual({ email: 'qa@aurora-acoustics.test', password: 'wrong-password' });
+    expect(api.requests[0]?.body).toEqual({ email: 'qa@fernwick.test', password: 'wrong-password' });
     expect(window.localStorage.getItem('earmark.session')).toBeNull();
   });
 
   it('shows the rate-limit answer in the same place', async () => {
     mockApi({ 'POST /api/auth/login': () => problem(429, 'Too many sign-in attempts', 'Wait a minute before trying again.') });
     renderApp('/sign-in');
-    await fillAndSubmit('qa@aurora-acoustics.test', 'x');
+    await fillAndSubmit('qa@fernwick.test', 'x');
     expect((await screen.findByRole('alert')).textContent).toContain('Wait a minute before trying again.');
   });
 
@@ -59,7 +59,7 @@ describe('sign-in page', () => {
       'GET /api/projects': () => json({ items: [kestrel] }),
     });
     renderApp('/sign-in');
-    await fillAndSubmit('qa@aurora-acoustics.test', 'correct-horse');
+    await fillAndSubmit('qa@fernwick.test', 'correct-horse');
 
     expect(await screen.findByRole('heading', { name: 'Projects' })).toBeTruthy();
     expect(JSON.parse(window.localStorage.getItem('earmark.session') ?? 'null')).toEqual({
@@ -82,7 +82,7 @@ describe('sign-in page', () => {
     expect(await screen.findByRole('button', { name: 'Sign in' })).toBeTruthy();
     expect(router.state.location.search).toBe('?next=%2Fprojects%2Fkestrel-buds');
 
-    await fillAndSubmit('qa@aurora-acoustics.test', 'correct-horse');
+    await fillAndSubmit('qa@fernwick.test', 'correct-horse');
     expect(await screen.findByRole('heading', { name: 'Kestrel Buds' })).toBeTruthy();
     expect(router.state.location.pathname).toBe('/projects/kestrel-buds');
   });

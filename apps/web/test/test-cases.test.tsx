@@ -9,7 +9,7 @@ vi.mock('@/app/routes/app/capture', () => ({ CaptureRoute: () => null, captureLo
 
 const engineer: CurrentUser = {
   id: 'u-eng',
-  email: 'eli@aurora-acoustics.test',
+  email: 'eli@fernwick.test',
   displayName: 'Eli Okafor',
   isAdmin: false,
   memberships: [{ projectKey: 'kestrel-buds', projectName: 'Kestrel Buds', role: 'engineer' }],

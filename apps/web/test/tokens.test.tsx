@@ -10,7 +10,7 @@ vi.mock('@/app/routes/app/capture', () => ({ CaptureRoute: () => null, captureLo
 
 const admin: CurrentUser = {
   id: '00000000-0000-4000-8000-000000000007',
-  email: 'ada@aurora-acoustics.test',
+  email: 'ada@fernwick.test',
   displayName: 'Ada Admin',
   isAdmin: true,
   memberships: [],

@@ -11,6 +11,7 @@ import { useDownloadJunit } from '@/features/builds/api/download-junit';
 import { getBuildMatrixQueryOptions, useBuildMatrix } from '@/features/builds/api/get-build-matrix';
 import { BuildMatrix } from '@/features/builds/components/build-matrix';
 import { BuildSummaryPanel } from '@/features/builds/components/build-summary';
+import { DriftNotice } from '@/features/builds/components/drift-notice';
 import { paths } from '@/lib/paths';
 import { shortSha } from '@/lib/sha';
 import { requireSession } from '../require-session';
@@ -98,6 +99,7 @@ export function BuildRoute() {
         }
       />
       <BuildSummaryPanel projectKey={projectKey} matrix={matrix.data} />
+      <DriftNotice drift={matrix.data.drift ?? []} />
       {matrix.data.cells.length === 0 ? (
         <p className="rounded-lg border border-dashed border-line-strong px-6 py-10 text-center text-sm text-ink-600">
           No captures have been uploaded for this build yet. They appear here as CI sends them.
