@@ -62,6 +62,11 @@ function setup(user: CurrentUser) {
     'GET /api/projects/kestrel-buds/targets': () => json({ items: [] }),
     'GET /api/projects/kestrel-buds/test-cases': () => json({ items: [] }),
     'POST /api/projects/kestrel-buds/findings/bulk': () => json({ items: [] }),
+    [`POST /api/projects/kestrel-buds/findings/${id(901)}/waivers`]: () =>
+      json({
+        id: id(950), testCase: 'eq.music.sweep', target: 'evt2-48k', checkId: 'response', findingId: id(901), reason: 'Known shelf; fixed in 412.',
+        until: '2030-01-31T23:59:59.999Z', state: 'requested', requestedBy: 'engineer@fernwick.test', approvedBy: null, decisionComment: null, decidedAt: null, createdAt: '2025-06-10T09:00:00.000Z',
+      }, 201),
     [`PATCH /api/projects/kestrel-buds/findings/${id(901)}`]: () => json(finding(1, { state: 'investigating' })),
     [`GET /api/projects/kestrel-buds/findings/${id(902)}/comments`]: () =>
       json({ items: [{ id: 'k1', author: { id: id(3), displayName: 'Mara Lindqvist' }, body: 'Only on EVT2.', createdAt: '2025-06-10T09:30:00.000Z' }] }),
@@ -216,11 +221,32 @@ describe('FindingsTriagePanel', () => {
     await waitFor(() => expect(sent('PATCH', `/api/projects/kestrel-buds/findings/${id(901)}`)).toEqual([{ state: 'investigating' }]));
   });
 
+  it('requests a waiver for a finding with reason, date and scope', async () => {
+    const { sent } = setup(engineer);
+    renderPanel(engineer);
+    const user = userEvent.setup();
+    expect(await screen.findByText('Finding 1')).toBeTruthy();
+    const item = document.querySelector<HTMLElement>(`li[data-finding-id="${id(901)}"]`)!;
+    await user.click(within(item).getByRole('button', { name: 'Request waiver' }));
+    const dialog = screen.getByRole('dialog');
+    await user.click(within(dialog).getByRole('button', { name: 'Send for approval' }));
+    expect(within(dialog).getByText(/say why the deviation is acceptable/)).toBeTruthy(); // checked before any request
+    await user.type(within(dialog).getByLabelText('Reason'), 'Known shelf; fixed in 412.');
+    const until = within(dialog).getByLabelText('Until');
+    await user.clear(until);
+    await user.type(until, '2030-01-31');
+    await user.click(within(dialog).getByRole('button', { name: 'Send for approval' }));
+    await waitFor(() =>
+      expect(sent('POST', `/api/projects/kestrel-buds/findings/${id(901)}/waivers`)).toEqual([{ reason: 'Known shelf; fixed in 412.', until: '2030-01-31', targetOnly: true }]),
+    );
+  });
+
   it('is read-only for viewers', async () => {
     setup(viewer);
     renderPanel(viewer);
     expect(await screen.findByText('Finding 1')).toBeTruthy();
     expect(screen.queryByRole('button', { name: 'Assign' })).toBeNull();
     expect(screen.queryByRole('button', { name: /^State:/ })).toBeNull();
+    expect(screen.queryByRole('button', { name: 'Request waiver' })).toBeNull();
   });
 });

@@ -1,4 +1,5 @@
 import type { FindingRow } from '@earmark/contracts';
+import { Button } from '@/components/button';
 import { useMemo, useState } from 'react';
 import { Link } from 'react-router';
 import { ErrorState } from '@/components/error-state';
@@ -10,6 +11,7 @@ import { paths } from '@/lib/paths';
 import { useFindings } from '../api/get-findings';
 import { useMembers } from '../api/get-members';
 import { useUpdateFinding } from '../api/update-finding';
+import { RequestWaiverDialog } from './request-waiver-dialog';
 import { CommentsPanel } from './comments-panel';
 import { CommentsButton } from './findings-table';
 import { AssignMenu, AssigneeName, FindingStateLabel, StateMenu, assigneeOptions } from './triage-controls';
@@ -25,6 +27,7 @@ export function FindingsTriagePanel({ projectKey, captureId }: { projectKey: str
   const members = useMembers(projectKey);
   const update = useUpdateFinding(projectKey);
   const [commentsFor, setCommentsFor] = useState<string | null>(null);
+  const [waiverFor, setWaiverFor] = useState<FindingRow | null>(null);
   const assignees = useMemo(() => assigneeOptions(members.data ?? [], me?.id), [members.data, me?.id]);
   const items: FindingRow[] = findings.data?.items ?? [];
   const openFinding = items.find((finding) => finding.id === commentsFor) ?? null;
@@ -78,7 +81,12 @@ export function FindingsTriagePanel({ projectKey, captureId }: { projectKey: str
                       onAssign={(assigneeId) => update.mutate({ id: finding.id, body: { assigneeId } })}
                     />
                   ) : null}
-                  <span className="ml-auto">
+                  <span className="ml-auto flex items-center gap-2">
+                    {canTriage && (finding.state === 'open' || finding.state === 'investigating') ? (
+                      <Button variant="ghost" className="h-7 px-2 text-xs" onClick={() => setWaiverFor(finding)}>
+                        Request waiver
+                      </Button>
+                    ) : null}
                     <CommentsButton finding={finding} onOpen={() => setCommentsFor(finding.id)} />
                   </span>
                 </div>
@@ -89,6 +97,7 @@ export function FindingsTriagePanel({ projectKey, captureId }: { projectKey: str
         {update.error ? <InlineError error={update.error} className="mt-3" /> : null}
       </div>
       <CommentsPanel projectKey={projectKey} finding={openFinding} canComment={canTriage} onClose={() => setCommentsFor(null)} />
+      <RequestWaiverDialog projectKey={projectKey} finding={waiverFor} onClose={() => setWaiverFor(null)} />
     </section>
   );
 }
