@@ -104,6 +104,7 @@ describe('mask workflow in the browser', () => {
     expect(judged.verdict!.previousOutcome).toBe('fail');
     await reviewer.goto(`${stack.url}/projects/kestrel-buds/builds/d19b3f8e44/captures/${sweep.id}`);
     await reviewer.getByText(new RegExp(`mask rev ${revision}`)).first().waitFor();
+    await reviewer.getByText(/re-evaluated; it was fail before/).first().waitFor();
     await reviewer.goto(`${stack.url}/projects/kestrel-buds/audit`);
     await reviewer.getByRole('heading', { name: 'Audit log' }).waitFor();
     await reviewer.getByText('mask.approve').first().waitFor();

@@ -95,6 +95,12 @@ export function CaptureHeader({ detail }: { detail: CaptureDetail }) {
           ) : (
             ' with no mask in force'
           )}
+          {verdict.previousOutcome ? (
+            <>
+              {' '}
+              (re-evaluated; it was <span className="font-medium text-ink-900">{verdict.previousOutcome}</span> before)
+            </>
+          ) : null}
           {detail.lastPassing ? (
             <>
               {' '}
