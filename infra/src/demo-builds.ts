@@ -38,9 +38,8 @@ function captureFor(spec: StimulusSpec, shape: Shape, seed: number): Float64Arra
   const played = stimulusAsPlayed(spec);
   const fs = played.sampleRate;
   const x = played.channels[0]!;
-  // A noise floor near a 24-bit converter's; sweeps also get a little latency. Tone captures
-  // stay aligned (a bit-exact host run): distortion is measured over the whole record.
-  const base = spec.kind === 'sweep' ? addNoise(delay(x, 24), -110, seed) : addNoise(x, -110, seed);
+  // A path with half a millisecond of latency and a noise floor near a 24-bit converter's.
+  const base = spec.kind === 'silence' ? addNoise(x, -110, seed) : addNoise(delay(x, 24), -110, seed);
   switch (shape) {
     case 'clean':
       return base;

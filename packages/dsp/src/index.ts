@@ -22,6 +22,7 @@ export { defaultBand, estimatePeakFrequency, inBandPower, measureDistortion, typ
 export { aWeightingDb, aWeightingGain } from './measures/a-weighting.js';
 export { OCTAVE_RATIO, REFERENCE_FREQUENCY, bandLevels, fractionalOctaveBands, octaveBandCenter, type BandLevel, type OctaveBand, type OctaveFraction } from './measures/octave-bands.js';
 export { detectDiscontinuities, detectDropouts, type DropoutRun } from './measures/integrity.js';
+export { steadyStateRange, type SteadyStateOptions } from './measures/steady-state.js';
 // Transfer
 export { estimateLatency, fftConvolve, fftCrossCorrelate, type CrossCorrelation } from './transfer/fft-convolution.js';
 export { filterGroupDelay, groupDelayFromPhase } from './transfer/group-delay.js';

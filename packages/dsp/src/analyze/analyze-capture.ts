@@ -3,6 +3,7 @@ import { ENGINE_VERSION } from '../engine-version.js';
 import { createRealFftPlan, type RealFftPlan } from '../fft/real-fft.js';
 import { estimatePeakFrequency, measureDistortion } from '../measures/distortion.js';
 import { detectDiscontinuities, detectDropouts } from '../measures/integrity.js';
+import { steadyStateRange } from '../measures/steady-state.js';
 import { measureLevels, spectralEnergy } from '../measures/levels.js';
 import { bandLevels, fractionalOctaveBands } from '../measures/octave-bands.js';
 import { createWindow } from '../spectrum/windows.js';
@@ -89,7 +90,13 @@ function analyzeChannel(x: Float64Array, sampleRate: number, channel: number, ws
     // magnitude holds |X|²; the parabola on its log is the same parabola (×2) as on log|X|.
     initialFrequencyHz = estimatePeakFrequency(magnitude, binHz, 10);
   }
-  const distortion = x.length >= 64 && levels.peak > 0 ? measureDistortion(x, sampleRate, { plan, initialFrequencyHz }) : null;
+  // The same steady part the mask's distortion checks measure (a latency lead-in is not distortion).
+  const [start, end] = x.length >= 64 ? steadyStateRange(x, sampleRate) : [0, x.length];
+  const whole = start === 0 && end === x.length;
+  const distortion =
+    x.length >= 64 && levels.peak > 0
+      ? measureDistortion(whole ? x : x.subarray(start, end), sampleRate, whole ? { plan, initialFrequencyHz } : { initialFrequencyHz })
+      : null;
   const tone = distortion?.tone ?? null;
 
   const result: ChannelAnalysis = {

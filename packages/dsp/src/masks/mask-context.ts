@@ -1,4 +1,5 @@
 import { createRealFftPlan, type RealFftPlan } from '../fft/real-fft.js';
+import { steadyStateRange } from '../measures/steady-state.js';
 import { defaultBand, measureDistortion, type DistortionResult } from '../measures/distortion.js';
 import { measureLevels, spectralEnergy, type SignalLevels } from '../measures/levels.js';
 import { createWindow } from '../spectrum/windows.js';
@@ -178,7 +179,10 @@ export class MaskContext {
     return memo(this.distortionCache, `${channel}:${band.join('-')}`, () => {
       const x = this.signal(channel);
       if (x.length < 64) throw new MaskCheckError(`distortion measures need at least 64 samples (the capture holds ${x.length})`);
-      return measureDistortion(x, this.sampleRate, { bandHz: band, plan: this.plan(nextPowerOfTwo(x.length)) });
+      // Skip a latency lead-in or a tail of silence: missing tone there is not distortion.
+      const [start, end] = steadyStateRange(x, this.sampleRate);
+      const steady = start === 0 && end === x.length ? x : x.subarray(start, end);
+      return measureDistortion(steady, this.sampleRate, { bandHz: band, plan: this.plan(nextPowerOfTwo(steady.length)) });
     });
   }
 }
