@@ -71,8 +71,11 @@ try {
     if (!res.ok) throw new Error(`plot: HTTP ${res.status}`);
     apiTimes.push(performance.now() - t0);
   }
-  apiTimes.sort((a, b) => a - b);
-  console.log(`\nGET …/captures/{id}/plot?columns=1200 (4.5 s capture, with overlay): median ${apiTimes[Math.floor(ROUNDS / 2)]!.toFixed(0)} ms, max ${apiTimes[ROUNDS - 1]!.toFixed(0)} ms`);
+  // The page load above already filled the cache for its own column count; 1200 is new, so
+  // the first request computes and the rest read the object-store cache.
+  const [first, ...rest] = apiTimes;
+  rest.sort((a, b) => a - b);
+  console.log(`\nGET …/captures/{id}/plot?columns=1200 (4.5 s capture, with overlay): computed ${first!.toFixed(0)} ms; cached median ${rest[Math.floor(rest.length / 2)]!.toFixed(0)} ms, max ${rest[rest.length - 1]!.toFixed(0)} ms`);
 
   const rows = ['| spectrum points | median (ms) | max (ms) |', '|---|---|---|'];
   for (const points of [null, 65_536]) {

@@ -111,6 +111,18 @@ describe('dashboard API', () => {
     expect(mid).toBeGreaterThan(0.3);
     expect(mid).toBeLessThan(0.6);
     expect(plot.waveform.seconds.length).toBeLessThanOrEqual(512);
+
+    // The answer is cached in the object store under a key naming what it depends on.
+    let keys: string[] = [];
+    // Written after the answer, without holding it up: wait for it briefly.
+    for (const deadline = Date.now() + 5000; keys.length === 0 && Date.now() < deadline; ) {
+      keys = await stack.objectStore.list(`plot-cache/${failing.id}/`);
+      if (keys.length === 0) await new Promise((r) => setTimeout(r, 50));
+    }
+    expect(keys).toHaveLength(1);
+    expect(keys[0]).toContain(`-${passing.id}.json`);
+    const again = await call<unknown>(`/api/projects/alpha-dsp/captures/${failing.id}/plot?columns=512`);
+    expect(again.body).toEqual(res.body);
   });
 
   it('serves capture, stimulus and residual audio; the residual of a pure delay is near silence', async () => {

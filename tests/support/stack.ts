@@ -19,6 +19,8 @@ export interface Stack {
   /** A CI token of the fixture project (or of kestrel-buds for the demo) with both scopes. */
   ciToken: string;
   workerEnv: Record<string, string>;
+  /** The API's object store (captures, plot cache). */
+  objectStore: ObjectStore;
   smtp: { inboxUrl: string; stop(): Promise<void>; restart(): Promise<void> };
   startWorker(extraEnv?: Record<string, string>): Promise<WorkerProcess>;
   close(): Promise<void>;
@@ -80,6 +82,7 @@ export async function startStack(opts: { seed?: 'roles' | 'demo'; database?: { u
     fixture,
     ciToken: secret.token,
     workerEnv,
+    objectStore,
     smtp: {
       inboxUrl: smtp.inboxUrl,
       stop: () => smtp.close(),

@@ -1,5 +1,5 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { AnalysisSettings, MaskCheck, StimulusSpec, type AudioKind, type CaptureDetail, type CapturePlot, type MagnitudeEnvelopeCheck, type PlotQuery } from '@earmark/contracts';
+import { AnalysisSettings, CapturePlot, MaskCheck, StimulusSpec, type AudioKind, type CaptureDetail, type MagnitudeEnvelopeCheck, type PlotQuery } from '@earmark/contracts';
 import { Capture, Verdict, type MaskRevision, type ObjectStore, type Project } from '@earmark/db';
 import {
   ENGINE_VERSION,
@@ -28,7 +28,7 @@ export class CaptureViewService {
   readonly audioLoader: CaptureAudioLoader;
 
   constructor(
-    objectStore: ObjectStore,
+    private readonly objectStore: ObjectStore,
     private readonly findings: FindingsService,
     private readonly links: Links,
   ) {
@@ -79,7 +79,29 @@ export class CaptureViewService {
     return this.audioLoader.load(capture);
   }
 
+  /**
+   * Plot data, cached in the object store: the key names everything the answer depends on
+   * (capture, mask revision judged against, engine version, columns, channel, overlay
+   * capture), so a new verdict or a newer passing capture simply misses the cache. The
+   * cache is shared by every API process and is only an optimisation: any failure to read
+   * or write it falls back to computing.
+   */
   async plot(em: EntityManager, project: Project, id: string, q: PlotQuery): Promise<CapturePlot> {
+    const capture = await this.load(em, project, id);
+    const mask = await this.judgedMask(em, capture);
+    const passing = q.overlay === 'last-passing' ? await this.lastPassing(em, capture) : null;
+    const key = `plot-cache/${capture.id}/${ENGINE_VERSION}-${mask?.id ?? 'none'}-${q.columns}-${q.channel ?? 'd'}-${passing?.captureId ?? 'none'}.json`;
+    const cached = await this.objectStore
+      .get(key)
+      .then((bytes) => CapturePlot.parse(JSON.parse(bytes.toString('utf8'))))
+      .catch(() => null);
+    if (cached) return cached;
+    const plot = await this.computePlot(em, project, id, q);
+    void this.objectStore.put(key, Buffer.from(JSON.stringify(plot)), 'application/json').catch(() => {});
+    return plot;
+  }
+
+  private async computePlot(em: EntityManager, project: Project, id: string, q: PlotQuery): Promise<CapturePlot> {
     const capture = await this.load(em, project, id);
     const audio = await this.audioOf(capture);
     const spec = StimulusSpec.parse(capture.testCase.stimulus);
