@@ -1,47 +1,18 @@
 import { Option, type Command } from 'commander';
 import { AnalysisReport } from '@earmark/contracts';
-import { analyzeCapture, type AudioBuffers } from '@earmark/dsp';
+import { analyzeCapture } from '@earmark/dsp';
 import { EXIT, exitWithError } from '../cli-error.js';
 import { formatReport } from '../analyze/format-report.js';
-import { loadStimulusSpec, loadWav } from '../analyze/load-inputs.js';
+import { loadAnalysisInputs, type InputFlags } from '../analyze/load-inputs.js';
 
-interface AnalyzeFlags {
-  reference?: string;
-  stimulus?: string;
-  channel?: string;
+interface AnalyzeFlags extends InputFlags {
   json?: boolean;
-  transferMethod?: 'h1' | 'deconvolution';
 }
 
 async function runAnalyze(capturePath: string, flags: AnalyzeFlags): Promise<void> {
-  if (flags.reference !== undefined && flags.stimulus !== undefined) throw new Error('give either --reference or --stimulus, not both');
-  const capture = await loadWav(capturePath, 'capture');
-  let reference: AudioBuffers | undefined;
-  let method = flags.transferMethod;
-  if (flags.reference !== undefined) reference = await loadWav(flags.reference, 'reference');
-  if (flags.stimulus !== undefined) {
-    const spec = await loadStimulusSpec(flags.stimulus);
-    reference = spec;
-    // A sweep is deterministic and covers its band once: deconvolve it rather than average.
-    method ??= spec.kind === 'sweep' ? 'deconvolution' : 'h1';
-  }
-  if (reference && reference.sampleRate !== capture.sampleRate) {
-    throw new Error(`the reference runs at ${reference.sampleRate} Hz but the capture at ${capture.sampleRate} Hz; resample one of them`);
-  }
-  let channels: number[] | undefined;
-  if (flags.channel !== undefined) {
-    const c = Number(flags.channel);
-    if (!Number.isInteger(c) || c < 0 || c >= capture.channels.length) {
-      throw new Error(`--channel must be a channel index 0…${capture.channels.length - 1} (channels count from 0); got "${flags.channel}"`);
-    }
-    channels = [c];
-  }
+  const { capture, ...options } = await loadAnalysisInputs(capturePath, flags);
   const report = AnalysisReport.parse(
-    analyzeCapture(capture, {
-      ...(reference ? { reference } : {}),
-      ...(method ? { transferMethod: method } : {}),
-      ...(channels ? { channels } : {}),
-    }),
+    analyzeCapture(capture, options),
   );
   process.stdout.write(flags.json ? `${JSON.stringify(report, null, 2)}\n` : formatReport(report, capturePath));
 }

@@ -1,50 +1,25 @@
 import { Option, type Command } from 'commander';
 import { MaskEvaluation } from '@earmark/contracts';
-import { evaluateMask, type AudioBuffers } from '@earmark/dsp';
+import { evaluateMask } from '@earmark/dsp';
 import { EXIT, exitWithError } from '../cli-error.js';
-import { loadStimulusSpec, loadWav } from '../analyze/load-inputs.js';
+import { loadAnalysisInputs, type InputFlags } from '../analyze/load-inputs.js';
 import { summarizeEvaluation } from '../evaluate/evaluation-summary.js';
 import { formatEvaluation } from '../evaluate/format-evaluation.js';
 import { loadMask } from '../evaluate/load-mask.js';
 
-interface EvaluateFlags {
+interface EvaluateFlags extends InputFlags {
   mask: string;
-  reference?: string;
-  stimulus?: string;
-  channel?: string;
   json?: boolean;
-  transferMethod?: 'h1' | 'deconvolution';
 }
 
 const EXIT_BY_VERDICT = { pass: EXIT.ok, fail: EXIT.fail, error: EXIT.error } as const;
 
 async function runEvaluate(capturePath: string, flags: EvaluateFlags): Promise<number> {
-  if (flags.reference !== undefined && flags.stimulus !== undefined) throw new Error('give either --reference or --stimulus, not both');
   const mask = await loadMask(flags.mask);
-  const capture = await loadWav(capturePath, 'capture');
-  let reference: AudioBuffers | undefined;
-  let method = flags.transferMethod;
-  if (flags.reference !== undefined) reference = await loadWav(flags.reference, 'reference');
-  if (flags.stimulus !== undefined) {
-    const spec = await loadStimulusSpec(flags.stimulus);
-    reference = spec;
-    // As `earmark analyze`: a sweep covers its band once, deterministically, so deconvolve it.
-    method ??= spec.kind === 'sweep' ? 'deconvolution' : 'h1';
-  }
-  if (reference && reference.sampleRate !== capture.sampleRate) {
-    throw new Error(`the reference runs at ${reference.sampleRate} Hz but the capture at ${capture.sampleRate} Hz; resample one of them`);
-  }
-  let channels: number[] | undefined;
-  if (flags.channel !== undefined) {
-    const c = Number(flags.channel);
-    if (!Number.isInteger(c) || c < 0 || c >= capture.channels.length) {
-      throw new Error(`--channel must be a channel index 0…${capture.channels.length - 1} (channels count from 0); got "${flags.channel}"`);
-    }
-    channels = [c];
-  }
+  const inputs = await loadAnalysisInputs(capturePath, flags);
   // The same call the worker makes: the parsed mask into the engine, the result checked against the contract.
   const evaluation = MaskEvaluation.parse(
-    evaluateMask({ capture, ...(reference ? { reference } : {}), ...(method ? { transferMethod: method } : {}), ...(channels ? { channels } : {}) }, mask),
+    evaluateMask(inputs, mask),
   );
   const summary = summarizeEvaluation(evaluation);
   process.stdout.write(flags.json ? `${JSON.stringify(summary, null, 2)}\n` : formatEvaluation(summary, capturePath));
