@@ -1,5 +1,6 @@
+import { useElementWidth } from '@/lib/use-element-width';
 import 'uplot/dist/uPlot.min.css';
-import { useEffect, useLayoutEffect, useRef, useState, type ReactNode } from 'react';
+import { useEffect, useRef, type ReactNode } from 'react';
 import type uPlot from 'uplot';
 import { cn } from '@/lib/cn';
 
@@ -40,23 +41,7 @@ export function PlotFigure({ label, summary, height, data, buildOptions, redrawK
   const chartRef = useRef<uPlot | null>(null);
   const dataRef = useRef(data);
   dataRef.current = data;
-  const [width, setWidth] = useState(0);
-
-  useLayoutEffect(() => {
-    const initial = Math.floor(wrapperRef.current?.clientWidth ?? 0);
-    if (initial > 0) setWidth(initial);
-  }, []);
-
-  useEffect(() => {
-    const wrapper = wrapperRef.current;
-    if (!wrapper || typeof ResizeObserver === 'undefined') return;
-    const observer = new ResizeObserver((entries) => {
-      const next = Math.floor(entries[0]?.contentRect.width ?? 0);
-      setWidth((previous) => (previous === next ? previous : next));
-    });
-    observer.observe(wrapper);
-    return () => observer.disconnect();
-  }, []);
+  const width = useElementWidth(wrapperRef);
 
   const hasWidth = width > 0;
   useEffect(() => {

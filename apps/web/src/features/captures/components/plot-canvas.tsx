@@ -1,5 +1,6 @@
+import { useElementWidth } from '@/lib/use-element-width';
 import 'uplot/dist/uPlot.min.css';
-import { memo, useEffect, useLayoutEffect, useRef, useState, type KeyboardEvent, type ReactNode } from 'react';
+import { memo, useEffect, useRef, type KeyboardEvent, type ReactNode } from 'react';
 import type uPlot from 'uplot';
 import { cn } from '@/lib/cn';
 import { clampLogRange, panLogRange, zoomLogRange, type FrequencyRange } from '@/lib/plot/log-frequency';
@@ -74,30 +75,13 @@ function PlotCanvasImpl({
   const wrapperRef = useRef<HTMLDivElement>(null);
   const hostRef = useRef<HTMLDivElement>(null);
   const chartRef = useRef<uPlot | null>(null);
-  const [width, setWidth] = useState(0);
 
   // Latest callbacks and props, read by uPlot hooks without rebuilding the chart.
   const latest = useRef({ onXRangeChange, onDraw, onCursor, xDomain, xRange, timing, data });
   latest.current = { onXRangeChange, onDraw, onCursor, xDomain, xRange, timing, data };
   const measured = useRef(false);
 
-  // NOTE: measured synchronously before paint, so the first draw does not wait a frame for
-  // the ResizeObserver's first report.
-  useLayoutEffect(() => {
-    const initial = Math.floor(wrapperRef.current?.clientWidth ?? 0);
-    if (initial > 0) setWidth(initial);
-  }, []);
-
-  useEffect(() => {
-    const wrapper = wrapperRef.current;
-    if (!wrapper || typeof ResizeObserver === 'undefined') return;
-    const observer = new ResizeObserver((entries) => {
-      const next = Math.floor(entries[0]?.contentRect.width ?? 0);
-      setWidth((previous) => (previous === next ? previous : next));
-    });
-    observer.observe(wrapper);
-    return () => observer.disconnect();
-  }, []);
+  const width = useElementWidth(wrapperRef);
 
   useEffect(() => {
     if (width > 0) onWidth?.(width);
