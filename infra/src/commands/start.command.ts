@@ -1,6 +1,7 @@
 import path from 'node:path';
 import { DEMO_PASSWORD, demoUsers } from '@earmark/db';
 import { startDevDatabase } from '../dev-database.js';
+import type { Cluster } from '../postgres.js';
 import { startS3Fake } from '../fakes/s3-fake.js';
 import { startSmtpFake } from '../fakes/smtp-fake.js';
 import { seedDemoBuilds } from '../demo-builds.js';
@@ -80,12 +81,12 @@ export async function startCommand(): Promise<number> {
       log(`could not send the demo builds: ${error instanceof Error ? error.message : String(error)}`),
     );
   }
-  if (!shuttingDown) printWelcome(settings.EARMARK_API_PORT, cluster.port, demoToken, smtp.inboxUrl, s3.endpoint);
+  if (!shuttingDown) printWelcome(settings.EARMARK_API_PORT, cluster, demoToken, smtp.inboxUrl, s3.endpoint);
   await done;
   return exitCode;
 }
 
-function printWelcome(apiPort: number, pgPort: number, demoToken: string | null, inboxUrl: string, s3Url: string): void {
+function printWelcome(apiPort: number, cluster: Cluster, demoToken: string | null, inboxUrl: string, s3Url: string): void {
   const lines = [
     '',
     `  Earmark is running:  http://127.0.0.1:${apiPort}/`,
@@ -93,7 +94,7 @@ function printWelcome(apiPort: number, pgPort: number, demoToken: string | null,
     `  API reference:       http://127.0.0.1:${apiPort}/api/docs`,
     `  Mail inbox:          ${inboxUrl}   (the SMTP fake; nothing leaves this machine)`,
     `  Object store:        ${s3Url}   (S3 fake, objects under .data/s3)`,
-    `  PostgreSQL:          127.0.0.1:${pgPort} (private cluster under .data/)`,
+    `  PostgreSQL:          127.0.0.1:${cluster.port} (private cluster in ${cluster.dataDir})`,
     '',
     `  Demo sign-ins (password ${DEMO_PASSWORD}):`,
     ...demoUsers.map((u) => `    ${(u.role ?? 'admin').padEnd(11)} ${u.email}`),
