@@ -55,7 +55,7 @@ const maskPath = write(
 interface Summary {
   verdict: string;
   engineVersion: string;
-  checks: { id: string; kind: string; pass: boolean; measured: number | null; limit: number | null; marginDb: number | null; unit: string; worstHz: number | null; error: string | null }[];
+  checks: { id: string; kind: string; pass: boolean; measured: number | null; limit: number | null; margin: number | null; unit: string; worstHz: number | null; error: string | null }[];
 }
 
 describe('earmark evaluate', () => {
@@ -71,8 +71,8 @@ describe('earmark evaluate', () => {
       ['no-clip', 'integrity', true, 'count'],
     ]);
     // Cookbook peakingEQ: +0.5 dB at 3 kHz is the largest excursion, so about 0.5 dB of margin there.
-    expect(summary.checks[0]?.marginDb).toBeGreaterThan(0.45);
-    expect(summary.checks[0]?.marginDb).toBeLessThan(0.6);
+    expect(summary.checks[0]?.margin).toBeGreaterThan(0.45);
+    expect(summary.checks[0]?.margin).toBeLessThan(0.6);
   });
 
   it('exits 1 for a +2 dB bump at 8 kHz, reporting the worst frequency and margin; the table says FAIL', async () => {
@@ -81,7 +81,7 @@ describe('earmark evaluate', () => {
     expect(run.code, run.stderr).toBe(1);
     const flat = (JSON.parse(run.stdout) as Summary).checks[0];
     // |H(8 kHz)| = +2 dB exactly (cookbook), against +1 dB: margin −1 dB (±0.03 for normalisation and ripple).
-    expect(Math.abs((flat?.marginDb ?? 0) + 1)).toBeLessThan(0.03);
+    expect(Math.abs((flat?.margin ?? 0) + 1)).toBeLessThan(0.03);
     expect(Math.abs((flat?.worstHz ?? 0) / 8000 - 1)).toBeLessThan(0.05);
     const table = await earmark('evaluate', capture, '--mask', maskPath, '--stimulus', specPath);
     expect(table.code).toBe(1);

@@ -40,12 +40,34 @@ export const TransferMagnitude = z.object({
 });
 export type TransferMagnitude = z.infer<typeof TransferMagnitude>;
 
+/** Harmonic distortion of one 1/3-octave band, from a sweep's harmonic impulse responses (Farina 2000). */
+export const DistortionAtFrequency = z.object({
+  /** IEC 61260-1 nominal 1/3-octave mid-band frequency of the fundamental. */
+  centerHz: z.number(),
+  h2Percent: z.number().nullable(),
+  h3Percent: z.number().nullable(),
+  /** Harmonics 2…5 below Nyquist, %. */
+  thdPercent: z.number().nullable(),
+});
+export type DistortionAtFrequency = z.infer<typeof DistortionAtFrequency>;
+
 export const TransferAnalysis = z.object({
-  /** Estimator: `h1` (Welch-averaged Pxy/Pxx) or `deconvolution` (regularised Y·conj(X)/|X|²). */
+  /**
+   * Estimator: `h1` (Welch-averaged Gxy/Gxx, for noise and multitones) or `deconvolution`
+   * (sweeps: the linear impulse response after Farina, windowed away from its harmonic responses).
+   */
   method: z.enum(['h1', 'deconvolution']),
-  /** Capture delay against the reference in samples (cross-correlation peak). */
-  latencySamples: z.number().int(),
+  /** Capture delay against the reference in samples, with a fractional part (interpolated correlation peak). */
+  latencySamples: z.number(),
   latencyMs: z.number(),
+  /** Sign of the capture against the stimulus. */
+  polarity: z.enum(['normal', 'inverted']),
+  /** Smallest H1 coherence γ² over the band (0…1); null for deconvolution. */
+  coherenceMin: z.number().nullable(),
+  /** H2, H3 and THD per 1/3-octave band inside the swept range (sweeps only, else empty). */
+  distortionVsFrequency: z.array(DistortionAtFrequency),
+  /** Clock drift of the capture against the stimulus in ppm; null when the record is too short to show it. */
+  driftPpm: z.number().nullable(),
   /** Band where |H| is within 20 dB of its maximum (or the caller's band), Hz. */
   bandHz: z.tuple([z.number(), z.number()]).nullable(),
   groupDelayMs: z.object({
@@ -64,18 +86,26 @@ export type TransferAnalysis = z.infer<typeof TransferAnalysis>;
 export const ChannelAnalysis = z.object({
   /** Channel index, from 0. */
   channel: z.number().int().min(0),
+  /**
+   * The steady part [start, end] in seconds that every distortion and noise measure used (the
+   * stimulus's own steady part shifted by the latency, or a level plateau); null when none was found.
+   */
+  steadySeconds: z.tuple([z.number(), z.number()]).nullable(),
+  /** Plain-word notes on anything that makes a number here less reliable. */
+  warnings: z.array(z.string()),
   rmsDbfs: Db,
   peakDbfs: Db,
   crestFactorDb: Db,
   dcOffset: z.number(),
+  /** Samples in runs stuck at the record's extreme value (flat tops at any level, float above 1.0 too). */
   clippedSamples: z.number().int().min(0),
   energy: EnergyCheck,
   /** Fitted fundamental; null when the capture holds no dominant tone. */
   fundamentalHz: z.number().nullable(),
   fundamentalDbfs: Db,
-  /** Harmonics 2…10 below Nyquist relative to the fundamental, %. */
+  /** Harmonics 2…10 below Nyquist relative to the fundamental, %; null when none lies below Nyquist. */
   thdPercent: z.number().nullable(),
-  /** THD+N relative to the total signal over 20 Hz…min(20 kHz, fs/2), dB. */
+  /** THD+N relative to the total signal through the AES17 20 kHz low-pass (20 Hz…min(20 kHz, fs/2)), dB. */
   thdnDb: Db,
   thdnPercent: z.number().nullable(),
   /** Fundamental over in-band noise (DC and harmonics 2…10 excluded), dB. */
@@ -89,9 +119,9 @@ export const ChannelAnalysis = z.object({
   noiseFloorDbfsA: Db,
   /** 1/3-octave band levels (IEC 61260-1) from 25 Hz up to the last band below fs/2. */
   thirdOctaveBands: z.array(BandLevel),
-  /** Runs of digital silence inside the capture (not touching its start or end). */
+  /** Gaps far below the local signal level inside the capture (not touching its start or end). */
   dropouts: z.array(Dropout),
-  /** Sample indices where the second difference jumps far above its RMS. */
+  /** Sample indices where the signal departs from its own short-term prediction (clicks, steps). */
   discontinuities: z.array(z.number().int()),
   transfer: TransferAnalysis.optional(),
 });

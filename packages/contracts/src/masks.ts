@@ -124,7 +124,7 @@ function referenceOnlyForTransfer(check: { measure: SpectralMeasure; referenceHz
 }
 
 // ---------------------------------------------------------------------------------------------
-// The seven check kinds
+// The check kinds
 
 /** 1/N-octave smoothing designators. */
 export const SMOOTHING_FRACTIONS = [1, 3, 6, 12, 24] as const;
@@ -233,7 +233,7 @@ export const PhaseLinearityCheck = z
   });
 export type PhaseLinearityCheck = z.infer<typeof PhaseLinearityCheck>;
 
-export const DISTORTION_METRICS = ['thd-percent', 'thdn-db', 'snr-db', 'noise-floor-dbfs', 'dynamic-range-db'] as const;
+export const DISTORTION_METRICS = ['thd-percent', 'thdn-db', 'snr-db', 'noise-floor-dbfs', 'dynamic-range-db', 'imd-smpte-percent', 'imd-dfd-percent'] as const;
 /** THD, THD+N, SNR, noise floor and dynamic range from the sine fit (docs/analysis.md). */
 export const DistortionCheck = z
   .strictObject({
@@ -251,11 +251,15 @@ export const DistortionCheck = z
     minMaxIssues(c, ctx);
     if (c.metric === 'thd-percent' && c.weighting === 'a') ctx.addIssue({ code: 'custom', message: 'thd-percent is not weighted (it compares harmonic amplitudes); use thdn-db for a weighted measure', path: ['weighting'] });
     if (c.metric === 'dynamic-range-db' && c.weighting === 'none') ctx.addIssue({ code: 'custom', message: 'dynamic range is A-weighted by definition (AES17); leave weighting out', path: ['weighting'] });
+    if (c.metric.startsWith('imd-') && c.weighting !== undefined) ctx.addIssue({ code: 'custom', message: 'intermodulation compares tone amplitudes and is not weighted; leave weighting out', path: ['weighting'] });
   });
 export type DistortionCheck = z.infer<typeof DistortionCheck>;
 
-export const TIMING_METRICS = ['latency-ms', 'inter-channel-delay-ms'] as const;
-/** Latency against the stimulus, or the delay between capture channels. */
+export const TIMING_METRICS = ['latency-ms', 'inter-channel-delay-ms', 'polarity'] as const;
+/**
+ * Latency against the stimulus, the delay between capture channels, or polarity (`polarity`
+ * passes when every covered channel has normal polarity against the stimulus; no min or max).
+ */
 export const TimingCheck = z
   .strictObject({
     kind: z.literal('timing'),
@@ -271,6 +275,11 @@ export const TimingCheck = z
       .optional(),
   })
   .superRefine((c, ctx) => {
+    if (c.metric === 'polarity') {
+      if (c.min !== undefined || c.max !== undefined) ctx.addIssue({ code: 'custom', message: 'polarity takes no min or max: it requires normal polarity', path: ['max'] });
+      if (c.pairs !== undefined) ctx.addIssue({ code: 'custom', message: 'pairs apply only to inter-channel-delay-ms', path: ['pairs'] });
+      return;
+    }
     minMaxIssues(c, ctx);
     if (c.metric === 'latency-ms' && c.pairs !== undefined) ctx.addIssue({ code: 'custom', message: 'pairs apply only to inter-channel-delay-ms', path: ['pairs'] });
     if (c.metric === 'inter-channel-delay-ms' && c.pairs !== undefined && c.channels !== undefined) {
@@ -300,11 +309,61 @@ export const IntegrityCheck = z
   });
 export type IntegrityCheck = z.infer<typeof IntegrityCheck>;
 
-export const CHECK_KINDS = ['magnitude-envelope', 'band-levels', 'level', 'phase-linearity', 'distortion', 'timing', 'integrity'] as const;
+export const HARMONIC_METRICS = ['thd-db', 'h2-db', 'h3-db'] as const;
+/**
+ * Harmonic distortion versus frequency from a sweep's harmonic responses (Farina 2000): per
+ * 1/3-octave band of the fundamental, THD (harmonics 2…5), H2 or H3 in dB relative to the
+ * fundamental (−40 dB = 1 %), under an upper limit curve. Needs a sweep stimulus.
+ */
+export const DistortionVsFrequencyCheck = z.strictObject({
+  kind: z.literal('distortion-vs-frequency'),
+  ...common,
+  metric: z.enum(HARMONIC_METRICS),
+  max: LimitCurve,
+});
+export type DistortionVsFrequencyCheck = z.infer<typeof DistortionVsFrequencyCheck>;
+
+/** Smallest H1 coherence γ² over a band (noise and multitone stimuli): how much of the output the input explains. */
+export const CoherenceCheck = z.strictObject({
+  kind: z.literal('coherence'),
+  ...common,
+  /** Default: the test case's transfer band, else the bins where the stimulus has energy. */
+  bandHz: BandHz.optional(),
+  min: z.number().gt(0, 'must be greater than 0').max(1, 'coherence is at most 1'),
+});
+export type CoherenceCheck = z.infer<typeof CoherenceCheck>;
+
+/** Channel separation: drive one channel, the others must stay at least `minDb` below it per 1/3-octave band. */
+export const CrosstalkCheck = z
+  .strictObject({
+    kind: z.literal('crosstalk'),
+    ...common,
+    /** The channel the stimulus drives; `channels` (default: all others) are the undriven ones. */
+    drivenChannel: Channel,
+    minDb: z.number().positive('a separation is given as a positive number of dB'),
+    bandHz: BandHz.optional(),
+  })
+  .superRefine((c, ctx) => {
+    if (c.channels?.includes(c.drivenChannel)) ctx.addIssue({ code: 'custom', message: 'channels lists the undriven channels; it must not include drivenChannel', path: ['channels'] });
+  });
+export type CrosstalkCheck = z.infer<typeof CrosstalkCheck>;
+
+export const CHECK_KINDS = ['magnitude-envelope', 'band-levels', 'level', 'phase-linearity', 'distortion', 'timing', 'integrity', 'distortion-vs-frequency', 'coherence', 'crosstalk'] as const;
 export type CheckKind = (typeof CHECK_KINDS)[number];
 
 /** Any check, told apart by `kind`. */
-export const MaskCheck = z.discriminatedUnion('kind', [MagnitudeEnvelopeCheck, BandLevelsCheck, LevelCheck, PhaseLinearityCheck, DistortionCheck, TimingCheck, IntegrityCheck]);
+export const MaskCheck = z.discriminatedUnion('kind', [
+  MagnitudeEnvelopeCheck,
+  BandLevelsCheck,
+  LevelCheck,
+  PhaseLinearityCheck,
+  DistortionCheck,
+  TimingCheck,
+  IntegrityCheck,
+  DistortionVsFrequencyCheck,
+  CoherenceCheck,
+  CrosstalkCheck,
+]);
 export type MaskCheck = z.infer<typeof MaskCheck>;
 /** A check as a user writes it (before defaults). */
 export type MaskCheckInput = z.input<typeof MaskCheck>;

@@ -27,10 +27,13 @@ export { steadyStateRange, type SteadyStateOptions } from './measures/steady-sta
 export { estimateLatency, fftConvolve, fftCrossCorrelate, type CrossCorrelation } from './transfer/fft-convolution.js';
 export { filterGroupDelay, groupDelayFromPhase } from './transfer/group-delay.js';
 export { estimateTransferFunction, impulseResponseByDeconvolution, type TransferFunction, type TransferFunctionOptions } from './transfer/transfer-function.js';
-export { summarizeTransfer, type TransferSummary, type TransferSummaryOptions } from './transfer/phase-analysis.js';
+export { thirdOctaveMagnitudes } from './transfer/third-octave-magnitude.js';
 // Synthesis
 export { analyzeFrame, residualForListening, synthesizeFrame, type FrameSpectrum, type ResidualOptions } from './synthesis/resynthesis.js';
-// Entry point
+// Entry point: one capture context feeds the report, the verdict and the plots
+export { CaptureContext, type ChannelDelay, type ChannelDistortion, type ChannelTiming, type ChannelTransfer, type SteadyWindow } from './context/capture-context.js';
+export { captureCurves, waveformColumns, type CaptureCurves, type GroupDelayCurve, type PhaseCurve, type WaveformColumns } from './plots/capture-curves.js';
+export { listeningResidual } from './synthesis/listening-residual.js';
 export { analyzeCapture, type AnalyzeCaptureOptions, type AudioBuffers } from './analyze/analyze-capture.js';
 // Tolerance masks
 export * from './masks/index.js';

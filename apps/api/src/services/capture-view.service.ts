@@ -1,18 +1,7 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { AnalysisSettings, CapturePlot, MaskCheck, StimulusSpec, type AudioKind, type CaptureDetail, type MagnitudeEnvelopeCheck, type PlotQuery } from '@earmark/contracts';
 import { Capture, Verdict, type MaskRevision, type ObjectStore, type Project } from '@earmark/db';
-import {
-  ENGINE_VERSION,
-  encodeWav,
-  estimateLatency,
-  estimateTransferFunction,
-  groupDelayFromPhase,
-  maskPlotData,
-  residualForListening,
-  stimulusAsPlayed,
-  unwrapPhase,
-  type DecodedAudio,
-} from '@earmark/dsp';
+import { ENGINE_VERSION, captureCurves, encodeWav, listeningResidual, maskPlotData, stimulusAsPlayed, type DecodedAudio } from '@earmark/dsp';
 import { NotFoundError } from '../errors.js';
 import { CaptureAudioLoader } from './capture-audio.js';
 import { buildSummary } from './builds-query.service.js';
@@ -118,7 +107,9 @@ export class CaptureViewService {
       MaskCheck.parse({ id: 'spectrum', kind: 'magnitude-envelope', measure: reference ? 'transfer' : 'level', upper: [{ hz: 20, db: 400 }, { hz: Math.min(20000, nyquist * 0.98), db: 400 }] }) as MagnitudeEnvelopeCheck;
     const transferMethod = settings.transferMethod ?? (spec.kind === 'sweep' ? 'deconvolution' : 'h1');
     const input = { capture: audio, ...(reference ? { reference } : {}), transferMethod } as const;
-    const data = maskPlotData(input, check, { columns: q.columns, channel });
+    // One capture context: the spectrum, phase and group delay drawn are what the verdict used.
+    const curves = captureCurves(input, check, { columns: q.columns, channel });
+    const data = curves.spectrum;
     const series = (d: typeof data) => ({ hz: d.hz, min: d.measuredMin, max: d.measuredMax });
 
     let overlay: CapturePlot['overlay'] = null;
@@ -141,8 +132,9 @@ export class CaptureViewService {
       failingRegions: data.failingRegions.map((r) => ({ fromHz: r.fromHz, toHz: r.toHz, worstHz: r.worstHz, worstMargin: r.worstMarginDb })),
       worst,
       overlay,
-      ...(reference ? phaseAndDelay(reference.channels[0]!, audio.channels[channel]!, audio.sampleRate, transferMethod, q.columns) : { phase: null, groupDelay: null }),
-      waveform: waveformColumns(audio.channels[channel]!, audio.sampleRate, q.columns),
+      phase: curves.phase,
+      groupDelay: curves.groupDelay,
+      waveform: curves.waveform,
       engineVersion: ENGINE_VERSION,
     };
   }
@@ -157,90 +149,7 @@ export class CaptureViewService {
     }
     const audio = await this.audioOf(capture);
     if (kind === 'capture') return encodeWav(audio.channels, audio.sampleRate, { encoding: 'float', bitsPerSample: 32 });
-    const reference = spec.kind === 'silence' ? null : stimulusAsPlayed(spec).channels[0]!;
-    const residual = audio.channels.map((x) => residualOf(x, reference, audio.sampleRate, spec.kind));
+    const residual = listeningResidual(audio, spec.kind === 'silence' ? null : stimulusAsPlayed(spec), spec.kind);
     return encodeWav(residual, audio.sampleRate, { encoding: 'float', bitsPerSample: 32 });
   }
-}
-
-/**
- * The residual for listening. Tones: what remains after removing the fundamental and its
- * harmonics. Other stimuli: the capture minus the latency-aligned, gain-matched stimulus,
- * so what is heard is what the firmware added or changed. Band-limited to the audio band.
- */
-function residualOf(x: Float64Array, reference: Float64Array | null, sampleRate: number, kind: string): Float64Array {
-  if (!reference || kind === 'sine') return residualForListening(x, sampleRate, { removeHarmonics: kind === 'sine' });
-  const lag = Math.max(0, estimateLatency(reference, x));
-  let num = 0;
-  let den = 0;
-  for (let i = 0; i + lag < x.length && i < reference.length; i++) {
-    num += (x[i + lag] as number) * (reference[i] as number);
-    den += (reference[i] as number) ** 2;
-  }
-  const gain = den > 0 ? num / den : 0;
-  const diff = Float64Array.from(x);
-  for (let i = 0; i + lag < x.length && i < reference.length; i++) diff[i + lag] = (diff[i + lag] as number) - gain * (reference[i] as number);
-  return residualForListening(diff, sampleRate, { removeHarmonics: false });
-}
-
-/**
- * Unwrapped phase (degrees, with the bulk latency removed so the shape is readable) and group
- * delay (ms, latency included) of the transfer function, decimated to log-spaced columns.
- */
-function phaseAndDelay(reference: Float64Array, capture: Float64Array, sampleRate: number, method: 'h1' | 'deconvolution', columns: number) {
-  const latency = estimateLatency(reference, capture);
-  const aligned = new Float64Array(reference.length);
-  for (let i = 0; i < reference.length; i++) {
-    const j = i + latency;
-    aligned[i] = j >= 0 && j < capture.length ? (capture[j] as number) : 0;
-  }
-  const tf = estimateTransferFunction(reference, aligned, sampleRate, { method });
-  const bins = tf.re.length;
-  const hz: number[] = [];
-  const phaseRaw: number[] = [];
-  for (let k = 1; k < bins; k++) {
-    if (!tf.valid[k]) continue;
-    hz.push(k * tf.binHz);
-    phaseRaw.push(Math.atan2(tf.im[k] as number, tf.re[k] as number));
-  }
-  if (hz.length < 2) return { phase: null, groupDelay: null };
-  const unwrapped = unwrapPhase(Float64Array.from(phaseRaw));
-  const delay = groupDelayFromPhase(Float64Array.from(hz), unwrapped);
-  // Pick one point per log-spaced column (the first inside it): phase is smooth, so no min/max needed.
-  const lo = Math.max(hz[0]!, 10);
-  const hi = hz[hz.length - 1]!;
-  const step = Math.log(hi / lo) / columns;
-  const outHz: number[] = [];
-  const deg: number[] = [];
-  const ms: number[] = [];
-  let next = lo;
-  for (let i = 0; i < hz.length; i++) {
-    if (hz[i]! < next) continue;
-    outHz.push(hz[i]!);
-    deg.push(((unwrapped[i] as number) * 180) / Math.PI);
-    ms.push(((delay[i] as number) + latency / sampleRate) * 1000);
-    next = hz[i]! * Math.exp(step);
-  }
-  return { phase: { hz: outHz, deg }, groupDelay: { hz: outHz, ms } };
-}
-
-/** Min/max of the waveform per time column. */
-function waveformColumns(x: Float64Array, sampleRate: number, columns: number) {
-  const per = Math.max(1, Math.ceil(x.length / columns));
-  const seconds: number[] = [];
-  const min: number[] = [];
-  const max: number[] = [];
-  for (let start = 0; start < x.length; start += per) {
-    let lo = Infinity;
-    let hi = -Infinity;
-    for (let i = start; i < Math.min(x.length, start + per); i++) {
-      const v = x[i] as number;
-      if (v < lo) lo = v;
-      if (v > hi) hi = v;
-    }
-    seconds.push(start / sampleRate);
-    min.push(lo);
-    max.push(hi);
-  }
-  return { seconds, min, max };
 }

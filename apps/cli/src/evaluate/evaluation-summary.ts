@@ -8,8 +8,8 @@ export interface CheckSummary {
   pass: boolean;
   measured: number | null;
   limit: number | null;
-  /** The margin in `unit` (dB for dB and dBFS measures); positive inside the limits. */
-  marginDb: number | null;
+  /** The margin in `unit` (ms, °, %, dB… as the check measures; dB for dBFS measures); positive inside the limits. */
+  margin: number | null;
   unit: CheckUnit;
   worstHz: number | null;
   channel: number | null;
@@ -37,7 +37,7 @@ export function summarizeEvaluation(evaluation: MaskEvaluation): EvaluationSumma
       pass: c.pass,
       measured: c.measured,
       limit: c.limit,
-      marginDb: c.margin,
+      margin: c.margin,
       unit: c.unit,
       worstHz: c.worstHz,
       channel: c.channel,

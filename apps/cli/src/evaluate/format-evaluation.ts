@@ -22,7 +22,7 @@ export function formatEvaluation(summary: EvaluationSummary, source: string): st
     c.error !== null ? 'ERROR' : c.pass ? 'pass' : 'FAIL',
     show(c.measured),
     show(c.limit),
-    show(c.marginDb),
+    show(c.margin),
     c.unit,
     c.worstHz === null ? dash : String(Math.round(c.worstHz)),
     c.channel === null ? dash : String(c.channel),

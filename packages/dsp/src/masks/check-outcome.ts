@@ -1,5 +1,5 @@
 import type { CheckEvaluation, CheckUnit, MaskCheck } from '@earmark/contracts';
-import type { MaskContext } from './mask-context.js';
+import type { CaptureContext } from '../context/capture-context.js';
 
 /** One channel's (or channel pair's) result of a check, before the worst one is picked. */
 export interface ChannelOutcome {
@@ -37,7 +37,7 @@ export function minMaxOutcome(channel: number, value: number | null, min: number
 }
 
 /** Channels a check covers: its own list, else the evaluation's analysed channels. */
-export function checkChannels(ctx: MaskContext, check: MaskCheck): readonly number[] {
+export function checkChannels(ctx: CaptureContext, check: MaskCheck): readonly number[] {
   return check.channels ?? ctx.defaultChannels;
 }
 

@@ -2,7 +2,7 @@ import type { MagnitudeEnvelopeCheck, SpectralMeasure } from '@earmark/contracts
 import type { AudioBuffers } from '../analyze/analyze-capture.js';
 import { precondition } from '../util/preconditions.js';
 import { sampleLimit, type LimitBreakpoint } from './limit-curve.js';
-import { MaskContext } from './mask-context.js';
+import { CaptureContext } from '../context/capture-context.js';
 import { validateMaskInput } from './mask-input.js';
 import { DEFAULT_REFERENCE_HZ, envelopePoints, type SpectrumPoints } from './spectral-curves.js';
 
@@ -188,7 +188,7 @@ export function deriveEnvelope(input: DeriveEnvelopeInput, options: DeriveEnvelo
     validateMaskInput(evalInput, fn);
     precondition(channel < capture.channels.length, fn, `capture ${i} has no channel ${channel} (it has ${capture.channels.length})`);
     try {
-      return envelopePoints(new MaskContext(evalInput, [channel]), channel, measure, [lo, hi]).points;
+      return envelopePoints(new CaptureContext(evalInput, [channel]), channel, measure, [lo, hi]).points;
     } catch (error) {
       throw new RangeError(`${fn}: capture ${i}: ${(error as Error).message}`);
     }

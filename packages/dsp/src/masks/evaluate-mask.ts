@@ -8,8 +8,11 @@ import { evaluateLevel } from './checks/level.check.js';
 import { evaluateMagnitudeEnvelope } from './checks/magnitude-envelope.check.js';
 import { evaluatePhaseLinearity } from './checks/phase-linearity.check.js';
 import { evaluateTiming } from './checks/timing.check.js';
+import { evaluateCoherence } from './checks/coherence.check.js';
+import { evaluateCrosstalk } from './checks/crosstalk.check.js';
+import { evaluateDistortionVsFrequency } from './checks/distortion-vs-frequency.check.js';
 import { MaskCheckError } from './mask-check-error.js';
-import { MaskContext } from './mask-context.js';
+import { CaptureContext } from '../context/capture-context.js';
 import { validateMaskInput, type EvaluateMaskInput } from './mask-input.js';
 
 /** The unit a check reports in when it could not be evaluated (the same as when it could). */
@@ -23,15 +26,20 @@ function unitOf(check: MaskCheck): CheckUnit {
     case 'phase-linearity':
       return check.maxDeviationDeg !== undefined ? 'deg' : 'ms';
     case 'distortion':
-      return check.metric === 'thd-percent' ? '%' : check.metric === 'noise-floor-dbfs' ? 'dBFS' : 'dB';
+      return check.metric === 'thd-percent' || check.metric.startsWith('imd-') ? '%' : check.metric === 'noise-floor-dbfs' ? 'dBFS' : 'dB';
     case 'timing':
-      return 'ms';
+      return check.metric === 'polarity' ? 'ratio' : 'ms';
+    case 'distortion-vs-frequency':
+    case 'crosstalk':
+      return 'dB';
+    case 'coherence':
+      return 'ratio';
     case 'integrity':
       return check.metric === 'dc-offset' ? 'FS' : 'count';
   }
 }
 
-function evaluateCheck(ctx: MaskContext, check: MaskCheck): CheckEvaluation {
+function evaluateCheck(ctx: CaptureContext, check: MaskCheck): CheckEvaluation {
   try {
     switch (check.kind) {
       case 'magnitude-envelope':
@@ -48,6 +56,12 @@ function evaluateCheck(ctx: MaskContext, check: MaskCheck): CheckEvaluation {
         return evaluateTiming(ctx, check);
       case 'integrity':
         return evaluateIntegrity(ctx, check);
+      case 'distortion-vs-frequency':
+        return evaluateDistortionVsFrequency(ctx, check);
+      case 'coherence':
+        return evaluateCoherence(ctx, check);
+      case 'crosstalk':
+        return evaluateCrosstalk(ctx, check);
     }
   } catch (error) {
     // A check that cannot be evaluated on this input is that check's error, not the whole
@@ -93,7 +107,7 @@ function verdictReason(checks: readonly CheckEvaluation[]): { verdict: MaskEvalu
  */
 export function evaluateMask(input: EvaluateMaskInput, mask: MaskDocument): MaskEvaluation {
   const channels = validateMaskInput(input, 'evaluateMask');
-  const ctx = new MaskContext(input, channels);
+  const ctx = new CaptureContext(input, channels);
   const checks = mask.checks.map((check) => evaluateCheck(ctx, check));
   return { engineVersion: ENGINE_VERSION, ...verdictReason(checks), checks };
 }

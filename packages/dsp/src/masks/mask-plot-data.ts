@@ -2,7 +2,7 @@ import type { MagnitudeEnvelopeCheck } from '@earmark/contracts';
 import { precondition } from '../util/preconditions.js';
 import { compareEnvelope, type FailingRegion } from './checks/magnitude-envelope.check.js';
 import { sampleLimit, type LimitBreakpoint } from './limit-curve.js';
-import { MaskContext } from './mask-context.js';
+import { CaptureContext } from '../context/capture-context.js';
 import { validateMaskInput, type EvaluateMaskInput } from './mask-input.js';
 
 /** Options of `maskPlotData`. */
@@ -48,13 +48,21 @@ export interface MaskPlotData {
  * @see docs/masks.md, "Plot data"
  */
 export function maskPlotData(input: EvaluateMaskInput, check: MagnitudeEnvelopeCheck, options: MaskPlotOptions = {}): MaskPlotData {
+  const analysed = validateMaskInput(input, 'maskPlotData');
+  return maskPlotDataIn(new CaptureContext(input, analysed), check, options);
+}
+
+/**
+ * `maskPlotData` over an existing capture context, so a page's spectrum, phase and verdict
+ * share one transfer estimate.
+ * @throws RangeError on a bad channel or column count; MaskCheckError when the check cannot be evaluated
+ */
+export function maskPlotDataIn(ctx: CaptureContext, check: MagnitudeEnvelopeCheck, options: MaskPlotOptions = {}): MaskPlotData {
   const fn = 'maskPlotData';
-  const analysed = validateMaskInput(input, fn);
   const columns = options.columns ?? 512;
   precondition(Number.isInteger(columns) && columns >= 1 && columns <= 8192, fn, `columns must be a whole number 1…8192 (got ${columns})`);
-  const channel = options.channel ?? check.channels?.[0] ?? analysed[0] ?? 0;
-  precondition(Number.isInteger(channel) && channel >= 0 && channel < input.capture.channels.length, fn, `channel ${channel} does not exist (capture has ${input.capture.channels.length})`);
-  const ctx = new MaskContext(input, analysed);
+  const channel = options.channel ?? check.channels?.[0] ?? ctx.defaultChannels[0] ?? 0;
+  precondition(Number.isInteger(channel) && channel >= 0 && channel < ctx.input.capture.channels.length, fn, `channel ${channel} does not exist (capture has ${ctx.input.capture.channels.length})`);
   const c = compareEnvelope(ctx, channel, check);
   const n = c.points.hz.length;
   const lo = c.points.hz[0] as number;

@@ -1,5 +1,8 @@
 import { unwrapPhase } from '../spectrum/unwrap.js';
-import type { ChannelTransfer } from './mask-context.js';
+import type { ChannelTransfer } from '../context/capture-context.js';
+
+/** Octave fraction of the grid the group delay is taken on (see groupDelayVariation); the report and the check share it. */
+export const GROUP_DELAY_GRID_FRACTION = 24;
 
 /** The unwrapped phase of H over a band, its |H|-weighted best-fit line, and what is left. */
 export interface PhaseFit {

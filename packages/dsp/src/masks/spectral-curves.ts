@@ -1,7 +1,7 @@
 import type { SpectralMeasure } from '@earmark/contracts';
 import { OCTAVE_RATIO } from '../measures/octave-bands.js';
 import { MaskCheckError } from './mask-check-error.js';
-import type { ChannelTransfer, MaskContext } from './mask-context.js';
+import type { ChannelTransfer, CaptureContext } from '../context/capture-context.js';
 import { smoothFractionalOctave } from './octave-smoothing.js';
 
 /** Levels below this read as this (silence would be −∞ dB, which JSON cannot carry). */
@@ -71,7 +71,7 @@ export interface EnvelopeMeasure {
  * @throws MaskCheckError when no bin is left to measure, or the transfer cannot be normalised (see referenceGain)
  * @see Hatziantoniou & Mourjopoulos, JAES 48(4), 2000 (smoothing); docs/masks.md, "magnitude-envelope"
  */
-export function envelopePoints(ctx: MaskContext, channel: number, check: EnvelopeMeasure, spanHz: readonly [number, number]): { points: SpectrumPoints; referenceGainDb: number | null } {
+export function envelopePoints(ctx: CaptureContext, channel: number, check: EnvelopeMeasure, spanHz: readonly [number, number]): { points: SpectrumPoints; referenceGainDb: number | null } {
   let values: Float64Array;
   let include: Uint8Array | undefined;
   let binHz: number;

@@ -3,11 +3,11 @@ import { bandLevels, type OctaveBand } from '../../measures/octave-bands.js';
 import { nearestOctaveBand } from '../band-matching.js';
 import { checkChannels, combineOutcomes, minMaxOutcome, type ChannelOutcome } from '../check-outcome.js';
 import { MaskCheckError } from '../mask-check-error.js';
-import type { MaskContext } from '../mask-context.js';
+import type { CaptureContext } from '../../context/capture-context.js';
 import { DEFAULT_REFERENCE_HZ, DB_FLOOR, powerDb, referenceGain, transferBandGain } from '../spectral-curves.js';
 
 /** One band's level in dB (transfer, normalised) or dBFS (level). */
-function bandValue(ctx: MaskContext, channel: number, check: BandLevelsCheck, band: OctaveBand): number {
+function bandValue(ctx: CaptureContext, channel: number, check: BandLevelsCheck, band: OctaveBand): number {
   if (band.upperHz > ctx.sampleRate / 2) throw new MaskCheckError(`the ${band.nominalHz} Hz band reaches above half the sample rate (${ctx.sampleRate / 2} Hz)`);
   if (check.measure === 'transfer') {
     const t = ctx.transfer(channel);
@@ -33,7 +33,7 @@ function bandValue(ctx: MaskContext, channel: number, check: BandLevelsCheck, ba
  * @throws MaskCheckError (caught by evaluateMask) when a band cannot be measured
  * @see IEC 61260-1:2014 §5.4–5.5; docs/masks.md, "band-levels"
  */
-export function evaluateBandLevels(ctx: MaskContext, check: BandLevelsCheck): CheckEvaluation {
+export function evaluateBandLevels(ctx: CaptureContext, check: BandLevelsCheck): CheckEvaluation {
   const bands = check.bands.map((b) => ({ limit: b, band: nearestOctaveBand(check.fraction, b.centerHz) }));
   const outcomes: ChannelOutcome[] = checkChannels(ctx, check).map((channel) => {
     const rows = bands.map(({ limit, band }) => {

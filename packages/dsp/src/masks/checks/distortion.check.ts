@@ -3,7 +3,7 @@ import { aWeightingGain } from '../../measures/a-weighting.js';
 import type { DistortionResult } from '../../measures/distortion.js';
 import { checkChannels, combineOutcomes, minMaxOutcome, type ChannelOutcome } from '../check-outcome.js';
 import { MaskCheckError } from '../mask-check-error.js';
-import type { MaskContext } from '../mask-context.js';
+import type { CaptureContext } from '../../context/capture-context.js';
 import { DB_FLOOR } from '../spectral-curves.js';
 
 const UNITS: Record<DistortionCheck['metric'], CheckUnit> = { 'thd-percent': '%', 'thdn-db': 'dB', 'snr-db': 'dB', 'noise-floor-dbfs': 'dBFS', 'dynamic-range-db': 'dB' };
@@ -76,7 +76,7 @@ function metricValue(d: DistortionResult, check: DistortionCheck): { value: numb
  * @throws MaskCheckError (caught by evaluateMask) for dynamic range without a tone near −60 dBFS, or a band above Nyquist
  * @see IEEE Std 1241-2010 §4.1.4, §4.5, §4.6; AES17-2020 §6.3 (THD+N), dynamic range; IEC 61672-1:2013 annex E
  */
-export function evaluateDistortion(ctx: MaskContext, check: DistortionCheck): CheckEvaluation {
+export function evaluateDistortion(ctx: CaptureContext, check: DistortionCheck): CheckEvaluation {
   const outcomes: ChannelOutcome[] = checkChannels(ctx, check).map((channel) => {
     const d = ctx.distortion(channel, check.bandHz);
     const v = metricValue(d, check);

@@ -2,7 +2,7 @@ import type { CheckEvaluation, IntegrityCheck } from '@earmark/contracts';
 import { detectDiscontinuities, detectDropouts } from '../../measures/integrity.js';
 import { DEFAULT_CLIP_THRESHOLD } from '../../measures/levels.js';
 import { checkChannels, combineOutcomes, minMaxOutcome, type ChannelOutcome } from '../check-outcome.js';
-import type { MaskContext } from '../mask-context.js';
+import type { CaptureContext } from '../../context/capture-context.js';
 
 /** Default shortest dropout, ms (as the analyze report). */
 export const DEFAULT_MIN_DROPOUT_MS = 1;
@@ -19,7 +19,7 @@ const LISTED = 20;
  * @see docs/analysis.md (clipped samples, dropouts, discontinuities); S. V. Vaseghi, "Advanced
  *   Digital Signal Processing and Noise Reduction", ch. 12 (impulsive disturbances)
  */
-export function evaluateIntegrity(ctx: MaskContext, check: IntegrityCheck): CheckEvaluation {
+export function evaluateIntegrity(ctx: CaptureContext, check: IntegrityCheck): CheckEvaluation {
   const outcomes: ChannelOutcome[] = checkChannels(ctx, check).map((channel) => {
     const x = ctx.signal(channel);
     switch (check.metric) {

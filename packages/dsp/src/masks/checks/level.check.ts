@@ -1,13 +1,13 @@
 import type { CheckEvaluation, CheckUnit, LevelCheck } from '@earmark/contracts';
 import { checkChannels, combineOutcomes, minMaxOutcome, type ChannelOutcome } from '../check-outcome.js';
 import { MaskCheckError } from '../mask-check-error.js';
-import type { MaskContext } from '../mask-context.js';
+import type { CaptureContext } from '../../context/capture-context.js';
 import { DB_FLOOR } from '../spectral-curves.js';
 
 const UNITS: Record<LevelCheck['metric'], CheckUnit> = { 'rms-dbfs': 'dBFS', 'peak-dbfs': 'dBFS', 'crest-factor-db': 'dB', 'energy-parseval': 'ratio' };
 
 /** [from, to) in samples of the check's time window (default the whole capture). */
-function sampleRange(ctx: MaskContext, check: LevelCheck): [number, number] {
+function sampleRange(ctx: CaptureContext, check: LevelCheck): [number, number] {
   if (!check.timeSeconds) return [0, ctx.frames];
   const from = Math.round(check.timeSeconds[0] * ctx.sampleRate);
   const to = Math.min(ctx.frames, Math.round(check.timeSeconds[1] * ctx.sampleRate));
@@ -23,7 +23,7 @@ function sampleRange(ctx: MaskContext, check: LevelCheck): [number, number] {
  * @throws MaskCheckError (caught by evaluateMask) when the time window holds no samples
  * @see AES17-2020 (dBFS); Oppenheim & Schafer §8.6 (Parseval's relation)
  */
-export function evaluateLevel(ctx: MaskContext, check: LevelCheck): CheckEvaluation {
+export function evaluateLevel(ctx: CaptureContext, check: LevelCheck): CheckEvaluation {
   const outcomes: ChannelOutcome[] = checkChannels(ctx, check).map((channel) => {
     if (check.metric === 'energy-parseval') return minMaxOutcome(channel, ctx.parsevalError(channel), undefined, check.max);
     const [from, to] = sampleRange(ctx, check);

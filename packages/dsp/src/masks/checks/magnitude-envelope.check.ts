@@ -1,7 +1,7 @@
 import type { CheckEvaluation, MagnitudeEnvelopeCheck } from '@earmark/contracts';
 import { checkChannels, combineOutcomes, type ChannelOutcome } from '../check-outcome.js';
 import { MaskCheckError } from '../mask-check-error.js';
-import type { MaskContext } from '../mask-context.js';
+import type { CaptureContext } from '../../context/capture-context.js';
 import { sampleLimit } from '../limit-curve.js';
 import { DEFAULT_REFERENCE_HZ, envelopePoints, type SpectrumPoints } from '../spectral-curves.js';
 
@@ -45,7 +45,7 @@ export function envelopeSpan(check: MagnitudeEnvelopeCheck): [number, number] {
  * limit's span, margin = upper − measured and measured − lower; the nearer limit counts.
  * @throws MaskCheckError when no measured frequency has a limit that applies
  */
-export function compareEnvelope(ctx: MaskContext, channel: number, check: MagnitudeEnvelopeCheck): EnvelopeComparison {
+export function compareEnvelope(ctx: CaptureContext, channel: number, check: MagnitudeEnvelopeCheck): EnvelopeComparison {
   const { points, referenceGainDb } = envelopePoints(ctx, channel, check, envelopeSpan(check));
   const n = points.hz.length;
   const upper = check.upper ? sampleLimit(check.upper, points.hz) : new Float64Array(n).fill(Number.NaN);
@@ -91,7 +91,7 @@ const MAX_REGIONS = 20;
  * @throws MaskCheckError (caught by evaluateMask) when the check cannot be evaluated
  * @see docs/masks.md, "magnitude-envelope"
  */
-export function evaluateMagnitudeEnvelope(ctx: MaskContext, check: MagnitudeEnvelopeCheck): CheckEvaluation {
+export function evaluateMagnitudeEnvelope(ctx: CaptureContext, check: MagnitudeEnvelopeCheck): CheckEvaluation {
   const outcomes: ChannelOutcome[] = checkChannels(ctx, check).map((channel) => {
     const c = compareEnvelope(ctx, channel, check);
     const i = c.worstIndex;

@@ -1,11 +1,8 @@
 import type { CheckEvaluation, PhaseLinearityCheck } from '@earmark/contracts';
 import { checkChannels, combineOutcomes, minMaxOutcome, type ChannelOutcome } from '../check-outcome.js';
 import { MaskCheckError } from '../mask-check-error.js';
-import type { MaskContext } from '../mask-context.js';
-import { groupDelayVariation } from '../phase-fit.js';
-
-/** Octave fraction of the grid the group delay is taken on (see groupDelayVariation). */
-export const GROUP_DELAY_GRID_FRACTION = 24;
+import type { CaptureContext } from '../../context/capture-context.js';
+import { GROUP_DELAY_GRID_FRACTION, groupDelayVariation } from '../phase-fit.js';
 
 /**
  * Phase linearity over the band (the check's, else the test case's transfer band, else where
@@ -17,7 +14,7 @@ export const GROUP_DELAY_GRID_FRACTION = 24;
  * @throws MaskCheckError (caught by evaluateMask) without a stimulus or with fewer than 3 measured bins in the band
  * @see Oppenheim & Schafer §5.1 (group delay, linear phase); docs/masks.md, "phase-linearity"
  */
-export function evaluatePhaseLinearity(ctx: MaskContext, check: PhaseLinearityCheck): CheckEvaluation {
+export function evaluatePhaseLinearity(ctx: CaptureContext, check: PhaseLinearityCheck): CheckEvaluation {
   const band = check.bandHz ?? ctx.input.transferBandHz;
   const outcomes: ChannelOutcome[] = checkChannels(ctx, check).map((channel) => {
     ctx.signal(channel);
