@@ -28,6 +28,10 @@ export const CheckResultDto = z.object({
   worstHz: z.number().nullable(),
   /** A failing check covered by an approved waiver (the verdict counts it as passed with waiver). */
   waived: z.boolean().optional(),
+  /** Plain-word notes on what makes this check's number less reliable (from the measures it used). */
+  warnings: z.array(z.string()).optional(),
+  /** Why the check could not be evaluated (the verdict is then `error`). */
+  error: z.string().optional(),
 });
 export type CheckResultDto = z.infer<typeof CheckResultDto>;
 

@@ -28,6 +28,8 @@ export async function latestVerdicts(em: EntityManager, captures: Capture[]): Pr
       unit: typeof c.details.unit === 'string' ? c.details.unit : null,
       worstHz: c.worstHz,
       ...(c.details.waived ? { waived: true } : {}),
+      ...(Array.isArray(c.details.warnings) && c.details.warnings.length ? { warnings: c.details.warnings.filter((w): w is string => typeof w === 'string') } : {}),
+      ...(typeof c.details.error === 'string' ? { error: c.details.error } : {}),
     });
     byVerdict.set(c.verdict.id, list);
   }

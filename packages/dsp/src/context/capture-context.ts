@@ -58,6 +58,9 @@ export interface ChannelDistortion extends DistortionResult {
   warnings: string[];
 }
 
+/** What a warning concerns, so a check shows only the warnings of the measures it used. */
+export type WarningTopic = 'stimulus' | 'timing' | 'transfer' | 'steady' | 'tone' | 'integrity';
+
 function memo<K, V>(cache: Map<K, V>, key: K, make: () => V): V {
   const hit = cache.get(key);
   if (hit !== undefined) return hit;
@@ -91,7 +94,7 @@ export class CaptureContext {
   private readonly steadyCache = new Map<number, SteadyWindow>();
   private readonly dropoutCache = new Map<string, DropoutRun[]>();
   private readonly glitchCache = new Map<number, number[]>();
-  private readonly warningSets = new Map<number, Set<string>>();
+  private readonly warningLists = new Map<number, { topic: WarningTopic; text: string }[]>();
 
   constructor(
     readonly input: EvaluateMaskInput,
@@ -102,15 +105,15 @@ export class CaptureContext {
     this.defaultChannels = defaultChannels;
   }
 
-  /** Records warnings against a channel and passes them through. */
-  private warn(channel: number, warnings: readonly string[]): void {
-    const set = memo(this.warningSets, channel, () => new Set<string>());
-    for (const w of warnings) set.add(w);
+  /** Records warnings against a channel under the measure they concern. */
+  private warn(channel: number, topic: WarningTopic, warnings: readonly string[]): void {
+    const list = memo(this.warningLists, channel, () => []);
+    for (const text of warnings) if (!list.some((w) => w.text === text)) list.push({ topic, text });
   }
 
-  /** Every warning raised so far by the channel's measures, in the order raised. */
-  warnings(channel: number): string[] {
-    return [...(this.warningSets.get(channel) ?? [])];
+  /** Every warning raised so far by the channel's measures (or those of the given topics), in the order raised. */
+  warnings(channel: number, topics?: readonly WarningTopic[]): string[] {
+    return (this.warningLists.get(channel) ?? []).filter((w) => !topics || topics.includes(w.topic)).map((w) => w.text);
   }
 
   /** True when a stimulus was given. */
@@ -131,9 +134,9 @@ export class CaptureContext {
     if (!ref) throw new MaskCheckError('this check compares the capture with its stimulus, and no stimulus (reference) was given');
     const capChannels = this.input.capture.channels.length;
     if (ref.channels.length > 1 && channel >= ref.channels.length) {
-      this.warn(channel, [`the stimulus has ${ref.channels.length} channels and the capture ${capChannels}: channel ${channel} was compared with stimulus channel ${ref.channels.length - 1}`]);
+      this.warn(channel, 'stimulus', [`the stimulus has ${ref.channels.length} channels and the capture ${capChannels}: channel ${channel} was compared with stimulus channel ${ref.channels.length - 1}`]);
     } else if (ref.channels.length > 1 && capChannels < ref.channels.length) {
-      this.warn(channel, [`the stimulus has ${ref.channels.length} channels and the capture ${capChannels}: capture channel ${channel} was compared with stimulus channel ${channel}`]);
+      this.warn(channel, 'stimulus', [`the stimulus has ${ref.channels.length} channels and the capture ${capChannels}: capture channel ${channel} was compared with stimulus channel ${channel}`]);
     }
     return ref.channels[Math.min(channel, ref.channels.length - 1)] as Float64Array;
   }
@@ -212,7 +215,7 @@ export class CaptureContext {
         if (j >= 0 && j < x.length) dot += (reference[i] as number) * (x[j] as number);
       }
       const timing: ChannelTiming = { latencySamples: lag, polarity: dot < 0 ? 'inverted' : 'normal', ambiguous: false, warnings: [] };
-      this.warn(channel, timing.warnings);
+      this.warn(channel, 'timing', timing.warnings);
       return timing;
     });
   }
@@ -276,7 +279,7 @@ export class CaptureContext {
       const x = this.signal(channel);
       const [start, end] = x.length >= 64 ? steadyStateRange(x, this.sampleRate) : [0, x.length];
       const window: SteadyWindow = { start, end, warnings: [] };
-      this.warn(channel, window.warnings);
+      this.warn(channel, 'steady', window.warnings);
       return window;
     });
   }
@@ -292,7 +295,7 @@ export class CaptureContext {
       const steady = window.start === 0 && window.end === x.length ? x : x.subarray(window.start, window.end);
       const d = measureDistortion(steady, this.sampleRate, { bandHz: band, plan: this.plan(nextPowerOfTwo(steady.length)) });
       const result: ChannelDistortion = { ...d, window, warnings: [] };
-      this.warn(channel, result.warnings);
+      this.warn(channel, 'tone', result.warnings);
       return result;
     });
   }

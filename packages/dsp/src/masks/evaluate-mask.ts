@@ -12,7 +12,7 @@ import { evaluateCoherence } from './checks/coherence.check.js';
 import { evaluateCrosstalk } from './checks/crosstalk.check.js';
 import { evaluateDistortionVsFrequency } from './checks/distortion-vs-frequency.check.js';
 import { MaskCheckError } from './mask-check-error.js';
-import { CaptureContext } from '../context/capture-context.js';
+import { CaptureContext, type WarningTopic } from '../context/capture-context.js';
 import { validateMaskInput, type EvaluateMaskInput } from './mask-input.js';
 
 /** The unit a check reports in when it could not be evaluated (the same as when it could). */
@@ -39,7 +39,33 @@ function unitOf(check: MaskCheck): CheckUnit {
   }
 }
 
+/** The measures each kind of check rests on: their warnings are shown beside the check. */
+const WARNING_TOPICS: Record<MaskCheck['kind'], readonly WarningTopic[]> = {
+  'magnitude-envelope': ['stimulus', 'timing', 'transfer'],
+  'band-levels': ['stimulus', 'timing', 'transfer'],
+  level: [],
+  'phase-linearity': ['stimulus', 'timing', 'transfer'],
+  distortion: ['steady', 'tone'],
+  timing: ['stimulus', 'timing'],
+  integrity: ['integrity'],
+  'distortion-vs-frequency': ['stimulus', 'timing', 'transfer'],
+  coherence: ['stimulus', 'timing', 'transfer'],
+  crosstalk: ['integrity'],
+};
+
+/** The check's result with the warnings of the measures it used (on the channels it covers). */
+function withWarnings(ctx: CaptureContext, check: MaskCheck, evaluation: CheckEvaluation): CheckEvaluation {
+  const topics = WARNING_TOPICS[check.kind];
+  const channels = evaluation.channel !== null ? [evaluation.channel] : (check.channels ?? ctx.defaultChannels);
+  const warnings = [...new Set(channels.flatMap((c) => ctx.warnings(c, topics).map((w) => (channels.length > 1 ? `channel ${c}: ${w}` : w))))];
+  return warnings.length ? { ...evaluation, details: { ...evaluation.details, warnings } } : evaluation;
+}
+
 function evaluateCheck(ctx: CaptureContext, check: MaskCheck): CheckEvaluation {
+  return withWarnings(ctx, check, evaluateCheckAlone(ctx, check));
+}
+
+function evaluateCheckAlone(ctx: CaptureContext, check: MaskCheck): CheckEvaluation {
   try {
     switch (check.kind) {
       case 'magnitude-envelope':

@@ -120,6 +120,17 @@ export function ChecksTable({ checks, onShowFrequency }: { checks: readonly Chec
                       <span className="text-ink-700">{checkKindLabel(check.kind)}</span>
                       {check.label ? ` · ${check.label}` : null}
                     </span>
+                    {check.error ? <span className="mt-1 block max-w-[420px] text-xs text-error">Could not be evaluated: {check.error}</span> : null}
+                    {check.warnings?.length ? (
+                      <ul aria-label={`Warnings for ${check.id}`} className="mt-1 max-w-[420px] space-y-0.5 text-xs text-brass-800">
+                        {check.warnings.map((w) => (
+                          <li key={w} className="flex gap-1.5">
+                            <span aria-hidden="true">⚠</span>
+                            <span className="break-words">{w}</span>
+                          </li>
+                        ))}
+                      </ul>
+                    ) : null}
                   </td>
                   <td className="px-3 py-2.5 text-right align-top font-mono whitespace-nowrap tabular-nums text-ink-800">
                     {formatValue(check.measured, check.unit)}

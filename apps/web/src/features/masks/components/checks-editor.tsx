@@ -114,7 +114,7 @@ export function ChecksEditor({
             {checks.map((check, index) => {
               const base = `checks.${index}`;
               const number = index + 1;
-              const hasTables = check.kind === 'magnitude-envelope' || check.kind === 'band-levels';
+              const hasTables = check.kind === 'magnitude-envelope' || check.kind === 'band-levels' || check.kind === 'distortion-vs-frequency';
               const rowLevel = [...(issues[base] ?? []), ...(issues[`${base}.kind`] ?? [])];
               const selected = selectedUid === check.uid;
               return (
@@ -244,6 +244,15 @@ export function ChecksEditor({
                               );
                             })}
                           </div>
+                        ) : check.kind === 'distortion-vs-frequency' ? (
+                          <LimitCurveTable
+                            title={`Upper limit of check ${number} (dB re fundamental)`}
+                            rows={check.upper ?? []}
+                            path={`${base}.max`}
+                            issues={issues}
+                            readOnly={readOnly}
+                            onChange={(next) => update(index, (c) => ({ ...c, upper: next }))}
+                          />
                         ) : (
                           <BandTable
                             rows={check.bands}

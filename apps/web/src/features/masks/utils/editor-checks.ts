@@ -4,6 +4,7 @@ import {
   INTEGRITY_METRICS,
   LEVEL_METRICS,
   MaskDocument,
+  HARMONIC_METRICS,
   TIMING_METRICS,
   type CheckKind,
   type LimitPoint,
@@ -50,6 +51,9 @@ export const CHECK_KIND_LABELS: Record<CheckKind, string> = {
   distortion: 'Distortion and noise',
   timing: 'Timing',
   integrity: 'Time-domain integrity',
+  'distortion-vs-frequency': 'Distortion vs frequency',
+  coherence: 'Coherence',
+  crosstalk: 'Crosstalk',
 };
 
 const options = (values: readonly string[]) => values.map((value) => ({ value, label: value }));
@@ -101,6 +105,13 @@ export const KIND_FIELDS: Record<CheckKind, FieldSpec[]> = {
     { name: 'clipThreshold', label: 'Clip threshold', unit: 'FS', type: 'number' },
     { name: 'minDropoutMs', label: 'Min dropout', unit: 'ms', type: 'number' },
   ],
+  'distortion-vs-frequency': [{ name: 'metric', label: 'Metric', type: 'select', options: options(HARMONIC_METRICS) }],
+  coherence: [...band('Band'), { name: 'min', label: 'Min γ²', type: 'number' }],
+  crosstalk: [
+    { name: 'drivenChannel', label: 'Driven channel', type: 'number' },
+    { name: 'minDb', label: 'Min separation', unit: 'dB', type: 'number' },
+    ...band('Band'),
+  ],
 };
 
 export { CHECK_KINDS };
@@ -140,6 +151,19 @@ export function starterCheck(kind: CheckKind, id: string): EditorCheck {
       return { ...base, fields: { id, metric: 'latency-ms', min: '0', max: '10' } };
     case 'integrity':
       return { ...base, fields: { id, metric: 'clipped-samples', max: '0' } };
+    case 'distortion-vs-frequency':
+      return {
+        ...base,
+        fields: { id, metric: 'thd-db' },
+        upper: [
+          { hz: '50', db: '-40' },
+          { hz: '10000', db: '-54' },
+        ],
+      };
+    case 'coherence':
+      return { ...base, fields: { id, min: '0.98' } };
+    case 'crosstalk':
+      return { ...base, fields: { id, drivenChannel: '0', minDb: '70' } };
   }
 }
 
@@ -155,7 +179,9 @@ export function toEditorCheck(check: MaskCheck): EditorCheck {
   let bands: BandRow[] = [];
   for (const [name, value] of Object.entries(check)) {
     if (name === 'kind') continue;
-    if (name === 'upper' || name === 'lower') {
+    if (check.kind === 'distortion-vs-frequency' && name === 'max') {
+      upper = (value as LimitPoint[]).map((p) => ({ hz: text(p.hz), db: text(p.db) }));
+    } else if (name === 'upper' || name === 'lower') {
       const rows = (value as LimitPoint[]).map((p) => ({ hz: text(p.hz), db: text(p.db) }));
       if (name === 'upper') upper = rows;
       else lower = rows;
@@ -228,6 +254,7 @@ export function toCheckInput(check: EditorCheck): Record<string, unknown> {
     if (check.upper) out.upper = check.upper.map((p) => ({ hz: num(p.hz) ?? Number.NaN, db: num(p.db) ?? Number.NaN }));
     if (check.lower) out.lower = check.lower.map((p) => ({ hz: num(p.hz) ?? Number.NaN, db: num(p.db) ?? Number.NaN }));
   }
+  if (check.kind === 'distortion-vs-frequency' && check.upper) out.max = check.upper.map((p) => ({ hz: num(p.hz) ?? Number.NaN, db: num(p.db) ?? Number.NaN }));
   if (check.kind === 'band-levels') {
     out.bands = check.bands.map((b) => {
       const row: Record<string, number> = { centerHz: num(b.centerHz) ?? Number.NaN };
