@@ -1,6 +1,6 @@
 import { Build, MaskRevision, Notification, TEST_PASSWORD, Target, TestCase, Verdict } from '@earmark/db';
 import { StimulusSpec, type BuildMatrix, type CaptureDto, type DriftResponse, type ImpactRunDto, type MaskCheckInput } from '@earmark/contracts';
-import { encodeWav, generateStimulus } from '@earmark/dsp';
+import { ENGINE_VERSION, encodeWav, generateStimulus } from '@earmark/dsp';
 import { applyBiquad, peakingEqCoefficients } from '@earmark/dsp/testing';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startStack, type Stack } from '../support/stack.js';
@@ -179,6 +179,35 @@ describe('re-evaluation under an approved revision', () => {
     // Again: every capture already has a verdict under revision 3, so nothing is queued.
     const again = await call('POST', `${base}/3/reevaluate`, { token: qaToken, body: { scope: 'open-builds' } });
     expect(again.body).toMatchObject({ builds: 1, queued: 0 });
+  });
+
+  it('judges history again when the engine is newer, and the capture says which checks changed and why', async () => {
+    // History judged by an older engine: mark revision 3's verdicts as engine 0.4.0, and give
+    // b000001's check the wrong number an older engine could have produced.
+    const conn = stack.orm.em.fork().getConnection();
+    await conn.execute(`update verdict set engine_version = '0.4.0' where mask_revision_id = (select id from mask_revision where revision = 3 and test_case_id = (select id from test_case where key = 'eq.sweep'))`);
+    await conn.execute(`update check_result set pass = false, measured = 9.5, margin = -7 where check_id = 'response' and verdict_id = (select id from verdict where capture_id = ? and engine_version = '0.4.0')`, [captures['b000001']!]);
+    const res = await call('POST', `${base}/3/reevaluate`, { token: qaToken, body: { scope: 'last-n', builds: 4 } });
+    expect(res.status, res.text).toBe(202);
+    expect(res.body).toMatchObject({ revision: 3, builds: 4, queued: 4 });
+    const first = await until('re-evaluation by the new engine', async () => {
+      const c = (await call('GET', `/api/v1/captures/${captures['b000001']!}`)).body as CaptureDto;
+      return c.verdict && c.verdict.engineVersion === ENGINE_VERSION ? c : null;
+    });
+    const v = first.verdict!;
+    expect(v).toMatchObject({ outcome: 'pass', previousOutcome: 'pass', previousEngineVersion: '0.4.0', previousMaskRevision: 3, maskRevision: 3 });
+    // Exactly the check whose number moved is listed, with both numbers (the new one ≈ the 8 kHz-free response).
+    expect(v.changes?.map((c) => c.checkId)).toEqual(['response']);
+    expect(v.changes?.[0]).toMatchObject({ unit: 'dB', before: { pass: false, measured: 9.5 }, after: { pass: true } });
+    expect(Math.abs(v.changes![0]!.after!.measured!)).toBeLessThan(1);
+    // An untouched capture: judged again, nothing changed.
+    const other = await until('re-evaluation of b000003', async () => {
+      const c = (await call('GET', `/api/v1/captures/${captures['b000003']!}`)).body as CaptureDto;
+      return c.verdict && c.verdict.engineVersion === ENGINE_VERSION ? c : null;
+    });
+    expect(other.verdict).toMatchObject({ previousEngineVersion: '0.4.0', changes: [] });
+    // Judged by this engine now: nothing more to queue.
+    expect((await call('POST', `${base}/3/reevaluate`, { token: qaToken, body: { scope: 'last-n', builds: 4 } })).body).toMatchObject({ queued: 0 });
   });
 });
 

@@ -95,12 +95,17 @@ describe('earmark analyze', () => {
     expect(run.code, run.stderr).toBe(0);
     const t = AnalysisReport.parse(JSON.parse(run.stdout)).channels[0]?.transfer;
     expect(t?.method).toBe('deconvolution');
-    expect(t?.latencySamples).toBe(0);
+    // Sub-sample latency from the linear impulse response's peak: 0 within 1e-6 samples.
+    expect(Math.abs(t?.latencySamples ?? 1)).toBeLessThan(1e-6);
+    expect(t?.polarity).toBe('normal');
+    // A wire has no harmonic responses: distortion versus frequency is at float32's floor (< 0.001 %).
+    expect(t?.distortionVsFrequency.length).toBeGreaterThan(15); // a 1 s sweep resolves H2/H3 from ~90 Hz up
+    for (const d of t?.distortionVsFrequency ?? []) expect(d.thdPercent ?? 0).toBeLessThan(1e-3);
     // float32 storage limits |H| to ~1e-7 relative: 0.001 dB
     for (const m of (t?.magnitudeDb ?? []).filter((b) => b.centerHz >= 31.5 && b.centerHz <= 16000)) expect(Math.abs(m.db)).toBeLessThan(1e-3);
     const table = await earmark('analyze', join(dir, 'sweep.wav'), '--stimulus', join(dir, 'sweep.json'));
     expect(table.code).toBe(0);
-    for (const word of ['channel 0', 'level', 'noise floor', '1/3-octave bands', 'transfer (deconvolution)', 'latency', 'group delay']) expect(table.stdout).toContain(word);
+    for (const word of ['channel 0', 'level', 'noise floor', '1/3-octave bands', 'transfer (deconvolution)', 'latency', 'polarity normal', 'group delay', 'distortion vs frequency', 'steady part']) expect(table.stdout).toContain(word);
   });
 
   it('a bad file exits 2 with one clear line on stderr and no stack unless --debug', async () => {

@@ -76,6 +76,20 @@ describe.concurrent('earmark stimulus', { timeout: 30_000 }, () => {
     expect(runs[3]?.stderr).toMatch(/silence, 0\.05 s, 96000 Hz.*peak -inf dBFS/);
   });
 
+  it('writes the SMPTE and twin-tone IMD signals with --low, --high and --ratio', async () => {
+    const [smpte, twin] = await Promise.all([
+      earmark('stimulus', '--kind', 'imd-smpte', '--low', '250', '--high', '8000', '--ratio', '4', '--seconds', '0.1', '--level', '-6', '--bits', 'float64', '-o', 'smpte.wav'),
+      earmark('stimulus', '--kind', 'imd-twin-tone', '--seconds', '0.1', '--rate', '44100', '-o', 'twin.wav'),
+    ]);
+    expect(smpte.code, smpte.stderr).toBe(0);
+    expect(twin.code, twin.stderr).toBe(0);
+    expect(smpte.stderr).toMatch(/SMPTE IMD 250 Hz \+ 8 kHz \(4:1\), 0\.1 s, 48000 Hz/);
+    expect(twin.stderr).toMatch(/twin tone 18 kHz \+ 19 kHz, 0\.1 s, 44100 Hz/);
+    const decoded = decodeWav(new Uint8Array(readFileSync(join(dir, 'smpte.wav'))));
+    const want = generateStimulus(StimulusSpec.parse({ kind: 'imd-smpte', sampleRate: 48000, lowFrequency: 250, highFrequency: 8000, ratio: 4, seconds: 0.1, levelDbfs: -6 })).channels[0];
+    expect(Array.from(decoded.channels[0] ?? [])).toEqual(Array.from(want ?? []));
+  });
+
   it('writes the sweep inverse filter with --inverse', async () => {
     const r = await earmark('stimulus', '--kind', 'sweep', '--from', '50', '--to', '5000', '--seconds', '0.5', '--rate', '16000', '--silence', '0.1', '-o', 's2.wav', '--inverse', 'inv.wav');
     expect(r.code, r.stderr).toBe(0);

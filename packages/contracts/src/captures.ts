@@ -45,6 +45,20 @@ export const VerdictDto = z.object({
   checks: z.array(CheckResultDto),
   /** For a re-evaluation: the outcome of the verdict this one replaced. */
   previousOutcome: VerdictOutcome.nullable().optional(),
+  /** For a re-evaluation: the engine and mask revision of the verdict this one replaced (why it changed). */
+  previousEngineVersion: z.string().optional(),
+  previousMaskRevision: z.number().int().nullable().optional(),
+  /** For a re-evaluation: the checks whose result or number changed, before and after. */
+  changes: z
+    .array(
+      z.object({
+        checkId: z.string(),
+        unit: z.string().nullable(),
+        before: z.object({ pass: z.boolean(), measured: z.number().nullable() }).nullable(),
+        after: z.object({ pass: z.boolean(), measured: z.number().nullable() }).nullable(),
+      }),
+    )
+    .optional(),
 });
 export type VerdictDto = z.infer<typeof VerdictDto>;
 

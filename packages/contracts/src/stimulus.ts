@@ -181,6 +181,62 @@ export type PinkNoiseSpec = z.infer<typeof PinkNoiseSpec>;
 export const SilenceSpec = z.strictObject({ kind: z.literal('silence'), ...base, seconds: Seconds });
 export type SilenceSpec = z.infer<typeof SilenceSpec>;
 
+/** Most an SMPTE/DIN amplitude ratio (low tone : high tone) may be, either way. */
+export const MAX_IMD_RATIO = 100;
+
+/**
+ * SMPTE / DIN intermodulation test signal: a low tone f1 and a high tone f2 with amplitudes
+ * in the ratio `ratio`:1 (default 4:1, SMPTE RP120 and IEC 60268-3), whose combined peak
+ * A1 + A2 is the peak of a sine at `levelDbfs`. DIN 45403 uses 250 Hz + 8 kHz.
+ */
+export const ImdSmpteSpec = z
+  .strictObject({
+    kind: z.literal('imd-smpte'),
+    ...base,
+    seconds: Seconds,
+    levelDbfs: LevelDbfs.default(-20),
+    lowFrequency: Frequency.default(60),
+    highFrequency: Frequency.default(7000),
+    /** Amplitude ratio low:high (4 means 4:1). */
+    ratio: z
+      .number()
+      .min(1 / MAX_IMD_RATIO, `must be at least 1/${MAX_IMD_RATIO}`)
+      .max(MAX_IMD_RATIO, `must be at most ${MAX_IMD_RATIO}`)
+      .default(4),
+    ...fades,
+  })
+  .refine((s) => s.lowFrequency < s.highFrequency, { message: 'lowFrequency must be below highFrequency', path: ['lowFrequency'] })
+  .refine((s) => s.highFrequency < s.sampleRate / 2, { message: nyquistMessage('highFrequency'), path: ['highFrequency'] })
+  .refine((s) => s.fadeInSeconds + s.fadeOutSeconds <= s.seconds, {
+    message: 'fades together must not be longer than the signal',
+    path: ['fadeInSeconds'],
+  });
+export type ImdSmpteSpec = z.infer<typeof ImdSmpteSpec>;
+
+/**
+ * Twin-tone (difference-frequency) intermodulation test signal: two equal tones at
+ * `lowFrequency` and `highFrequency` (default 18 kHz and 19 kHz, 1 kHz apart), whose combined
+ * peak 2A is the peak of a sine at `levelDbfs` (IEC 60268-3, IEC 60118 difference-frequency
+ * distortion).
+ */
+export const ImdTwinToneSpec = z
+  .strictObject({
+    kind: z.literal('imd-twin-tone'),
+    ...base,
+    seconds: Seconds,
+    levelDbfs: LevelDbfs.default(-20),
+    lowFrequency: Frequency.default(18000),
+    highFrequency: Frequency.default(19000),
+    ...fades,
+  })
+  .refine((s) => s.lowFrequency < s.highFrequency, { message: 'lowFrequency must be below highFrequency', path: ['lowFrequency'] })
+  .refine((s) => s.highFrequency < s.sampleRate / 2, { message: nyquistMessage('highFrequency'), path: ['highFrequency'] })
+  .refine((s) => s.fadeInSeconds + s.fadeOutSeconds <= s.seconds, {
+    message: 'fades together must not be longer than the signal',
+    path: ['fadeInSeconds'],
+  });
+export type ImdTwinToneSpec = z.infer<typeof ImdTwinToneSpec>;
+
 /** Any stimulus, told apart by `kind`. */
 export const StimulusSpec = z.discriminatedUnion('kind', [
   SineSpec,
@@ -190,9 +246,11 @@ export const StimulusSpec = z.discriminatedUnion('kind', [
   WhiteNoiseSpec,
   PinkNoiseSpec,
   SilenceSpec,
+  ImdSmpteSpec,
+  ImdTwinToneSpec,
 ]);
 export type StimulusSpec = z.infer<typeof StimulusSpec>;
 /** The JSON a user writes (defaults not yet filled in). */
 export type StimulusSpecInput = z.input<typeof StimulusSpec>;
 export type StimulusKind = StimulusSpec['kind'];
-export const STIMULUS_KINDS = ['sine', 'multitone', 'sweep', 'impulse', 'white-noise', 'pink-noise', 'silence'] as const;
+export const STIMULUS_KINDS = ['sine', 'multitone', 'sweep', 'impulse', 'white-noise', 'pink-noise', 'silence', 'imd-smpte', 'imd-twin-tone'] as const;

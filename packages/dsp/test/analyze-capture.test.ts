@@ -43,7 +43,8 @@ describe('analyzeCapture', () => {
     const r = analyzeCapture({ sampleRate: FS, channels: [y] }, { reference: { sampleRate: FS, channels: [x] } });
     const t = r.channels[0]?.transfer;
     // The cross-correlation peak sits on the larger centre tap: the bulk delay (300) plus the tap (1).
-    expect(t?.latencySamples).toBe(latency + 1);
+    // Sub-sample latency (GCC-PHAT, interpolated peak): the FIR's centre tap lands 1 sample late; within 1e-3 samples.
+    expect(Math.abs((t?.latencySamples ?? 0) - (latency + 1))).toBeLessThan(1e-3);
     // Group delay (Oppenheim & Schafer, symmetric FIR): (L−1)/2 = 1 sample, plus 300 samples of latency.
     expect(Math.abs((t?.groupDelayMs.mean ?? 0) - (1000 * (latency + 1)) / FS)).toBeLessThan(1e-3);
     expect(t?.linearPhaseDeviationDeg).toBeLessThan(1);

@@ -1,6 +1,6 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { measureDistortion } from '../src/measures/distortion.js';
+import { measureToneDistortion } from '../src/measures/tone-distortion.js';
 import { analyzeFrame, residualForListening, synthesizeFrame } from '../src/synthesis/resynthesis.js';
 import { amplitudeSpectrum } from '../src/spectrum/spectrum.js';
 import { gaussian, sine } from './helpers/signals.js';
@@ -75,6 +75,6 @@ describe('band-limited residual for listening', () => {
     const expected = (1e-6 * 19980) / 24000;
     expect(Math.abs(p / expected - 1)).toBeLessThan(0.05);
     // No tone left: the residual's own distortion analysis finds no dominant tone.
-    expect(measureDistortion(r, fs).tone).toBeNull();
+    expect(measureToneDistortion(r, fs).tone).toBeNull();
   });
 });

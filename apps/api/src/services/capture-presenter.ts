@@ -9,11 +9,13 @@ export async function latestVerdicts(em: EntityManager, captures: Capture[]): Pr
   const verdicts = await em.find(
     Verdict,
     { capture: { $in: captures.map((c) => c.id) } },
-    { populate: ['maskRevision', 'previous'], orderBy: { createdAt: 'desc' } },
+    { populate: ['maskRevision', 'previous', 'previous.maskRevision'], orderBy: { createdAt: 'desc' } },
   );
   const newest = new Map<string, Verdict>();
   for (const v of verdicts) if (!newest.has(v.capture.id)) newest.set(v.capture.id, v);
+  const previousIds = [...newest.values()].flatMap((v) => (v.previous ? [v.previous.id] : []));
   const checks = await em.find(CheckResult, { verdict: { $in: [...newest.values()].map((v) => v.id) } }, { orderBy: { checkId: 'asc' } });
+  const previousChecks = previousIds.length ? await em.find(CheckResult, { verdict: { $in: previousIds } }) : [];
   const byVerdict = new Map<string, CheckResultDto[]>();
   for (const c of checks) {
     const list = byVerdict.get(c.verdict.id) ?? [];
@@ -43,11 +45,36 @@ export async function latestVerdicts(em: EntityManager, captures: Capture[]): Pr
         maskRevisionId: v.maskRevision?.id ?? null,
         maskRevision: v.maskRevision?.revision ?? null,
         createdAt: v.createdAt.toISOString(),
-        ...(v.previous ? { previousOutcome: v.previous.outcome } : {}),
+        ...(v.previous
+          ? {
+              previousOutcome: v.previous.outcome,
+              previousEngineVersion: v.previous.engineVersion,
+              previousMaskRevision: v.previous.maskRevision?.revision ?? null,
+              changes: checkChanges(previousChecks.filter((c) => c.verdict.id === v.previous?.id), checks.filter((c) => c.verdict.id === v.id)),
+            }
+          : {}),
         checks: byVerdict.get(v.id) ?? [],
       },
     ]),
   );
+}
+
+/** A measured value changes when it moves by more than this fraction (or the result flips). */
+const CHANGE_TOLERANCE = 1e-6;
+
+/** The checks of a re-evaluation whose result or number differs from the verdict it replaced. */
+export function checkChanges(before: readonly CheckResult[], after: readonly CheckResult[]): NonNullable<VerdictDto['changes']> {
+  const old = new Map(before.map((c) => [c.checkId, c]));
+  const ids = [...new Set([...after.map((c) => c.checkId), ...before.map((c) => c.checkId)])].sort();
+  const now = new Map(after.map((c) => [c.checkId, c]));
+  const moved = (a: number | null, b: number | null) => (a === null || b === null ? a !== b : Math.abs(a - b) > CHANGE_TOLERANCE * Math.max(1, Math.abs(a)));
+  return ids.flatMap((checkId) => {
+    const b = old.get(checkId) ?? null;
+    const a = now.get(checkId) ?? null;
+    if (a && b && a.pass === b.pass && !moved(a.measured, b.measured)) return [];
+    const unit = typeof (a ?? b)?.details.unit === 'string' ? ((a ?? b)?.details.unit as string) : null;
+    return [{ checkId, unit, before: b ? { pass: b.pass, measured: b.measured } : null, after: a ? { pass: a.pass, measured: a.measured } : null }];
+  });
 }
 
 /** Captures must have project, build, testCase and target loaded. */

@@ -2,6 +2,7 @@ import type { EntityManager } from '@mikro-orm/postgresql';
 import { ImpactResult, QUEUES, type CreateImpactRunRequest, type ImpactRunDto, type ReevaluateRequest, type ReevaluateResponse } from '@earmark/contracts';
 import { ImpactRun, MaskRevision, type Project, type TestCase, type User } from '@earmark/db';
 import type PgBoss from 'pg-boss';
+import { ENGINE_VERSION } from '@earmark/dsp';
 import { ConflictError, NotFoundError, ServiceUnavailableError } from '../errors.js';
 import { recordAudit } from './audit.service.js';
 
@@ -98,7 +99,11 @@ export class ImpactService {
       [project.id, testCase.id, req.builds ?? 20],
     );
     const captures = await governedCaptures(em, mask, builds.map((b) => b.id));
-    const judged = await em.getConnection().execute<{ capture_id: string }[]>(`select capture_id from verdict where mask_revision_id = ? and capture_id = any(?::uuid[])`, [mask.id, `{${captures.map((c) => c.id).join(',')}}`]);
+    // Judged already by this revision with this engine: nothing would change. A verdict of an
+    // older engine is judged again, so a new engine's numbers reach past builds.
+    const judged = await em
+      .getConnection()
+      .execute<{ capture_id: string }[]>(`select capture_id from verdict where mask_revision_id = ? and engine_version = ? and capture_id = any(?::uuid[])`, [mask.id, ENGINE_VERSION, `{${captures.map((c) => c.id).join(',')}}`]);
     const skip = new Set(judged.map((j) => j.capture_id));
     const todo = captures.filter((c) => !skip.has(c.id)).map((c) => c.id);
     if (todo.length > 0) {

@@ -53,7 +53,7 @@ async function runStimulus(flags: StimulusFlags, command: Command): Promise<void
 export function registerStimulusCommand(program: Command): void {
   const command = program
     .command('stimulus')
-    .description('write a deterministic test signal (sine, multitone, sweep, impulse, noise, silence) as a WAV file')
+    .description('write a deterministic test signal (sine, multitone, sweep, impulse, noise, silence, IMD two-tone) as a WAV file')
     .requiredOption('-o, --out <file.wav>', 'where to write the WAV file')
     .option('--spec <file.json>', 'read the stimulus spec from a JSON file (flags override its fields)')
     .addOption(new Option('--kind <kind>', 'signal kind').choices([...STIMULUS_KINDS]))
@@ -74,6 +74,9 @@ export function registerStimulusCommand(program: Command): void {
     .option('--silence <s>', 'sweep: silence after the sweep in seconds')
     .option('--delay <samples>', 'impulse: position of the impulse in samples')
     .option('--independent-channels', 'noise: a separate noise stream on each channel')
+    .option('--low <hz>', 'imd-smpte / imd-twin-tone: low tone (defaults 60 Hz / 18 kHz)')
+    .option('--high <hz>', 'imd-smpte / imd-twin-tone: high tone (defaults 7 kHz / 19 kHz)')
+    .option('--ratio <r>', 'imd-smpte: amplitude ratio low:high (default 4, i.e. 4:1)')
     .option('--bits <depth>', 'WAV sample format: 16, 24, 32, float32 or float64', '24')
     .option('--inverse <file.wav>', "sweep: also write Farina's inverse filter (32-bit float WAV)");
   command.exitOverride((err) => {

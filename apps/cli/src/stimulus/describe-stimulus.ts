@@ -26,6 +26,10 @@ export function describeSignal(spec: StimulusSpec): string {
       return `${spec.kind.replace('-', ' ')} (seed ${spec.seed}), ${spec.seconds} s`;
     case 'silence':
       return `silence, ${spec.seconds} s`;
+    case 'imd-smpte':
+      return `SMPTE IMD ${hz(spec.lowFrequency)} + ${hz(spec.highFrequency)} (${spec.ratio}:1), ${spec.seconds} s`;
+    case 'imd-twin-tone':
+      return `twin tone ${hz(spec.lowFrequency)} + ${hz(spec.highFrequency)}, ${spec.seconds} s`;
   }
 }
 

@@ -19,6 +19,9 @@ export interface StimulusFlags {
   silence?: string;
   delay?: string;
   independentChannels?: boolean;
+  low?: string;
+  high?: string;
+  ratio?: string;
   bits: string;
   out: string;
   inverse?: string;
@@ -44,4 +47,7 @@ export const FLAG_TO_FIELD: ReadonlyArray<readonly [keyof StimulusFlags, string,
   ['silence', 'silenceSeconds', 'number'],
   ['delay', 'delaySamples', 'number'],
   ['independentChannels', 'independentChannels', 'boolean'],
+  ['low', 'lowFrequency', 'number'],
+  ['high', 'highFrequency', 'number'],
+  ['ratio', 'ratio', 'number'],
 ];

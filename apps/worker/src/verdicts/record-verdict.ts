@@ -5,7 +5,7 @@ import { describeFailure, type Judgement } from './judgement.js';
 import { applyWaivers } from './waivers.js';
 
 export interface RecordResult {
-  /** False when this capture already had a verdict under this revision (a re-run job). */
+  /** False when this capture already had a verdict under this revision and engine (a re-run job). */
   written: boolean;
   notificationsQueued: number;
 }
@@ -19,7 +19,7 @@ export interface RecordDeps {
 /**
  * Writes a verdict with its check results, the capture's status, the build's aggregate,
  * findings for failing checks and e-mail for a build that just turned failed — all in one
- * transaction. Idempotent: a second call for the same capture and revision writes nothing.
+ * transaction. Idempotent: a second call for the same capture, revision and engine version writes nothing.
  */
 export async function recordVerdict(
   em: EntityManager,
@@ -34,10 +34,10 @@ export async function recordVerdict(
       // The build row lock serialises captures of one build, so the aggregate and the
       // "turned failed" transition are decided once.
       const build = await tx.findOneOrFail(Build, { id: capture.build.id }, { lockMode: LockMode.PESSIMISTIC_WRITE });
-      if (await tx.findOne(Verdict, { capture, maskRevision: mask ? mask.id : null })) return { written: false, notificationsQueued: 0 };
+      if (await tx.findOne(Verdict, { capture, maskRevision: mask ? mask.id : null, engineVersion: analysed.engineVersion })) return { written: false, notificationsQueued: 0 };
       const { judgement, waivers } = await applyWaivers(tx, capture, analysed);
 
-      // A capture judged again (re-evaluation under a newer revision) links to the verdict it replaces as the newest.
+      // A capture judged again (re-evaluation under a newer revision or engine) links to the verdict it replaces as the newest.
       const replaced = await tx.findOne(Verdict, { capture }, { orderBy: { createdAt: 'desc' } });
       const verdict = tx.create(Verdict, {
         capture,

@@ -13,7 +13,7 @@ export class Verdict extends BaseEntity<'maskRevision' | 'reason' | 'previous'> 
   outcome!: VerdictOutcome;
   reason: string | null = null;
   engineVersion!: string;
-  /** For a re-evaluation under a newer revision: the verdict it replaces as the newest. */
+  /** For a re-evaluation (a newer revision or engine): the verdict it replaces as the newest. */
   previous: Verdict | null = null;
 }
 
@@ -28,12 +28,14 @@ export const VerdictSchema = new EntitySchema<Verdict, BaseEntity>({
     engineVersion: { type: 'string', length: 40 },
     previous: { kind: 'm:1', entity: () => Verdict, nullable: true, deleteRule: 'set null' },
   },
-  // NULLS NOT DISTINCT: a capture judged with no mask in force still gets one verdict only.
+  // One verdict per capture, mask revision and engine version: re-evaluating under a newer
+  // engine adds a verdict, a re-run job does not. NULLS NOT DISTINCT: a capture judged with
+  // no mask in force still gets one verdict per engine only.
   indexes: [
     {
-      name: 'verdict_capture_mask_revision_unique',
+      name: 'verdict_capture_mask_revision_engine_unique',
       expression:
-        'create unique index "verdict_capture_mask_revision_unique" on "verdict" ("capture_id", "mask_revision_id") nulls not distinct',
+        'create unique index "verdict_capture_mask_revision_engine_unique" on "verdict" ("capture_id", "mask_revision_id", "engine_version") nulls not distinct',
     },
   ],
 });

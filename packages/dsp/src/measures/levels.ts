@@ -1,9 +1,6 @@
 import { rmsToDbfs } from '../spectrum/db.js';
 import { precondition } from '../util/preconditions.js';
 
-/** Default clip threshold: the largest positive 16-bit code, 32767/32768 of full scale. */
-export const DEFAULT_CLIP_THRESHOLD = 1 - 2 ** -15;
-
 /** Time-domain level measures of one channel. */
 export interface SignalLevels {
   rms: number;
@@ -16,33 +13,27 @@ export interface SignalLevels {
   crestFactorDb: number;
   /** Mean value. */
   dcOffset: number;
-  /** Samples with |x| ≥ the clip threshold. */
-  clippedSamples: number;
   /** Σx², the time-domain side of the Parseval check. */
   energy: number;
 }
 
 /**
- * RMS, peak, crest factor, DC offset, clipped-sample count and energy in one pass.
- * @param clipThreshold |x| at or above which a sample counts as clipped (default 1 − 2⁻¹⁵)
- * @throws RangeError on an empty signal or a threshold outside (0, ∞)
+ * RMS, peak, crest factor, DC offset and energy in one pass (clipping: `detectClipping`).
+ * @throws RangeError on an empty signal
  * @see AES17-2020 (full-scale sine = 0 dBFS); crest factor = peak/RMS (IEC 60050-103)
  */
-export function measureLevels(x: Float64Array, clipThreshold = DEFAULT_CLIP_THRESHOLD): SignalLevels {
+export function measureLevels(x: Float64Array): SignalLevels {
   const fn = 'measureLevels';
   precondition(x.length >= 1, fn, 'signal must not be empty');
-  precondition(clipThreshold > 0, fn, `clipThreshold must be > 0 (got ${clipThreshold})`);
   let sum = 0;
   let sumSq = 0;
   let peak = 0;
-  let clipped = 0;
   for (let i = 0; i < x.length; i++) {
     const v = x[i] as number;
     const a = Math.abs(v);
     sum += v;
     sumSq += v * v;
     if (a > peak) peak = a;
-    if (a >= clipThreshold) clipped++;
   }
   const rms = Math.sqrt(sumSq / x.length);
   return {
@@ -52,7 +43,6 @@ export function measureLevels(x: Float64Array, clipThreshold = DEFAULT_CLIP_THRE
     peakDbfs: 20 * Math.log10(peak),
     crestFactorDb: 20 * Math.log10(peak / rms),
     dcOffset: sum / x.length,
-    clippedSamples: clipped,
     energy: sumSq,
   };
 }

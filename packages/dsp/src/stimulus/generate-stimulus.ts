@@ -7,6 +7,7 @@ import { createSeededRandom } from './seeded-random.js';
 import { sineWave } from './sine.js';
 import { StimulusError } from './stimulus-error.js';
 import { exponentialSweep, farinaInverseFilter } from './sweep.js';
+import { twoToneAmplitudes, twoToneWave } from './two-tone.js';
 import { validateStimulusSpec } from './validate-stimulus-spec.js';
 import { whiteNoise } from './white-noise.js';
 
@@ -75,6 +76,12 @@ function generateChannels(spec: StimulusSpec): Float64Array[] {
       }
       return out;
     }
+    case 'imd-smpte':
+    case 'imd-twin-tone': {
+      // Combined peak A_low + A_high at the level's sine peak; the twin tone is the 1:1 case.
+      const a = twoToneAmplitudes(sineAmplitudeFromDbfs(spec.levelDbfs), spec.kind === 'imd-smpte' ? spec.ratio : 1);
+      return [faded(twoToneWave(n, spec.sampleRate, spec.lowFrequency, a.low, spec.highFrequency, a.high), spec)];
+    }
   }
 }
 
@@ -82,10 +89,11 @@ function generateChannels(spec: StimulusSpec): Float64Array[] {
  * Generates a stimulus from its spec, deterministically: the same spec (seed included) gives
  * the same samples on every machine (IEEE-754 arithmetic; Math.sin/cos/exp may differ in the
  * last bit between JavaScript engines). Levels follow AES17: a sine at L dBFS has amplitude
- * 10^(L/20); noise and multitones have RMS 10^(L/20)/√2; an impulse's level is its peak.
+ * 10^(L/20); noise and multitones have RMS 10^(L/20)/√2; an impulse's level is its peak; the
+ * two-tone IMD signals have a combined peak A_low + A_high = 10^(L/20).
  * Every channel carries the same signal unless noise asks for `independentChannels` (channel
  * 1 is then the same as in the shared case). Methods: see sine.ts, multitone.ts (Schroeder
- * 1970), sweep.ts (Farina 2000), white-noise.ts, pink-noise.ts.
+ * 1970), sweep.ts (Farina 2000), white-noise.ts, pink-noise.ts, two-tone.ts (IEC 60268-3).
  *
  * @throws StimulusError `invalid-spec` (names the field), `level-above-full-scale`
  *   (levelDbfs > 0) or `would-clip` (the signal's peak would exceed full scale, e.g. noise or

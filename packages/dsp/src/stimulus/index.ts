@@ -10,3 +10,4 @@ export { exponentialSweep, farinaInverseFilter, sweepFrequencyAt } from './sweep
 export { scaleToRms, whiteNoise } from './white-noise.js';
 export { pinkNoise, pinkingSections, PINK_LOWEST_POLE_HZ } from './pink-noise.js';
 export { stimulusAsPlayed } from './stimulus-as-played.js';
+export { twoToneAmplitudes, twoToneWave, type TwoToneAmplitudes } from './two-tone.js';

@@ -7,6 +7,7 @@ const MAX_RATE = 192000;
 const MAX_CHANNELS = 8;
 const MAX_SECONDS = 600;
 const MAX_TONES = 4096;
+const MAX_IMD_RATIO = 100;
 
 function need(ok: boolean, field: string, what: string): void {
   if (!ok) throw new StimulusError('invalid-spec', `generateStimulus: ${field} ${what}`);
@@ -67,6 +68,14 @@ export function validateStimulusSpec(spec: StimulusSpec): void {
     case 'white-noise':
     case 'pink-noise':
       need(Number.isSafeInteger(spec.seed) && spec.seed >= 0, 'seed', 'must be a whole number ≥ 0');
+      break;
+    case 'imd-smpte':
+    case 'imd-twin-tone':
+      need(inBand(spec.lowFrequency) && inBand(spec.highFrequency), 'lowFrequency/highFrequency', `must lie between 0 and fs/2 = ${nyquist} Hz`);
+      need(spec.lowFrequency < spec.highFrequency, 'lowFrequency', 'must be below highFrequency');
+      if (spec.kind === 'imd-smpte') {
+        need(Number.isFinite(spec.ratio) && spec.ratio >= 1 / MAX_IMD_RATIO && spec.ratio <= MAX_IMD_RATIO, 'ratio', `must lie in 1/${MAX_IMD_RATIO}…${MAX_IMD_RATIO}, got ${spec.ratio}`);
+      }
       break;
   }
 }

@@ -1,5 +1,5 @@
 import { createRealFftPlan, type RealFftPlan } from '../fft/real-fft.js';
-import { measureDistortion } from '../measures/distortion.js';
+import { harmonicResidual } from '../measures/distortion.js';
 import { createWindow, type WindowKind, type WindowSymmetry } from '../spectrum/windows.js';
 import { extractZeroPhase, placeZeroPhase } from '../spectrum/zero-phase.js';
 import { nextPowerOfTwo, precondition, requirePositive } from '../util/preconditions.js';
@@ -79,7 +79,7 @@ export function residualForListening(x: Float64Array, sampleRate: number, option
   precondition(band[0] >= 0 && band[1] > band[0], fn, 'band must satisfy 0 ≤ low < high');
   const n = nextPowerOfTwo(x.length);
   const plan = createRealFftPlan(n);
-  const residual = options.removeHarmonics === false ? Float64Array.from(x) : measureDistortion(x, sampleRate, { plan, harmonics: options.harmonics ?? 10 }).residual;
+  const residual = options.removeHarmonics === false ? Float64Array.from(x) : harmonicResidual(x, sampleRate, options.harmonics ?? 10);
   const buf = new Float64Array(n);
   buf.set(residual);
   const re = new Float64Array(plan.bins);

@@ -7,6 +7,7 @@ import { formatDate } from '@/lib/format';
 import { paths } from '@/lib/paths';
 import { isCaptureInProgress } from '../api/get-capture';
 import { plain } from '@/lib/plot/log-frequency';
+import { ReevaluationChanges } from './reevaluation-changes';
 
 function Meta({ label, children }: { label: string; children: React.ReactNode }) {
   return (
@@ -116,6 +117,8 @@ export function CaptureHeader({ detail }: { detail: CaptureDetail }) {
           ) : null}
         </p>
       ) : null}
+
+      {verdict && !inProgress ? <ReevaluationChanges verdict={verdict} /> : null}
 
       {verdict?.outcome === 'error' && verdict.reason ? (
         <div role="note" aria-label="Why the analysis could not decide" className="flex items-start gap-3 rounded-md border border-error/30 bg-error-soft px-4 py-3">

@@ -40,6 +40,8 @@ export const STIMULUS_KIND_LABELS: Record<StimulusKind, string> = {
   'white-noise': 'White noise',
   'pink-noise': 'Pink noise',
   silence: 'Silence',
+  'imd-smpte': 'Two-tone IMD (SMPTE/DIN)',
+  'imd-twin-tone': 'Twin-tone IMD (difference frequency)',
 };
 
 export const STIMULUS_FIELDS: Record<StimulusKind, StimulusField[]> = {
@@ -90,6 +92,27 @@ export const STIMULUS_FIELDS: Record<StimulusKind, StimulusField[]> = {
   'white-noise': [sampleRate, channels, seconds, level, seed, { name: 'independentChannels', label: 'Independent noise per channel', type: 'checkbox' }, fadeIn, fadeOut],
   'pink-noise': [sampleRate, channels, seconds, level, seed, { name: 'independentChannels', label: 'Independent noise per channel', type: 'checkbox' }, fadeIn, fadeOut],
   silence: [sampleRate, channels, seconds],
+  'imd-smpte': [
+    sampleRate,
+    channels,
+    seconds,
+    { ...level, hint: 'Combined peak of both tones; at most 0 dBFS' },
+    { name: 'lowFrequency', label: 'Low tone', unit: 'Hz', type: 'number', placeholder: '60' },
+    { name: 'highFrequency', label: 'High tone', unit: 'Hz', type: 'number', placeholder: '7000' },
+    { name: 'ratio', label: 'Amplitude ratio low:high', type: 'number', placeholder: '4' },
+    fadeIn,
+    fadeOut,
+  ],
+  'imd-twin-tone': [
+    sampleRate,
+    channels,
+    seconds,
+    { ...level, hint: 'Combined peak of both tones; at most 0 dBFS' },
+    { name: 'lowFrequency', label: 'Lower tone', unit: 'Hz', type: 'number', placeholder: '18000' },
+    { name: 'highFrequency', label: 'Upper tone', unit: 'Hz', type: 'number', placeholder: '19000' },
+    fadeIn,
+    fadeOut,
+  ],
 };
 
 export type TestCaseFormValues = {
@@ -242,5 +265,9 @@ export function describeStimulus(spec: TestCaseDto['stimulus']): string {
       return `${STIMULUS_KIND_LABELS[spec.kind]}, ${spec.seconds} s${levelText} · ${rate}`;
     case 'silence':
       return `Silence, ${spec.seconds} s · ${rate}`;
+    case 'imd-smpte':
+      return `Two-tone IMD ${hz(spec.lowFrequency)} + ${hz(spec.highFrequency)} (${spec.ratio}:1), ${spec.seconds} s${levelText} · ${rate}`;
+    case 'imd-twin-tone':
+      return `Twin-tone IMD ${hz(spec.lowFrequency)} + ${hz(spec.highFrequency)}, ${spec.seconds} s${levelText} · ${rate}`;
   }
 }
