@@ -98,9 +98,11 @@ describe('earmark analyze', () => {
     // Sub-sample latency from the linear impulse response's peak: 0 within 1e-6 samples.
     expect(Math.abs(t?.latencySamples ?? 1)).toBeLessThan(1e-6);
     expect(t?.polarity).toBe('normal');
-    // A wire has no harmonic responses: distortion versus frequency is at float32's floor (< 0.001 %).
+    // A wire has no harmonic responses: distortion versus frequency reads the method's own floor,
+    // below 0.002 % (−94 dB) in every band of a 1 s sweep (measured 0.0012 % at 125 Hz, where the
+    // harmonic windows of so short a sweep are shortest; < 0.0002 % above 1 kHz).
     expect(t?.distortionVsFrequency.length).toBeGreaterThan(15); // a 1 s sweep resolves H2/H3 from ~90 Hz up
-    for (const d of t?.distortionVsFrequency ?? []) expect(d.thdPercent ?? 0).toBeLessThan(1e-3);
+    for (const d of t?.distortionVsFrequency ?? []) expect(d.thdPercent ?? 0, `${d.centerHz} Hz`).toBeLessThan(d.centerHz >= 1000 ? 2e-4 : 2e-3);
     // float32 storage limits |H| to ~1e-7 relative: 0.001 dB
     for (const m of (t?.magnitudeDb ?? []).filter((b) => b.centerHz >= 31.5 && b.centerHz <= 16000)) expect(Math.abs(m.db)).toBeLessThan(1e-3);
     const table = await earmark('analyze', join(dir, 'sweep.wav'), '--stimulus', join(dir, 'sweep.json'));
