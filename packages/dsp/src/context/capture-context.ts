@@ -70,7 +70,7 @@ const LOW_COHERENCE = 0.9;
 const MAX_MISSING_FRACTION = 0.01;
 
 /** What a warning concerns, so a check shows only the warnings of the measures it used. */
-export type WarningTopic = 'stimulus' | 'timing' | 'transfer' | 'steady' | 'tone' | 'integrity';
+export type WarningTopic = 'stimulus' | 'timing' | 'transfer' | 'steady' | 'tone' | 'integrity' | 'spectrum';
 
 function memo<K, V>(cache: Map<K, V>, key: K, make: () => V): V {
   const hit = cache.get(key);
@@ -218,6 +218,12 @@ export class CaptureContext {
         const side = k === 0 || k === last ? 1 : 2;
         power[k] = side * p * powerNorm;
         amplitude2[k] = (side * side * p) / (sumW * sumW);
+      }
+      // A Hann main lobe is 4 bins of fs/L wide; a 1/3-octave band 0.23·fc: below fc = 8.7/T
+      // the band's level holds its neighbours' leakage.
+      const lowestResolvedHz = (2 * this.sampleRate) / (0.23 * x.length);
+      if (lowestResolvedHz > 25) {
+        this.warn(channel, 'spectrum', [`the record (${(x.length / this.sampleRate).toFixed(3)} s) is too short to resolve 1/3-octave bands below ${Math.round(lowestResolvedHz)} Hz: their levels include leakage from neighbouring bands`]);
       }
       return { binHz: this.sampleRate / plan.size, power, amplitude2 };
     });

@@ -41,8 +41,8 @@ function unitOf(check: MaskCheck): CheckUnit {
 
 /** The measures each kind of check rests on: their warnings are shown beside the check. */
 const WARNING_TOPICS: Record<MaskCheck['kind'], readonly WarningTopic[]> = {
-  'magnitude-envelope': ['stimulus', 'timing', 'transfer'],
-  'band-levels': ['stimulus', 'timing', 'transfer'],
+  'magnitude-envelope': ['stimulus', 'timing', 'transfer', 'spectrum'],
+  'band-levels': ['stimulus', 'timing', 'transfer', 'spectrum'],
   level: [],
   'phase-linearity': ['stimulus', 'timing', 'transfer'],
   distortion: ['steady', 'tone'],

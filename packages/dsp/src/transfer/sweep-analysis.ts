@@ -286,10 +286,16 @@ export function analyzeSweepCapture(deconvolver: SweepDeconvolver, capture: Floa
   const ir = buffer;
   plan.inverse(yr, yi, ir);
 
-  // Latency: the largest |h| (the linear response dominates every harmonic one).
+  // Latency: the largest |h| at a causal lag (0 … capture length). Everything the nonlinearity
+  // makes — harmonic responses at −T·ln k/ln(f2/f1) and, under clipping, aliased products spread
+  // over up to the sweep's length — lands at negative times (the buffer's end) and can outgrow
+  // the linear peak there, so it is not searched.
+  const rate = sweepRate(sweep);
+  const advance = (k: number): number => (Math.log(k) / rate) * sampleRate;
+  const searchEnd = Math.max(1, Math.min(capture.length, size - Math.ceil(sweep.sweepSeconds * sampleRate)));
   let d = 0;
   let best = -1;
-  for (let i = 0; i < size; i++) {
+  for (let i = 0; i < searchEnd; i++) {
     const v = Math.abs(ir[i] as number);
     if (v > best) {
       best = v;
@@ -299,8 +305,6 @@ export function analyzeSweepCapture(deconvolver: SweepDeconvolver, capture: Floa
   const around = Float64Array.of(Math.abs(ir[(d - 1 + size) % size] as number), best, Math.abs(ir[(d + 1) % size] as number));
   const fractional = around[0] as number > 0 && around[2] as number > 0 ? refinePeak(around, 1).bin - 1 : 0;
 
-  const rate = sweepRate(sweep);
-  const advance = (k: number): number => (Math.log(k) / rate) * sampleRate;
   const linear = cutWindow(ir, d, preSamples, postSamples);
 
   // H on a grid of hSize bins: enough to hold the window and BINS_PER_F1 bins per f1.
