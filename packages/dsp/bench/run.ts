@@ -11,6 +11,7 @@ import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { analyzeCapture, createRealFftPlan } from '../src/index.js';
 import { makeCapture } from './capture.js';
+import { SWEEP_BENCH_CHANNELS, SWEEP_BENCH_RATE } from './sweep-capture.js';
 
 const here = dirname(fileURLToPath(import.meta.url));
 const require = createRequire(import.meta.url);
@@ -136,13 +137,13 @@ for (const [name, mine, theirs] of [
 }
 
 // (c) peak RSS in a fresh process
-function rss(mode: string): { startKiB: number; inputKiB: number; peakKiB: number } | null {
+function rss(mode: string): { startKiB: number; inputKiB: number; peakKiB: number; seconds?: number } | null {
   const run = spawnSync(process.execPath, ['--import', 'tsx', join(here, 'analyze-rss.ts'), mode], { encoding: 'utf8', cwd: here });
   if (run.status !== 0) {
     process.stderr.write(`analyze-rss failed: ${run.stderr}\n`);
     return null;
   }
-  return JSON.parse(run.stdout) as { startKiB: number; inputKiB: number; peakKiB: number };
+  return JSON.parse(run.stdout) as { startKiB: number; inputKiB: number; peakKiB: number; seconds?: number };
 }
 const base = rss('baseline');
 const full = rss('analyze');
@@ -153,4 +154,18 @@ out.push('');
 out.push('| process start (MiB) | after building the 2 × 480000-sample input (MiB) | peak after analyze (MiB) |');
 out.push('|---|---|---|');
 out.push(`| ${mib(base?.startKiB)} | ${mib(base?.inputKiB)} | ${mib(full?.peakKiB)} |`);
+
+// (d) the large case: 10 s, 192 kHz, 8 channels, against a sweep reference (deconvolution,
+// harmonic responses, distortion versus frequency), each run in a fresh process so the peak RSS
+// is this analysis's own. Targets: ≤ 5 s on one core, ≤ 512 MiB.
+const big = [rss('sweep8'), rss('sweep8'), rss('sweep8')].filter((r): r is NonNullable<typeof r> => r !== null);
+const bigSeconds = big.length ? median(big.map((r) => r.seconds ?? NaN)) : null;
+const bigPeak = big.length ? Math.max(...big.map((r) => r.peakKiB)) : undefined;
+const bigInput = big[0]?.inputKiB;
+out.push('');
+out.push(`### (d) ${SWEEP_BENCH_CHANNELS}-channel ${SWEEP_BENCH_RATE / 1000} kHz 10 s capture with a sweep reference (fresh process, median of 3)`);
+out.push('');
+out.push('| analyzeCapture (s) | target (s) | after building input and reference (MiB) | peak (MiB) | target (MiB) |');
+out.push('|---|---|---|---|---|');
+out.push(`| ${bigSeconds === null ? 'n/a' : bigSeconds.toFixed(2)} | 5 | ${mib(bigInput)} | ${mib(bigPeak)} | 512 |`);
 process.stdout.write(`${out.join('\n')}\n`);

@@ -66,7 +66,8 @@ function channelReport(ctx: CaptureContext, channel: number): ChannelAnalysis {
   const measurable = x.length >= 64;
   const d = measurable ? ctx.distortion(channel, undefined) : null;
   const tone = d?.tone ?? null;
-  const steady = d ? d.window : null;
+  // A sweep has no steady part: its tone measures are skipped (see CaptureContext.distortion).
+  const steady = d && Number.isFinite(d.noisePower) ? d.window : null;
   const report: ChannelAnalysis = {
     channel,
     steadySeconds: steady && steady.end > steady.start ? [steady.start / ctx.sampleRate, steady.end / ctx.sampleRate] : null,
@@ -116,6 +117,10 @@ export function analyzeCapture(capture: AudioBuffers, options: AnalyzeCaptureOpt
     engineVersion: ENGINE_VERSION,
     sampleRate: capture.sampleRate,
     frames: capture.channels[0]?.length ?? 0,
-    channels: selected.map((c) => channelReport(ctx, c)),
+    channels: selected.map((c) => {
+      const report = channelReport(ctx, c);
+      ctx.release(c);
+      return report;
+    }),
   };
 }

@@ -94,6 +94,7 @@ export class CaptureContext {
   /** Channels a check without `channels` covers. */
   readonly defaultChannels: readonly number[];
   private readonly plans = new Map<number, RealFftPlan>();
+  private readonly hannCache = new Map<number, Float64Array>();
   private readonly levelCache = new Map<string, SignalLevels>();
   private readonly parsevalCache = new Map<number, { time: number; frequency: number; relativeError: number }>();
   private readonly spectrumCache = new Map<number, LevelSpectrum>();
@@ -175,6 +176,10 @@ export class CaptureContext {
   energy(channel: number): { time: number; frequency: number; relativeError: number } {
     return memo(this.parsevalCache, channel, () => {
       const x = this.signal(channel);
+      const time = this.levels(channel).energy;
+      // A sweep analysis already took the capture's zero-padded rectangular FFT: reuse its energy.
+      const sweep = this.hasReference ? this.sweepAnalysisIfAny(channel) : null;
+      if (sweep) return { time, frequency: sweep.captureEnergy, relativeError: time > 0 ? Math.abs(sweep.captureEnergy - time) / time : Math.abs(sweep.captureEnergy) };
       const plan = this.plan(Math.max(2, nextPowerOfTwo(x.length)));
       const buf = new Float64Array(plan.size);
       buf.set(x);
@@ -182,7 +187,6 @@ export class CaptureContext {
       const im = new Float64Array(plan.bins);
       plan.forward(buf, re, im);
       const frequency = spectralEnergy(re, im, plan.size);
-      const time = this.levels(channel).energy;
       return { time, frequency, relativeError: time > 0 ? Math.abs(frequency - time) / time : Math.abs(frequency) };
     });
   }
@@ -196,7 +200,7 @@ export class CaptureContext {
     return memo(this.spectrumCache, channel, () => {
       const x = this.signal(channel);
       const plan = this.plan(Math.max(2, nextPowerOfTwo(x.length)));
-      const w = createWindow('hann', x.length, 'periodic');
+      const w = memo(this.hannCache, x.length, () => createWindow('hann', x.length, 'periodic'));
       let sumW = 0;
       let sumW2 = 0;
       const buf = new Float64Array(plan.size);
@@ -232,6 +236,15 @@ export class CaptureContext {
   /** The exponential sweep the stimulus channel is, recognised from its samples (null: not a sweep). */
   sweepOf(reference: Float64Array): SweepParameters | null {
     return memo(this.sweepCache, reference, () => detectExponentialSweep(reference, this.sampleRate));
+  }
+
+  /** The sweep analysis when the stimulus is a sweep, else null; never throws for a bad reference. */
+  private sweepAnalysisIfAny(channel: number): SweepAnalysis | null {
+    try {
+      return this.sweepAnalysis(channel);
+    } catch {
+      return null;
+    }
   }
 
   /** The estimator of a channel's transfer function: the caller's, else deconvolution for a sweep, else H1. */
@@ -403,6 +416,7 @@ export class CaptureContext {
     return memo(this.distortionCache, `${channel}:${band.join('-')}`, () => {
       const x = this.signal(channel);
       if (x.length < 64) throw new MaskCheckError(`distortion measures need at least 64 samples (the capture holds ${x.length})`);
+      if (this.hasReference && this.sweepAnalysis(channel)) return this.sweepHasNoTone(channel, band);
       const timing = this.hasReference ? this.timing(channel) : null;
       const stimulusWindow = timing && !timing.ambiguous ? { stimulus: this.reference(channel), latencySamples: Math.round(timing.latencySamples) } : undefined;
       const result = measureToneDistortion(x, this.sampleRate, { bandHz: band, bandPlans: this.bandPlans, ...(stimulusWindow ? { stimulusWindow } : {}) });
@@ -416,6 +430,37 @@ export class CaptureContext {
       this.warn(channel, 'tone', result.warnings);
       return result;
     });
+  }
+
+  /** Tone measures of a sweep capture: none (a sweep has no steady tone); its distortion is reported per band. */
+  private sweepHasNoTone(channel: number, band: readonly [number, number]): ChannelDistortion {
+    const warning = 'the stimulus is an exponential sweep: harmonic distortion is reported per band (distortion versus frequency); THD, THD+N, SNR and the noise floor need a steady tone or silence';
+    this.warn(channel, 'tone', [warning]);
+    return {
+      tone: null,
+      bandHz: [band[0], band[1]],
+      noisePower: Number.NaN,
+      noisePowerA: Number.NaN,
+      noiseFloorDbfs: null,
+      noiseFloorDbfsA: null,
+      warnings: [warning],
+      window: { start: 0, end: this.frames, trimmedLeadIn: false, trimmedTail: false, reason: 'a sweep has no steady part' },
+      dc: this.levels(channel).dcOffset,
+      dynamicRangeDb: null,
+    };
+  }
+
+  /**
+   * Frees a channel's large intermediates (spectra, transfer estimate, sweep analysis) once its
+   * report is written, so an 8-channel capture holds one channel's worth at a time. Later calls
+   * recompute them.
+   */
+  release(channel: number): void {
+    this.spectrumCache.delete(channel);
+    this.transferCache.delete(channel);
+    this.sweepAnalysisCache.delete(channel);
+    this.coherenceCache.delete(channel);
+    for (const key of [...this.phaseCache.keys()]) if (key.startsWith(`${channel}:`)) this.phaseCache.delete(key);
   }
 
   /** SMPTE/DIN intermodulation of a two-tone capture (IEC 60268-3). */

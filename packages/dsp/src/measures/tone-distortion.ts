@@ -87,12 +87,26 @@ function strongestPeak(spectrum: SegmentSpectrum, lo: number, hi: number): { fre
   return { frequencyHz: peak.bin * spectrum.binHz, amplitude: (2 * peak.magnitude) / spectrum.windowSum };
 }
 
-/** Start frequency: interpolated Hann peak of a centred segment, refined by a sine fit on that segment. */
-function startFrequency(x: Float64Array, sampleRate: number, search: readonly [number, number]): number {
+/**
+ * Start frequency: interpolated Hann peak of a centred segment, refined by a sine fit on that
+ * segment; NaN when the segment holds no tone carrying at least `minShare` of its AC power, so a
+ * sweep or noise costs one short fit instead of a full-record harmonic fit.
+ */
+function startFrequency(x: Float64Array, sampleRate: number, search: readonly [number, number], minShare: number): number {
   const spectrum = segmentSpectrum(x, sampleRate);
   const guess = strongestPeak(spectrum, search[0], search[1])?.frequencyHz ?? NaN;
   if (!(guess > 0 && guess < sampleRate / 2)) return NaN;
-  return spectrum.segment.length === x.length ? guess : fitSineFourParameter(spectrum.segment, sampleRate, guess).frequencyHz;
+  if (spectrum.segment.length === x.length) return guess;
+  const fit = fitSineFourParameter(spectrum.segment, sampleRate, guess);
+  let mean = 0;
+  let square = 0;
+  for (const v of spectrum.segment) {
+    mean += v;
+    square += v * v;
+  }
+  mean /= spectrum.segment.length;
+  const ac = square / spectrum.segment.length - mean * mean;
+  return fit.amplitude ** 2 / 2 >= minShare * ac ? fit.frequencyHz : NaN;
 }
 
 /**
@@ -192,7 +206,8 @@ export function measureToneDistortion(x: Float64Array, sampleRate: number, optio
   if (acPower > 1e-30 * Math.max(1, mean * mean)) {
     const search = options.searchHz ?? [10, sampleRate / 2];
     try {
-      const f0 = options.initialFrequencyHz ?? startFrequency(seg, sampleRate, search);
+      // Half the final tonality share: the segment pre-check only skips records that are clearly not a tone.
+      const f0 = options.initialFrequencyHz ?? startFrequency(seg, sampleRate, search, minTonality / 2);
       if (f0 > 0 && f0 < sampleRate / 2) fit = fitTone(seg, sampleRate, f0, harmonics);
       if (fit) residual = subtractHarmonics(Float64Array.from(seg), sampleRate, fit);
       if (fit && residual && inBandInclusive(fit.fundamentalHz, band)) {

@@ -1,4 +1,5 @@
 import { createRealFftPlan, type RealFftPlan } from '../fft/real-fft.js';
+import { spectralEnergy } from '../measures/levels.js';
 import { refinePeak } from '../spectrum/peak.js';
 import { exponentialSweep } from '../stimulus/sweep.js';
 import { nextPowerOfTwo, precondition, requireFinite, requirePositive } from '../util/preconditions.js';
@@ -77,6 +78,8 @@ export interface SweepAnalysis {
   /** The windowed linear impulse response; `start` is the lag of samples[0]. */
   linearIr: { start: number; samples: Float64Array };
   harmonics: HarmonicResponse[];
+  /** (1/N)·Σ|Y_k|² of the capture's zero-padded rectangular FFT (equal to Σy² by Parseval). */
+  captureEnergy: number;
   /** Length of the deconvolution FFT. */
   fftSize: number;
 }
@@ -275,6 +278,9 @@ export function analyzeSweepCapture(deconvolver: SweepDeconvolver, capture: Floa
   const yr = new Float64Array(plan.bins);
   const yi = new Float64Array(plan.bins);
   plan.forward(buffer, yr, yi);
+  // The capture's zero-padded rectangular spectrum is at hand: its energy is the frequency side
+  // of the Parseval check (Σ|Y_k|²/N = Σy²), so the report needs no FFT of its own for it.
+  const captureEnergy = spectralEnergy(yr, yi, size);
   for (let k = 0; k < plan.bins; k++) {
     const ar = yr[k] as number;
     const ai = yi[k] as number;
@@ -374,6 +380,7 @@ export function analyzeSweepCapture(deconvolver: SweepDeconvolver, capture: Floa
     linearIr: { start: d - preSamples, samples: linear },
     harmonics,
     fftSize: size,
+    captureEnergy,
   };
 }
 
