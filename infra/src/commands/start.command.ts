@@ -6,6 +6,7 @@ import { startS3Fake } from '../fakes/s3-fake.js';
 import { startSmtpFake } from '../fakes/smtp-fake.js';
 import { seedDemoBuilds } from '../demo-builds.js';
 import { seedDemoScenario } from '../demo.js';
+import { reevaluateStaleDemoVerdicts } from '../demo-reevaluate.js';
 import { dataDir, repoRoot } from '../paths.js';
 import { assertPortFree, waitForPort } from '../ports.js';
 import { loadLocalSecrets } from '../secrets.js';
@@ -79,6 +80,11 @@ export async function startCommand(): Promise<number> {
   if (demoToken && !shuttingDown) {
     await seedDemoBuilds(`http://127.0.0.1:${settings.EARMARK_API_PORT}`, demoToken, log).catch((error: unknown) =>
       log(`could not send the demo builds: ${error instanceof Error ? error.message : String(error)}`),
+    );
+  }
+  if (!shuttingDown) {
+    await reevaluateStaleDemoVerdicts(url, `http://127.0.0.1:${settings.EARMARK_API_PORT}`, log).catch((error: unknown) =>
+      log(`could not re-evaluate the demo history: ${error instanceof Error ? error.message : String(error)}`),
     );
   }
   if (!shuttingDown) printWelcome(settings.EARMARK_API_PORT, cluster, demoToken, smtp.inboxUrl, s3.endpoint);
