@@ -1,5 +1,6 @@
 import type { AnalysisReport, BandLevel, ChannelAnalysis, TransferAnalysis } from '@earmark/contracts';
-import { CaptureContext } from '../context/capture-context.js';
+import { CaptureContext, type ChannelTransfer } from '../context/capture-context.js';
+import { MaskCheckError } from '../masks/mask-check-error.js';
 import { ENGINE_VERSION } from '../engine-version.js';
 import { GROUP_DELAY_GRID_FRACTION, groupDelayVariation } from '../masks/phase-fit.js';
 import { validateMaskInput } from '../masks/mask-input.js';
@@ -38,7 +39,28 @@ function thirdOctaveBands(ctx: CaptureContext, channel: number): BandLevel[] {
 
 function transferReport(ctx: CaptureContext, channel: number): TransferAnalysis {
   const timing = ctx.timing(channel);
-  const t = ctx.transfer(channel);
+  let t: ChannelTransfer;
+  try {
+    t = ctx.transfer(channel);
+  } catch (error) {
+    // No transfer estimate (an ambiguous latency, a capture that misses the stimulus): the
+    // report keeps the timing it has and says why the rest is missing.
+    if (!(error instanceof MaskCheckError)) throw error;
+    ctx.noteTransferUnavailable(channel, error.message);
+    return {
+      method: ctx.transferMethod(channel),
+      latencySamples: timing.latencySamples,
+      latencyMs: (1000 * timing.latencySamples) / ctx.sampleRate,
+      polarity: timing.polarity,
+      coherenceMin: null,
+      distortionVsFrequency: [],
+      driftPpm: null,
+      bandHz: null,
+      groupDelayMs: { mean: null, maxDeviation: null },
+      linearPhaseDeviationDeg: null,
+      magnitudeDb: [],
+    };
+  }
   const band = ctx.input.transferBandHz;
   const fit = ctx.phaseFit(channel, band);
   const gd = fit ? groupDelayVariation(fit, GROUP_DELAY_GRID_FRACTION) : null;

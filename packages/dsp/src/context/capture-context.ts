@@ -72,6 +72,15 @@ const MAX_MISSING_FRACTION = 0.01;
 /** What a warning concerns, so a check shows only the warnings of the measures it used. */
 export type WarningTopic = 'stimulus' | 'timing' | 'transfer' | 'steady' | 'tone' | 'integrity' | 'spectrum';
 
+/** First sample above −40 dB of the record's peak (the start of its signal, idle noise aside). */
+function onset(x: Float64Array): number {
+  let peak = 0;
+  for (const v of x) peak = Math.max(peak, Math.abs(v));
+  const threshold = peak * 0.01;
+  for (let i = 0; i < x.length; i++) if (Math.abs(x[i] as number) > threshold) return i;
+  return 0;
+}
+
 function memo<K, V>(cache: Map<K, V>, key: K, make: () => V): V {
   const hit = cache.get(key);
   if (hit !== undefined) return hit;
@@ -280,14 +289,19 @@ export class CaptureContext {
       const x = this.signal(channel);
       const sweep = this.sweepAnalysis(channel);
       let timing: ChannelTiming;
-      if (sweep) {
+      const onsetGap = sweep ? Math.abs(onset(x) - (sweep.latencySamples + onset(reference))) : 0;
+      if (sweep && onsetGap <= Math.max(0.01 * this.sampleRate, 0.02 * reference.length)) {
         const ir = sweep.linearIr;
         let peak = 0;
         for (let i = 1; i < ir.samples.length; i++) if (Math.abs(ir.samples[i] as number) > Math.abs(ir.samples[peak] as number)) peak = i;
         timing = { latencySamples: sweep.latencySeconds * this.sampleRate, polarity: (ir.samples[peak] as number) < 0 ? 'inverted' : 'normal', ambiguous: false, warnings: [] };
       } else {
+        // Not a sweep, or its impulse-response peak disagrees with where the capture's signal
+        // begins (a capture that lost most of the sweep): correlation decides.
         const estimate = measureLatency(reference, x);
-        timing = { latencySamples: estimate.samples, polarity: estimate.polarity, ambiguous: estimate.ambiguous, warnings: [...estimate.warnings] };
+        const warnings = [...estimate.warnings];
+        if (sweep) warnings.push(`the sweep's impulse response puts the latency at ${sweep.latencySamples} samples, but the capture's signal begins ${Math.round(onsetGap)} samples away from there; the latency was taken from the correlation (${estimate.samples.toFixed(2)} samples)`);
+        timing = { latencySamples: estimate.samples, polarity: estimate.polarity, ambiguous: estimate.ambiguous, warnings };
       }
       this.warn(channel, 'timing', timing.warnings);
       return timing;
@@ -430,6 +444,11 @@ export class CaptureContext {
       this.warn(channel, 'tone', result.warnings);
       return result;
     });
+  }
+
+  /** Records why a channel has no transfer estimate (the report shows it among the warnings). */
+  noteTransferUnavailable(channel: number, why: string): void {
+    this.warn(channel, 'transfer', [`no transfer function: ${why}`]);
   }
 
   /** Tone measures of a sweep capture: none (a sweep has no steady tone); its distortion is reported per band. */

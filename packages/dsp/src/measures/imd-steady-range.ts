@@ -65,7 +65,9 @@ export function steadyToneRange(x: Float64Array, sampleRate: number, options: St
   const spare = bestLength >= 5 ? 1 : 0;
   const runEnd = bestStart + bestLength;
   const start = bestStart === 0 ? 0 : (bestStart + spare) * block;
-  const end = runEnd === count ? x.length : (runEnd - spare) * block;
+  // The samples after the last whole block were never judged: they may hold a silent run-out, so
+  // the range ends at the last whole steady block.
+  const end = runEnd === count ? count * block : (runEnd - spare) * block;
   precondition(end > start, fn, 'internal: empty steady range');
   return [start, end];
 }

@@ -74,8 +74,10 @@ export function measureLatency(stimulus: Float64Array, capture: Float64Array, op
   if (Math.abs(peak.coefficient) < WEAK_COEFFICIENT) {
     warnings.push(`The capture hardly resembles the stimulus (correlation ${peak.coefficient.toFixed(3)}): the latency may be wrong.`);
   }
-  if (peak.lag < 0) warnings.push(`The capture leads the stimulus by ${(-peak.lag).toFixed(2)} samples: the recording started late or the wrong stimulus was given.`);
-  if (peak.polarity === 'inverted') warnings.push('The capture is inverted in polarity relative to the stimulus.');
+  // Half a sample of lead is within an aligned capture's interpolation error.
+  if (peak.lag < -0.5) warnings.push(`The capture leads the stimulus by ${(-peak.lag).toFixed(2)} samples: the recording started late or the wrong stimulus was given.`);
+  // With a periodic stimulus the sign of the chosen peak says nothing about polarity.
+  if (peak.polarity === 'inverted' && !ambiguous) warnings.push('The capture is inverted in polarity relative to the stimulus.');
   return {
     samples: peak.lag,
     polarity: peak.polarity,

@@ -292,13 +292,13 @@ export function analyzeSweepCapture(deconvolver: SweepDeconvolver, capture: Floa
   const ir = buffer;
   plan.inverse(yr, yi, ir);
 
-  // Latency: the largest |h| at a causal lag (0 … capture length). Everything the nonlinearity
-  // makes — harmonic responses at −T·ln k/ln(f2/f1) and, under clipping, aliased products spread
-  // over up to the sweep's length — lands at negative times (the buffer's end) and can outgrow
-  // the linear peak there, so it is not searched.
+  // Latency: the largest |h| at a causal lag. What the nonlinearity makes — the harmonic
+  // responses at −T·ln k/ln(f2/f1), k ≤ maxOrder, and under clipping the higher orders' pile-up
+  // just behind them — lands at negative times (the buffer's end) and can outgrow the linear
+  // peak, so the last 1.2·advance(maxOrder) of the buffer is not searched.
   const rate = sweepRate(sweep);
   const advance = (k: number): number => (Math.log(k) / rate) * sampleRate;
-  const searchEnd = Math.max(1, Math.min(capture.length, size - Math.ceil(sweep.sweepSeconds * sampleRate)));
+  const searchEnd = Math.max(1, Math.min(capture.length, size - Math.ceil(1.2 * advance(Math.max(2, deconvolver.maxOrder)))));
   let d = 0;
   let best = -1;
   for (let i = 0; i < searchEnd; i++) {
