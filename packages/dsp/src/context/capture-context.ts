@@ -104,6 +104,7 @@ export class CaptureContext {
   readonly defaultChannels: readonly number[];
   private readonly plans = new Map<number, RealFftPlan>();
   private readonly hannCache = new Map<number, Float64Array>();
+  private readonly scratchCache = new Map<number, { buf: Float64Array; re: Float64Array; im: Float64Array }>();
   private readonly levelCache = new Map<string, SignalLevels>();
   private readonly parsevalCache = new Map<number, { time: number; frequency: number; relativeError: number }>();
   private readonly spectrumCache = new Map<number, LevelSpectrum>();
@@ -172,6 +173,11 @@ export class CaptureContext {
     return ref.channels[Math.min(channel, ref.channels.length - 1)] as Float64Array;
   }
 
+  /** Reusable FFT input and output buffers of one size, for transforms whose results are not kept. */
+  private scratch(size: number): { buf: Float64Array; re: Float64Array; im: Float64Array } {
+    return memo(this.scratchCache, size, () => ({ buf: new Float64Array(size), re: new Float64Array(size / 2 + 1), im: new Float64Array(size / 2 + 1) }));
+  }
+
   plan(size: number): RealFftPlan {
     return memo(this.plans, size, () => createRealFftPlan(size));
   }
@@ -190,10 +196,9 @@ export class CaptureContext {
       const sweep = this.hasReference ? this.sweepAnalysisIfAny(channel) : null;
       if (sweep) return { time, frequency: sweep.captureEnergy, relativeError: time > 0 ? Math.abs(sweep.captureEnergy - time) / time : Math.abs(sweep.captureEnergy) };
       const plan = this.plan(Math.max(2, nextPowerOfTwo(x.length)));
-      const buf = new Float64Array(plan.size);
+      const { buf, re, im } = this.scratch(plan.size);
+      buf.fill(0, x.length);
       buf.set(x);
-      const re = new Float64Array(plan.bins);
-      const im = new Float64Array(plan.bins);
       plan.forward(buf, re, im);
       const frequency = spectralEnergy(re, im, plan.size);
       return { time, frequency, relativeError: time > 0 ? Math.abs(frequency - time) / time : Math.abs(frequency) };
@@ -212,15 +217,14 @@ export class CaptureContext {
       const w = memo(this.hannCache, x.length, () => createWindow('hann', x.length, 'periodic'));
       let sumW = 0;
       let sumW2 = 0;
-      const buf = new Float64Array(plan.size);
+      const { buf, re, im } = this.scratch(plan.size);
+      buf.fill(0, x.length);
       for (let i = 0; i < x.length; i++) {
         const wi = w[i] as number;
         sumW += wi;
         sumW2 += wi * wi;
         buf[i] = (x[i] as number) * wi;
       }
-      const re = new Float64Array(plan.bins);
-      const im = new Float64Array(plan.bins);
       plan.forward(buf, re, im);
       const last = plan.bins - 1;
       const power = new Float64Array(plan.bins);

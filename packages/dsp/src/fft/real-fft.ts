@@ -38,6 +38,25 @@ export interface RealFftPlan {
  */
 export function createRealFftPlan(size: number): RealFftPlan {
   precondition(isPowerOfTwo(size) && size >= 2, 'createRealFftPlan', `size must be a power of two ≥ 2 (got ${size})`);
+  // Plans are shared: building one costs as much as several transforms (twiddle tables), and a
+  // plan's scratch is only used inside one synchronous call, so callers cannot disturb each other.
+  const cached = planCache.get(size);
+  if (cached) {
+    planCache.delete(size);
+    planCache.set(size, cached);
+    return cached;
+  }
+  const plan = buildRealFftPlan(size);
+  planCache.set(size, plan);
+  if (planCache.size > PLAN_CACHE_SIZES) planCache.delete(planCache.keys().next().value as number);
+  return plan;
+}
+
+/** Most plan sizes kept (least recently used dropped): a 2²¹ plan holds about 60 MiB of tables and scratch. */
+const PLAN_CACHE_SIZES = 6;
+const planCache = new Map<number, RealFftPlan>();
+
+function buildRealFftPlan(size: number): RealFftPlan {
   const half = size / 2;
   const bins = half + 1;
   // NOTE: hot path: the messages are only built when a check fails.

@@ -229,6 +229,17 @@ function taperedWindow(length: number, rise: number, fall: number): Float64Array
 }
 
 /** Samples lag … lag + length − 1 of the circular record `ir`, times a taper. */
+const scratches = new WeakMap<SweepDeconvolver, { buffer: Float64Array; yr: Float64Array; yi: Float64Array }>();
+
+function scratchOf(d: SweepDeconvolver): { buffer: Float64Array; yr: Float64Array; yi: Float64Array } {
+  let s = scratches.get(d);
+  if (!s) {
+    s = { buffer: new Float64Array(d.fftSize), yr: new Float64Array(d.plan.bins), yi: new Float64Array(d.plan.bins) };
+    scratches.set(d, s);
+  }
+  return s;
+}
+
 function cutWindow(ir: Float64Array, lag: number, before: number, after: number): Float64Array {
   const n = ir.length;
   const length = before + after + 1;
@@ -273,10 +284,12 @@ export function analyzeSweepCapture(deconvolver: SweepDeconvolver, capture: Floa
   precondition(capture.length <= size, fn, `capture holds ${capture.length} samples, more than the deconvolver's FFT (${size}); prepare it with captureLength ≥ ${capture.length}`);
   requireFinite(capture, fn, 'capture');
 
-  const buffer = new Float64Array(size);
+  // The deconvolver's own scratch, reused channel after channel (a 2²¹-point buffer costs more to
+  // allocate and first touch than to transform); nothing returned refers to it.
+  const scratch = scratchOf(deconvolver);
+  const { buffer, yr, yi } = scratch;
+  buffer.fill(0);
   buffer.set(capture);
-  const yr = new Float64Array(plan.bins);
-  const yi = new Float64Array(plan.bins);
   plan.forward(buffer, yr, yi);
   // The capture's zero-padded rectangular spectrum is at hand: its energy is the frequency side
   // of the Parseval check (Σ|Y_k|²/N = Σy²), so the report needs no FFT of its own for it.
