@@ -1,4 +1,5 @@
 import { solveLinearSystem } from '../util/linear-solve.js';
+import { cosineSum, project } from './sine-fit.js';
 import { precondition, requirePositive } from '../util/preconditions.js';
 
 // NOTE: as in sine-fit.ts, the time index is centred, t = n − (N−1)/2: over a grid symmetric
@@ -26,36 +27,6 @@ export interface SinusoidFit {
   components: SinusoidComponent[];
 }
 
-/** Σ_t cos(θ·t) over the centred grid (the Dirichlet kernel), with its limit where sin(θ/2) = 0. */
-function cosineSum(theta: number, n: number): number {
-  const s = Math.sin(theta / 2);
-  if (Math.abs(s) < 1e-13) return (n * Math.cos((n * theta) / 2)) / Math.cos(theta / 2);
-  return Math.sin((n * theta) / 2) / s;
-}
-
-/** Σ x·cos(ωt) and Σ x·sin(ωt) in one pass, the phasor rotated by e^{iω} and re-seeded every RESEED samples. */
-function project(x: Float64Array, omega: number): [number, number] {
-  const n = x.length;
-  const t0 = -(n - 1) / 2;
-  const cw = Math.cos(omega);
-  const sw = Math.sin(omega);
-  let sc = 0;
-  let ss = 0;
-  for (let start = 0; start < n; start += RESEED) {
-    const end = Math.min(n, start + RESEED);
-    let c = Math.cos(omega * (t0 + start));
-    let s = Math.sin(omega * (t0 + start));
-    for (let i = start; i < end; i++) {
-      const v = x[i] as number;
-      sc += v * c;
-      ss += v * s;
-      const nc = c * cw - s * sw;
-      s = s * cw + c * sw;
-      c = nc;
-    }
-  }
-  return [sc, ss];
-}
 
 /**
  * Joint linear least-squares fit of DC and sinusoids at the given frequencies (the

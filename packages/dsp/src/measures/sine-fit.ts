@@ -38,7 +38,7 @@ export interface HarmonicFit {
 }
 
 /** Σ_t cos(θ·t) over t = −(N−1)/2 … (N−1)/2 (the Dirichlet kernel), with its limit at sin(θ/2) = 0. */
-function cosineSum(theta: number, n: number): number {
+export function cosineSum(theta: number, n: number): number {
   const s = Math.sin(theta / 2);
   if (Math.abs(s) < 1e-13) return (n * Math.cos((n * theta) / 2)) / Math.cos(theta / 2);
   return Math.sin((n * theta) / 2) / s;
@@ -48,7 +48,7 @@ function cosineSum(theta: number, n: number): number {
  * Σ x·cos(ωt) and Σ x·sin(ωt) in one tight pass; the phasor is rotated by e^{iω} and re-seeded
  * exactly every RESEED samples.
  */
-function project(x: Float64Array, omega: number): [number, number] {
+export function project(x: Float64Array, omega: number): [number, number] {
   const n = x.length;
   const t0 = -(n - 1) / 2;
   const cw = Math.cos(omega);
