@@ -196,6 +196,35 @@ describe('capture page', () => {
     expect(api.requests.every((r) => r.authorization === 'Bearer access-1')).toBe(true);
   });
 
+  it('says what a re-evaluation by a newer engine changed, and shows a check’s warnings beside it', async () => {
+    seedSession();
+    const d = detail({ outcome: 'pass', reason: null });
+    const verdict = d.capture.verdict!;
+    verdict.engineVersion = '1.0.0';
+    verdict.previousOutcome = 'fail';
+    verdict.previousEngineVersion = '0.4.0';
+    verdict.previousMaskRevision = 1;
+    verdict.changes = [{ checkId: 'thdn', unit: 'dB', before: { pass: false, measured: -27.06 }, after: { pass: true, measured: -146.12 } }];
+    verdict.checks = [
+      { id: 'thdn', kind: 'distortion', label: null, pass: true, measured: -146.12, limit: -100, margin: 46.12, unit: 'dB', worstHz: null, warnings: ['distortion and noise were measured on the steady part 0.050…1.950 s; a lead-in of 0.050 s and a tail of 0.050 s were left out'] },
+      { id: 'latency', kind: 'timing', label: null, pass: true, measured: 3.521, limit: 10, margin: 6.479, unit: 'ms', worstHz: null },
+    ];
+    mockApi(commonHandlers([() => json(d)]));
+    renderApp(pagePath);
+
+    const panel = await screen.findByRole('region', { name: 'What the re-evaluation changed' });
+    expect(panel.textContent).toContain('Re-evaluated (engine 0.4.0 → 1.0.0): the verdict was fail and is pass.');
+    const row = within(panel).getAllByRole('row')[1] as HTMLElement;
+    expect(row.getAttribute('data-change-id')).toBe('thdn');
+    expect(within(row).getAllByRole('cell').map((c) => c.textContent)).toEqual(['thdn', 'fail', `${MINUS}27.06 dB`, 'pass', `${MINUS}146.12 dB`]);
+
+    const table = screen.getByRole('table', { name: 'Checks' });
+    const warnings = within(table).getByRole('list', { name: 'Warnings for thdn' });
+    expect(warnings.textContent).toContain('a lead-in of 0.050 s and a tail of 0.050 s were left out');
+    // Only the check whose measures raised a warning carries a list.
+    expect(within(table).queryByRole('list', { name: 'Warnings for latency' })).toBeNull();
+  });
+
   it('zooms the spectrum to a failing check’s worst frequency from the checks table', async () => {
     seedSession();
     mockApi(commonHandlers([() => json(detail())]));
