@@ -206,6 +206,12 @@ describe('re-evaluation under an approved revision', () => {
       return c.verdict && c.verdict.engineVersion === ENGINE_VERSION ? c : null;
     });
     expect(other.verdict).toMatchObject({ previousEngineVersion: '0.4.0', changes: [] });
+    for (const h of HISTORY) {
+      await until(`re-evaluation of ${h.sha}`, async () => {
+        const c = (await call('GET', `/api/v1/captures/${captures[h.sha]!}`)).body as CaptureDto;
+        return c.verdict && c.verdict.engineVersion === ENGINE_VERSION ? c : null;
+      });
+    }
     // Judged by this engine now: nothing more to queue.
     expect((await call('POST', `${base}/3/reevaluate`, { token: qaToken, body: { scope: 'last-n', builds: 4 } })).body).toMatchObject({ queued: 0 });
   });

@@ -3,6 +3,7 @@ import { StimulusSpec, type CaptureDto, type MaskCheckInput } from '@earmark/con
 import { encodeWav, generateStimulus } from '@earmark/dsp';
 import { applyBiquad, applyFir, clip, delay, lowPassBiquadCoefficients, peakingEqCoefficients, scaleDb, windowedSincLowPass } from '@earmark/dsp/testing';
 import { XMLParser } from 'fast-xml-parser';
+import { fileURLToPath } from 'node:url';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startStack, type Stack } from '../support/stack.js';
 import type { WorkerProcess } from '../support/worker-process.js';
@@ -225,7 +226,8 @@ describe('a capture whose analysis keeps dying', () => {
 });
 
 describe('earmark submit against the real stack', () => {
-  const cli = new URL('../../apps/cli/bin/earmark.mjs', import.meta.url).pathname;
+  // fileURLToPath, not .pathname: a clone in a folder with a space would give %20.
+  const cli = fileURLToPath(new URL('../../apps/cli/bin/earmark.mjs', import.meta.url));
 
   async function runSubmit(sha: string, file: string, extra: string[] = []) {
     const { spawn } = await import('node:child_process');
