@@ -1,7 +1,7 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { AnalysisSettings, CapturePlot, MaskCheck, StimulusSpec, type AudioKind, type CaptureDetail, type MagnitudeEnvelopeCheck, type PlotQuery } from '@earmark/contracts';
 import { Capture, Verdict, type MaskRevision, type ObjectStore, type Project } from '@earmark/db';
-import { ENGINE_VERSION, captureCurves, encodeWav, listeningResidual, maskPlotData, stimulusAsPlayed, type DecodedAudio } from '@earmark/dsp';
+import { ENGINE_VERSION, MaskCheckError, captureCurves, encodeWav, listeningResidual, maskPlotData, stimulusAsPlayed, type DecodedAudio } from '@earmark/dsp';
 import { NotFoundError } from '../errors.js';
 import { CaptureAudioLoader } from './capture-audio.js';
 import { buildSummary } from './builds-query.service.js';
@@ -108,7 +108,20 @@ export class CaptureViewService {
     const transferMethod = settings.transferMethod ?? (spec.kind === 'sweep' ? 'deconvolution' : 'h1');
     const input = { capture: audio, ...(reference ? { reference } : {}), transferMethod } as const;
     // One capture context: the spectrum, phase and group delay drawn are what the verdict used.
-    const curves = captureCurves(input, check, { columns: q.columns, channel });
+    // When no transfer function can be estimated (the capture misses part of the stimulus), the
+    // verdict says why; the page still draws the capture's own level spectrum.
+    let drawn: MagnitudeEnvelopeCheck | null = envelope;
+    let plotted = check;
+    let curves: ReturnType<typeof captureCurves>;
+    try {
+      curves = captureCurves(input, check, { columns: q.columns, channel });
+    } catch (error) {
+      if (!(error instanceof MaskCheckError)) throw error;
+      drawn = null;
+      const level = MaskCheck.parse({ id: 'spectrum', kind: 'magnitude-envelope', measure: 'level', upper: [{ hz: 20, db: 400 }, { hz: Math.min(20000, nyquist * 0.98), db: 400 }] }) as MagnitudeEnvelopeCheck;
+      plotted = level;
+      curves = captureCurves(input, level, { columns: q.columns, channel });
+    }
     const data = curves.spectrum;
     const series = (d: typeof data) => ({ hz: d.hz, min: d.measuredMin, max: d.measuredMax });
 
@@ -116,19 +129,23 @@ export class CaptureViewService {
     const passing = q.overlay === 'last-passing' ? await this.lastPassing(em, capture) : null;
     if (passing) {
       const other = await this.load(em, project, passing.captureId);
-      const otherData = maskPlotData({ ...input, capture: await this.audioOf(other) }, check, { columns: q.columns, channel: Math.min(channel, other.channelCount - 1) });
-      overlay = { captureId: other.id, buildSha: passing.buildSha, spectrum: series(otherData) };
+      // The last pass is drawn the same way; when it cannot be, the page simply has no overlay.
+      const otherData = await this.audioOf(other).then((audio) => maskPlotData({ ...input, capture: audio }, plotted, { columns: q.columns, channel: Math.min(channel, other.channelCount - 1) })).catch((error: unknown) => {
+        if (error instanceof MaskCheckError) return null;
+        throw error;
+      });
+      if (otherData) overlay = { captureId: other.id, buildSha: passing.buildSha, spectrum: series(otherData) };
     }
 
     let worst: CapturePlot['worst'] = null;
     for (const r of data.failingRegions) if (!worst || r.worstMarginDb < worst.margin) worst = { hz: r.worstHz, db: r.worstDb, margin: r.worstMarginDb };
     return {
       channel,
-      checkId: envelope ? envelope.id : null,
+      checkId: drawn ? drawn.id : null,
       unit: data.unit,
       spectrum: series(data),
-      upper: envelope ? data.upper : null,
-      lower: envelope ? data.lower : null,
+      upper: drawn ? data.upper : null,
+      lower: drawn ? data.lower : null,
       failingRegions: data.failingRegions.map((r) => ({ fromHz: r.fromHz, toHz: r.toHz, worstHz: r.worstHz, worstMargin: r.worstMarginDb })),
       worst,
       overlay,

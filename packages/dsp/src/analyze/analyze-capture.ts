@@ -62,7 +62,7 @@ function transferReport(ctx: CaptureContext, channel: number): TransferAnalysis 
     };
   }
   const band = ctx.input.transferBandHz;
-  const fit = ctx.phaseFit(channel, band);
+  const fit = timing.ambiguous ? null : ctx.phaseFit(channel, band);
   const gd = fit ? groupDelayVariation(fit, GROUP_DELAY_GRID_FRACTION) : null;
   return {
     method: t.tf.method,

@@ -370,8 +370,10 @@ export class CaptureContext {
     return memo(this.transferCache, channel, () => {
       const reference = this.reference(channel);
       const capture = this.signal(channel);
+      // An ambiguous latency (a periodic stimulus) still gives |H|: a whole number of periods of
+      // misalignment does not change a periodic signal's spectrum. Phase needs the latency, so
+      // phaseFit refuses it.
       const timing = this.timing(channel);
-      if (timing.ambiguous) throw new MaskCheckError(`the capture cannot be aligned with the stimulus: ${timing.warnings.join('; ') || 'its latency is ambiguous'}`);
       const coverage = this.coverage(channel);
       if (!coverage.covered) throw new MaskCheckError(`the capture does not hold the whole stimulus after its latency, so H would be wrong where the stimulus is missing: ${coverage.warning}`);
       const sweep = this.sweepAnalysis(channel);
@@ -413,6 +415,8 @@ export class CaptureContext {
 
   /** |H|-weighted linear-phase fit over a band (default: |H| within 20 dB of its maximum); null with < 3 bins. */
   phaseFit(channel: number, bandHz: readonly [number, number] | undefined): PhaseFit | null {
+    const timing = this.timing(channel);
+    if (timing.ambiguous) throw new MaskCheckError(`phase and group delay need an unambiguous latency: ${timing.warnings.join('; ') || 'the stimulus repeats, so several delays fit equally well'}`);
     const key = `${channel}:${bandHz ? bandHz.join('-') : 'auto'}`;
     const hit = this.phaseCache.get(key);
     if (hit !== undefined) return hit;

@@ -1,5 +1,6 @@
 import type { MagnitudeEnvelopeCheck } from '@earmark/contracts';
 import { CaptureContext } from '../context/capture-context.js';
+import { MaskCheckError } from '../masks/mask-check-error.js';
 import { maskPlotDataIn, type MaskPlotData } from '../masks/mask-plot-data.js';
 import { validateMaskInput, type EvaluateMaskInput } from '../masks/mask-input.js';
 import { groupDelayFromPhase } from '../transfer/group-delay.js';
@@ -39,7 +40,16 @@ export interface CaptureCurves {
  * @see Oppenheim & Schafer §5.1 (τ = −dφ/dω)
  */
 function phaseAndDelay(ctx: CaptureContext, channel: number, columns: number): { phase: PhaseCurve | null; groupDelay: GroupDelayCurve | null } {
-  const { tf, latencySamples } = ctx.transfer(channel);
+  // Without a unique latency (a periodic stimulus) or a transfer estimate there is no phase to draw.
+  if (ctx.timing(channel).ambiguous) return { phase: null, groupDelay: null };
+  let transfer: ReturnType<CaptureContext['transfer']>;
+  try {
+    transfer = ctx.transfer(channel);
+  } catch (error) {
+    if (error instanceof MaskCheckError) return { phase: null, groupDelay: null };
+    throw error;
+  }
+  const { tf, latencySamples } = transfer;
   const hz: number[] = [];
   const raw: number[] = [];
   for (let k = 1; k < tf.re.length; k++) {
