@@ -125,6 +125,23 @@ describe('dashboard API', () => {
     expect(again.body).toEqual(res.body);
   });
 
+  it('draws the level spectrum when the capture misses most of the stimulus (the verdict says why)', async () => {
+    // Half the stimulus arrives after the capture ended: no transfer function can be estimated.
+    const late = new Float64Array(stimulus.length);
+    late.set(stimulus.subarray(0, stimulus.length / 2), stimulus.length / 2);
+    const lost = await submit('3333ccc', 'late', late);
+    expect(lost.verdict!.outcome).toBe('error');
+    expect(lost.verdict!.reason).toMatch(/does not hold the whole stimulus/);
+    const res = await call<unknown>(`/api/projects/alpha-dsp/captures/${lost.id}/plot?columns=256`);
+    expect(res.status, JSON.stringify(res.body)).toBe(200);
+    const plot = CapturePlot.parse(res.body);
+    expect(plot.unit).toBe('dBFS');
+    expect(plot.checkId).toBeNull();
+    expect(plot.upper).toBeNull();
+    expect(plot.phase).toBeNull();
+    expect(plot.spectrum.hz.length).toBeGreaterThan(100);
+  });
+
   it('serves capture, stimulus and residual audio; the residual of a pure delay is near silence', async () => {
     const get = async (kind: string) => {
       const res = await fetch(`${stack.url}/api/projects/alpha-dsp/captures/${passing.id}/audio/${kind}`, { headers: { authorization: `Bearer ${session}` } });
