@@ -46,7 +46,28 @@ export async function createQueues(boss: PgBoss, settings: QueueSettings = {}): 
     },
   ];
   for (const queue of queues) {
-    if (!(await boss.getQueue(queue.name))) await boss.createQueue(queue.name, queue);
+    if (!(await boss.getQueue(queue.name))) await createQueueOnce(boss, queue);
     else if (settings.updateExisting) await boss.updateQueue(queue.name, queue);
+  }
+}
+
+/**
+ * Creates a queue that another process may be creating at the same moment (the API and the
+ * worker start together on a fresh database): pg-boss's create_queue can then deadlock or find
+ * the queue's table already made. Such a failure is retried after re-reading whether the queue
+ * exists by now; anything else is thrown.
+ */
+async function createQueueOnce(boss: PgBoss, queue: PgBoss.Queue): Promise<void> {
+  for (let attempt = 1; ; attempt++) {
+    try {
+      await boss.createQueue(queue.name, queue);
+      return;
+    } catch (error) {
+      // 40P01 deadlock, 23505 unique violation, 42P07 table exists: the other process is on it.
+      const code = (error as { code?: string }).code;
+      if (!['40P01', '23505', '42P07'].includes(code ?? '') || attempt >= 5) throw error;
+      await new Promise((resolve) => setTimeout(resolve, 50 * attempt + Math.random() * 50));
+      if (await boss.getQueue(queue.name)) return;
+    }
   }
 }
