@@ -1,13 +1,11 @@
 import { solveLinearSystem } from '../util/linear-solve.js';
-import { cosineSum, project } from './sine-fit.js';
+import { cosineSum, project, subtractSinusoid } from './sine-fit.js';
 import { precondition, requirePositive } from '../util/preconditions.js';
 
 // NOTE: as in sine-fit.ts, the time index is centred, t = n − (N−1)/2: over a grid symmetric
 // about 0, Σ cos(a·t)·sin(b·t) = 0 and Σ sin(a·t) = 0, so the cosine block (with DC) and the
 // sine block of the normal equations decouple and can be formed in closed form.
 
-/** Phasors are rotated by recurrence and re-seeded exactly this often (bounds drift to ~1e-13). */
-const RESEED = 2048;
 
 /** One fitted sinusoid, x_i(t) = a·cos(ω_i·t) + b·sin(ω_i·t), t = n − (N−1)/2. */
 export interface SinusoidComponent {
@@ -104,27 +102,12 @@ export function fitSinusoids(x: Float64Array, sampleRate: number, frequenciesHz:
  */
 export function subtractSinusoids(x: Float64Array, sampleRate: number, fit: SinusoidFit, which: (component: SinusoidComponent) => boolean = () => true, removeDc = true): Float64Array {
   requirePositive(sampleRate, 'subtractSinusoids', 'sampleRate');
-  const n = x.length;
-  const t0 = -(n - 1) / 2;
-  if (removeDc) for (let i = 0; i < n; i++) x[i] = (x[i] as number) - fit.dc;
+  if (removeDc) for (let i = 0; i < x.length; i++) x[i] = (x[i] as number) - fit.dc;
   const done = new Set<number>();
   for (const comp of fit.components) {
     if (!which(comp) || done.has(comp.column)) continue;
     done.add(comp.column);
-    const omega = (2 * Math.PI * comp.frequencyHz) / sampleRate;
-    const cw = Math.cos(omega);
-    const sw = Math.sin(omega);
-    for (let start = 0; start < n; start += RESEED) {
-      const end = Math.min(n, start + RESEED);
-      let c = Math.cos(omega * (t0 + start));
-      let s = Math.sin(omega * (t0 + start));
-      for (let i = start; i < end; i++) {
-        x[i] = (x[i] as number) - comp.a * c - comp.b * s;
-        const nc = c * cw - s * sw;
-        s = s * cw + c * sw;
-        c = nc;
-      }
-    }
+    subtractSinusoid(x, (2 * Math.PI * comp.frequencyHz) / sampleRate, comp.a, comp.b);
   }
   return x;
 }

@@ -73,7 +73,7 @@ export function project(x: Float64Array, omega: number): [number, number] {
 }
 
 /** x[n] −= a·cos(ωt) + b·sin(ωt), in place, same recurrence as `project`. */
-function subtractSinusoid(x: Float64Array, omega: number, a: number, b: number): void {
+export function subtractSinusoid(x: Float64Array, omega: number, a: number, b: number): void {
   const n = x.length;
   const t0 = -(n - 1) / 2;
   const cw = Math.cos(omega);
