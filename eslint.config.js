@@ -1,8 +1,9 @@
 // Lint for every package, including the dependency direction of shared/CONVENTIONS.md:
-// contracts ← dsp (types only) ← db ← api/worker; web/cli take contracts (and dsp), never db.
+// contracts ← dsp (types only); contracts ← platform; contracts ← db; domain takes contracts, dsp, db and
+// platform; api/worker take all of those; web/cli take contracts (and dsp), never the server side.
 import tseslint from 'typescript-eslint';
 
-const ours = ['@earmark/contracts', '@earmark/dsp', '@earmark/db', '@earmark/api', '@earmark/worker', '@earmark/web', '@earmark/cli'];
+const ours = ['@earmark/contracts', '@earmark/dsp', '@earmark/db', '@earmark/platform', '@earmark/domain', '@earmark/api', '@earmark/worker', '@earmark/web', '@earmark/cli'];
 const forbid = (allowed, message) => ({
   patterns: [
     { group: ours.filter((p) => !allowed.includes(p)), message },
@@ -37,11 +38,29 @@ export default tseslint.config(
   },
   {
     files: ['packages/db/**/*.ts'],
-    rules: { '@typescript-eslint/no-restricted-imports': ['error', forbid(['@earmark/contracts'], 'db imports contracts only.')] },
+    rules: { '@typescript-eslint/no-restricted-imports': ['error', forbid(['@earmark/contracts'], 'db (the entities) imports contracts only.')] },
+  },
+  {
+    files: ['packages/platform/**/*.ts'],
+    rules: { '@typescript-eslint/no-restricted-imports': ['error', forbid(['@earmark/contracts'], 'platform (object store, queue, secrets) imports contracts only.')] },
+  },
+  {
+    files: ['packages/domain/**/*.ts'],
+    rules: {
+      '@typescript-eslint/no-restricted-imports': [
+        'error',
+        {
+          patterns: [
+            ...forbid(['@earmark/contracts', '@earmark/dsp', '@earmark/db', '@earmark/platform'], 'domain imports contracts, dsp, db and platform only.').patterns,
+            { group: ['express', 'express/*', 'nodemailer', 'pg-boss'], message: 'The domain core knows no transport: HTTP stays in the API, SMTP and the queue behind platform or a port.' },
+          ],
+        },
+      ],
+    },
   },
   {
     files: ['apps/api/**/*.ts', 'apps/worker/**/*.ts'],
-    rules: { '@typescript-eslint/no-restricted-imports': ['error', forbid(['@earmark/contracts', '@earmark/db', '@earmark/dsp'], 'api and worker import db, contracts and dsp only.')] },
+    rules: { '@typescript-eslint/no-restricted-imports': ['error', forbid(['@earmark/contracts', '@earmark/db', '@earmark/dsp', '@earmark/platform', '@earmark/domain'], 'api and worker import domain, platform, db, contracts and dsp only.')] },
   },
   {
     files: ['apps/web/**/*.{ts,tsx}', 'apps/cli/**/*.ts'],

@@ -1,6 +1,7 @@
 import fs from 'node:fs';
 import path from 'node:path';
-import { generateTokenSecret, initOrm, seedDemo } from '@earmark/db';
+import { initOrm, seedDemo } from '@earmark/db';
+import { generateTokenSecret } from '@earmark/platform';
 import { dataDir } from './paths.js';
 
 const tokenFile = path.join(dataDir, 'demo-ci-token');

@@ -4,8 +4,8 @@ import type { AddressInfo } from 'node:net';
 import { performance } from 'node:perf_hooks';
 import pg from 'pg';
 import { pino } from 'pino';
-import { createApp, loadApiEnv } from '@earmark/api';
-import { ObjectStore, TEST_PASSWORD, initOrm, seedRoles, startBoss } from '@earmark/db';
+import { createApiRuntime, createApp, loadApiEnv } from '@earmark/api';
+import { TEST_PASSWORD, initOrm, seedRoles } from '@earmark/db';
 import { createBenchDatabase } from '../support/bench-database.js';
 
 const BUILDS = 20_000;
@@ -47,10 +47,9 @@ try {
   await db.end();
 
   const logger = pino({ level: 'silent' });
-  const boss = await startBoss(url, logger);
-  const objectStore = new ObjectStore({ endpoint: 'http://127.0.0.1:9', bucket: 'none', accessKeyId: 'x', secretAccessKey: 'x' });
-  const env = loadApiEnv({ EARMARK_DATABASE_URL: url, EARMARK_JWT_SECRET: 'bench-secret-bench-secret-bench-secret-00', EARMARK_WEB_DIST: '/nonexistent', EARMARK_LOG_LEVEL: 'silent' });
-  const { app } = createApp({ orm, env, logger, objectStore, boss });
+  const env = loadApiEnv({ EARMARK_DATABASE_URL: url, EARMARK_JWT_SECRET: 'bench-secret-bench-secret-bench-secret-00', EARMARK_WEB_DIST: '/nonexistent', EARMARK_LOG_LEVEL: 'silent', EARMARK_S3_ENDPOINT: 'http://127.0.0.1:9' });
+  const runtime = await createApiRuntime(env, logger, { orm });
+  const { app } = createApp(runtime);
   const server = app.listen(0, '127.0.0.1');
   await new Promise<void>((resolve) => server.once('listening', resolve));
   const base = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
@@ -83,9 +82,7 @@ try {
   console.log(`\nGET /api/projects/{p}/builds over HTTP, ${ROUNDS} rounds each, 100k captures (target: p95 < 50 ms)\n`);
   console.log(rows.join('\n'));
   server.close();
-  await boss.stop({ graceful: false });
-  objectStore.destroy();
+  await runtime.close();
 } finally {
-  await orm.close();
   await database.drop();
 }

@@ -1,5 +1,6 @@
 import net from 'node:net';
-import { demoProjects, demoUsers, generateTokenSecret, initOrm, Membership, Project, seedDemo, User, ApiToken, hashToken } from '@earmark/db';
+import { demoProjects, demoUsers, initOrm, Membership, Project, seedDemo, User, ApiToken } from '@earmark/db';
+import { generateTokenSecret, hashToken } from '@earmark/platform';
 import { createTestDatabase } from '@earmark/db/testing';
 import { assertPortFree } from '@earmark/infra/ports';
 import { describe, expect, it } from 'vitest';

@@ -2,8 +2,9 @@ import fs from 'node:fs';
 import type { AddressInfo } from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
-import { createApp, loadApiEnv } from '@earmark/api';
-import { ApiToken, ObjectStore, generateTokenSecret, initOrm, seedDemo, seedRoles, startBoss, type RoleFixture } from '@earmark/db';
+import { createApiRuntime, createApp, loadApiEnv } from '@earmark/api';
+import { ApiToken, initOrm, seedDemo, seedRoles, type RoleFixture } from '@earmark/db';
+import { generateTokenSecret, type ObjectStore } from '@earmark/platform';
 import { createTestDatabase } from '@earmark/db/testing';
 import { startS3Fake, startSmtpFake, type S3Fake, type SmtpFake } from '@earmark/infra/fakes';
 import type { MikroORM } from '@mikro-orm/postgresql';
@@ -43,9 +44,6 @@ export async function startStack(opts: { seed?: 'roles' | 'demo'; database?: { u
   const inboxPort = await freePort();
   let smtp: SmtpFake = await startSmtpFake({ smtpPort, webPort: inboxPort });
   const logger = pino({ level: 'silent' });
-  const objectStore = new ObjectStore({ endpoint: s3.endpoint, bucket: 'earmark-captures', accessKeyId: 'S3RVER', secretAccessKey: 'S3RVER' });
-  await objectStore.ensureBucket();
-  const boss = await startBoss(db.url, logger);
   const env = loadApiEnv({
     EARMARK_DATABASE_URL: db.url,
     EARMARK_JWT_SECRET: 'stack-secret-stack-secret-stack-secret-0123',
@@ -53,7 +51,9 @@ export async function startStack(opts: { seed?: 'roles' | 'demo'; database?: { u
     EARMARK_WEB_DIST: path.resolve(import.meta.dirname, '../../apps/web/dist'),
     EARMARK_LOG_LEVEL: 'silent',
   });
-  const { app } = createApp({ orm, env, logger, objectStore, boss });
+  const runtime = await createApiRuntime(env, logger, { orm });
+  const { objectStore } = runtime;
+  const { app } = createApp(runtime);
   const server = app.listen(0, '127.0.0.1');
   await new Promise<void>((resolve) => server.once('listening', resolve));
   const url = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
@@ -98,12 +98,10 @@ export async function startStack(opts: { seed?: 'roles' | 'demo'; database?: { u
     async close() {
       await Promise.all(workers.map((w) => w.stop()));
       await new Promise<void>((resolve) => server.close(() => resolve()));
-      await boss.stop({ graceful: false, wait: true });
-      objectStore.destroy();
+      await runtime.close();
       await s3.close();
       await smtp.close().catch(() => {});
       fs.rmSync(s3Dir, { recursive: true, force: true });
-      await orm.close();
       await db.drop();
     },
   };

@@ -1,34 +1,19 @@
 import fs from 'node:fs';
 import path from 'node:path';
-import { RequestContext, type MikroORM } from '@mikro-orm/postgresql';
+import { RequestContext } from '@mikro-orm/postgresql';
 import express from 'express';
 import { ipKeyGenerator, rateLimit } from 'express-rate-limit';
 import helmet from 'helmet';
-import type { ObjectStore } from '@earmark/db';
-import type PgBoss from 'pg-boss';
-import type { Logger } from 'pino';
 import { pinoHttp } from 'pino-http';
 import { createTokenSigner } from './auth/jwt.js';
 import type { ApiEnv } from './env.js';
 import { mountRoutes } from './http/mount-routes.js';
 import { errorHandler, notFoundHandler, sendProblem } from './http/problem.js';
 import type { RouteDef } from './http/route.js';
+import type { ApiRuntime } from './runtime.js';
 import { docsRoutes } from './routes/docs.routes.js';
 import { allRoutes } from './routes/index.js';
-import { CaptureIngestService } from './services/capture-ingest.service.js';
-import { CaptureViewService } from './services/capture-view.service.js';
-import { FindingsService } from './services/findings.service.js';
-import { createLinks } from './services/links.js';
-import { SessionService } from './services/session.service.js';
-
-export interface AppDeps {
-  orm: MikroORM;
-  env: ApiEnv;
-  logger: Logger;
-  objectStore: ObjectStore;
-  /** Producer side of the job queue (queues created at start-up). */
-  boss: PgBoss;
-}
+import { SessionService } from './auth/session.service.js';
 
 export interface EarmarkApp {
   app: express.Express;
@@ -54,7 +39,7 @@ function loginLimiter(env: ApiEnv): express.RequestHandler {
 }
 
 /** Builds the Express app; tests boot it on an ephemeral port. */
-export function createApp({ orm, env, logger, objectStore, boss }: AppDeps): EarmarkApp {
+export function createApp({ orm, env, logger, gate }: ApiRuntime): EarmarkApp {
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', 'loopback');
@@ -82,11 +67,7 @@ export function createApp({ orm, env, logger, objectStore, boss }: AppDeps): Ear
   app.use((_req, _res, next) => RequestContext.create(orm.em, next));
 
   const signer = createTokenSigner(env.EARMARK_JWT_SECRET, { access: env.EARMARK_ACCESS_TOKEN_TTL_S, refresh: env.EARMARK_REFRESH_TOKEN_TTL_S });
-  const links = createLinks(env.EARMARK_PUBLIC_URL);
-  const ingest = new CaptureIngestService({ objectStore, boss, links, logger, maxCaptureBytes: env.EARMARK_MAX_CAPTURE_BYTES });
-  const findings = new FindingsService();
-  const views = new CaptureViewService(objectStore, findings, links);
-  const routes: RouteDef[] = allRoutes({ sessions: new SessionService(signer), loginLimiter: loginLimiter(env), ingest, links, views, findings, boss });
+  const routes: RouteDef[] = allRoutes({ gate, sessions: new SessionService(signer), loginLimiter: loginLimiter(env), maxCaptureBytes: env.EARMARK_MAX_CAPTURE_BYTES });
   routes.push(...docsRoutes(() => routes, env.EARMARK_PUBLIC_URL));
   const api = express.Router();
   mountRoutes(api, routes, orm, signer);

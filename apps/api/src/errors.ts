@@ -1,4 +1,9 @@
-/** Domain errors; the one error handler maps each to problem+json. */
+/**
+ * Errors of the HTTP edge itself (authentication, body size, media type). The gate's own
+ * errors are the domain's (`@earmark/domain`); problem.ts maps both to problem+json.
+ */
+export { ConflictError, ForbiddenError, NotFoundError, ServiceUnavailableError, UnsupportedCaptureError, ValidationError } from '@earmark/domain';
+
 export class HttpError extends Error {
   constructor(
     readonly status: number,
@@ -16,40 +21,9 @@ export class AuthError extends HttpError {
   }
 }
 
-export class ForbiddenError extends HttpError {
-  constructor(detail = 'Your role does not allow this.') {
-    super(403, 'Forbidden', detail);
-  }
-}
-
-export class NotFoundError extends HttpError {
-  constructor(detail: string) {
-    super(404, 'Not found', detail);
-  }
-}
-
-export class ConflictError extends HttpError {
-  constructor(detail: string) {
-    super(409, 'Conflict', detail);
-  }
-}
-
-export class ValidationError extends HttpError {
-  constructor(detail: string, errors: { path: string; message: string }[] = []) {
-    super(422, 'Invalid request', detail, { errors });
-  }
-}
-
 export class BadRequestError extends HttpError {
   constructor(detail: string) {
     super(400, 'Bad request', detail);
-  }
-}
-
-/** The upload is not a capture Earmark can read (format, channels, rate, samples). */
-export class UnsupportedCaptureError extends HttpError {
-  constructor(detail: string, code: string) {
-    super(422, 'Unsupported capture', detail, { code });
   }
 }
 
@@ -64,12 +38,5 @@ export class PayloadTooLargeError extends HttpError {
     super(413, 'Capture too large', `Captures may be at most ${limitBytes} bytes (${(limitBytes / 1048576).toFixed(0)} MiB).`, {
       headers: { Connection: 'close' },
     });
-  }
-}
-
-/** A dependency (object store, queue) is down; the client should retry. */
-export class ServiceUnavailableError extends HttpError {
-  constructor(detail: string, retryAfterSeconds = 5) {
-    super(503, 'Service unavailable', detail, { headers: { 'Retry-After': String(retryAfterSeconds) } });
   }
 }

@@ -1,4 +1,5 @@
-import { ApiToken, AuditEvent, hashToken } from '@earmark/db';
+import { ApiToken, AuditEvent } from '@earmark/db';
+import { hashToken } from '@earmark/platform';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startTestApi, type TestApi } from './support/test-api.js';
 

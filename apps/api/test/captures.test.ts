@@ -1,4 +1,5 @@
-import { Capture, Target, TestCase, ApiToken, generateTokenSecret } from '@earmark/db';
+import { Capture, Target, TestCase, ApiToken } from '@earmark/db';
+import { generateTokenSecret } from '@earmark/platform';
 import { QUEUES, RAW_FLOAT32_MEDIA_TYPE } from '@earmark/contracts';
 import { decodeWav, encodeWav, generateStimulus } from '@earmark/dsp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';

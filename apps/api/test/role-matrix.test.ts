@@ -1,4 +1,5 @@
-import { ApiToken, Build, Capture, Target, TestCase, generateTokenSecret, type Project } from '@earmark/db';
+import { ApiToken, Build, Capture, Target, TestCase, type Project } from '@earmark/db';
+import { generateTokenSecret } from '@earmark/platform';
 import { encodeWav } from '@earmark/dsp';
 import type { TokenScope } from '@earmark/contracts';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';

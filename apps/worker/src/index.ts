@@ -1,2 +1,3 @@
-export { startBoss, createQueues } from '@earmark/db';
+export { startBoss, createQueues } from '@earmark/platform';
 export { loadWorkerEnv, type WorkerEnv } from './env.js';
+export { createWorker, type Worker } from './create-worker.js';

@@ -1,8 +1,7 @@
 import { QUEUES } from '@earmark/contracts';
 import type { MikroORM } from '@mikro-orm/postgresql';
-import type PgBoss from 'pg-boss';
 import type { Logger } from 'pino';
-import { expireWaivers } from './verdicts/waivers.js';
+import { expireWaivers, type JobProducer } from '@earmark/domain';
 
 /**
  * Safety net for the outbox pattern: captures whose job was never queued (the API could
@@ -10,7 +9,7 @@ import { expireWaivers } from './verdicts/waivers.js';
  * is harmless because verdicts are unique per capture and revision. Waivers past their
  * date expire here too (their mail goes out with the rest below).
  */
-export async function sweep(orm: MikroORM, boss: PgBoss, logger: Logger, olderThanSeconds: number): Promise<void> {
+export async function sweep(orm: MikroORM, jobs: JobProducer, logger: Logger, olderThanSeconds: number): Promise<void> {
   const conn = orm.em.fork().getConnection();
   const orphans = await conn.execute<{ id: string }[]>(
     `select c.id from capture c
@@ -20,7 +19,7 @@ export async function sweep(orm: MikroORM, boss: PgBoss, logger: Logger, olderTh
       limit 100`,
     [olderThanSeconds, QUEUES.analyzeCapture],
   );
-  for (const { id } of orphans) await boss.send(QUEUES.analyzeCapture, { captureId: id });
+  for (const { id } of orphans) await jobs.analyzeCapture({ captureId: id });
   if (orphans.length) logger.warn({ count: orphans.length }, 're-queued captures without an analysis job');
 
   const expired = await expireWaivers(orm.em.fork());
@@ -31,5 +30,5 @@ export async function sweep(orm: MikroORM, boss: PgBoss, logger: Logger, olderTh
     `select count(*) as n from pgboss.job where name = ? and state < 'completed'`,
     [QUEUES.sendNotifications],
   );
-  if (Number(pending?.n ?? 0) > 0 && Number(waiting[0]?.n ?? 0) === 0) await boss.send(QUEUES.sendNotifications, { reason: 'sweep' });
+  if (Number(pending?.n ?? 0) > 0 && Number(waiting[0]?.n ?? 0) === 0) await jobs.sendMail('sweep');
 }

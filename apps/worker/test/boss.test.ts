@@ -3,7 +3,7 @@ import { createTestDatabase, type TestDatabase } from '@earmark/db/testing';
 import type PgBoss from 'pg-boss';
 import { pino } from 'pino';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { startBoss } from '@earmark/db';
+import { startBoss } from '@earmark/platform';
 
 let db: TestDatabase;
 let boss: PgBoss;

@@ -14,3 +14,4 @@ export * from './mask-revisions.js';
 export * from './dashboard.js';
 export * from './mask-workflow.js';
 export * from './mask-derivation.js';
+export * from './build-status-rule.js';

@@ -1,9 +1,10 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { ApiToken, Membership, User, parseTokenPrefix, tokenMatches } from '@earmark/db';
+import { ApiToken, Membership, User } from '@earmark/db';
+import { parseTokenPrefix, tokenMatches } from '@earmark/platform';
 import type { Request } from 'express';
 import { AuthError } from '../errors.js';
 import type { TokenSigner } from './jwt.js';
-import type { Principal } from './principal.js';
+import type { Principal } from '@earmark/domain';
 
 function bearer(req: Request): string | null {
   const header = req.headers.authorization;

@@ -2,7 +2,7 @@ import type { EntityManager } from '@mikro-orm/postgresql';
 import { Project } from '@earmark/db';
 import { AuthError, ForbiddenError, NotFoundError } from '../errors.js';
 import { roleGrants, scopesGrant, type Access } from './permissions.js';
-import type { Principal } from './principal.js';
+import type { Principal } from '@earmark/domain';
 
 export interface Authorized {
   principal: Principal | null;

@@ -1,7 +1,18 @@
 import type { ErrorRequestHandler, RequestHandler, Response } from 'express';
 import type { Logger } from 'pino';
 import { PROBLEM_CONTENT_TYPE, type Problem } from '@earmark/contracts';
+import { DomainError, ServiceUnavailableError, type DomainErrorKind } from '@earmark/domain';
 import { HttpError } from '../errors.js';
+
+/** How each kind of domain error reads over HTTP: the only place that knows. */
+const DOMAIN_STATUS: Record<DomainErrorKind, { status: number; title: string }> = {
+  not_found: { status: 404, title: 'Not found' },
+  forbidden: { status: 403, title: 'Forbidden' },
+  conflict: { status: 409, title: 'Conflict' },
+  invalid: { status: 422, title: 'Invalid request' },
+  unsupported_capture: { status: 422, title: 'Unsupported capture' },
+  unavailable: { status: 503, title: 'Service unavailable' },
+};
 
 const typeFor = (status: number) => `https://earmark.dev/problems/${status}`;
 
@@ -33,6 +44,16 @@ export function errorHandler(logger: Logger): ErrorRequestHandler {
   return (err: unknown, req, res, _next) => {
     if (res.headersSent) {
       logger.error({ err }, 'error after headers were sent');
+      return;
+    }
+    if (err instanceof DomainError) {
+      const { status, title } = DOMAIN_STATUS[err.kind];
+      const headers: Record<string, string> = err instanceof ServiceUnavailableError ? { 'Retry-After': String(err.retryAfterSeconds) } : {};
+      sendProblem(
+        res,
+        { type: typeFor(status), title, status, detail: err.message, instance: req.originalUrl, ...(err.fieldErrors.length ? { errors: err.fieldErrors } : {}), ...(err.code ? { code: err.code } : {}) },
+        headers,
+      );
       return;
     }
     if (err instanceof HttpError) {

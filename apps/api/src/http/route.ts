@@ -3,7 +3,7 @@ import type { Project } from '@earmark/db';
 import type { Request, RequestHandler, Response, Router } from 'express';
 import type { z } from 'zod';
 import type { Access } from '../auth/permissions.js';
-import type { Principal } from '../auth/principal.js';
+import type { Principal } from '@earmark/domain';
 
 export interface RouteContext {
   req: Request;

@@ -1,12 +1,10 @@
-import type { AuditEventRow, UserRow } from '@earmark/contracts';
-import { AuditEventRow as AuditEventRowSchema, CreateUserRequest, Page, UserRow as UserRowSchema } from '@earmark/contracts';
+import { type AuditEventRow, AuditEventRow as AuditEventRowSchema, CreateUserRequest, Page, type UserRow, UserRow as UserRowSchema } from '@earmark/contracts';
 import { AuditEvent, User, hashPassword } from '@earmark/db';
 import { z } from 'zod';
 
 import { ConflictError } from '../errors.js';
-import { parseWith } from '../http/validate.js';
+import { parseWith, recordAudit } from '@earmark/domain';
 import { requireUser, type RouteDef } from '../http/route.js';
-import { recordAudit } from '../services/audit.service.js';
 
 const PageQuery = z.object({
   page: z.coerce.number().int().min(1).default(1),

@@ -1,8 +1,8 @@
 import { CurrentUser, LoginRequest, RefreshRequest, Session } from '@earmark/contracts';
 import type { RequestHandler } from 'express';
-import { parseWith } from '../http/validate.js';
+import { parseWith } from '@earmark/domain';
+import { toCurrentUser, type SessionService } from '../auth/session.service.js';
 import { requireUser, type RouteDef } from '../http/route.js';
-import { toCurrentUser, type SessionService } from '../services/session.service.js';
 
 export function authRoutes(sessions: SessionService, loginLimiter: RequestHandler): RouteDef[] {
   return [

@@ -11,9 +11,8 @@ import {
 } from '@earmark/contracts';
 import { encodeWav, generateStimulus } from '@earmark/dsp';
 import { z } from 'zod';
-import { parseWith } from '../http/validate.js';
+import { type CatalogService, parseWith, toTargetDto, toTestCaseDto } from '@earmark/domain';
 import { requireProject, type RouteContext, type RouteDef } from '../http/route.js';
-import { toTargetDto, toTestCaseDto, type CatalogService } from '../services/catalog.service.js';
 
 const TargetParams = z.object({ targetKey: TargetKey });
 const CaseParams = z.object({ caseKey: TestCaseKey });

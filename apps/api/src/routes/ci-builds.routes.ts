@@ -2,12 +2,8 @@ import { BuildDetail, BuildRow, CommitSha, UpsertBuildRequest } from '@earmark/c
 import { Build, Capture, type Project } from '@earmark/db';
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { z } from 'zod';
-import { actorName } from '../auth/principal.js';
-import { parseWith } from '../http/validate.js';
+import { actorName, buildDetail, type Links, parseWith, recordAudit, toBuildRow } from '@earmark/domain';
 import { requireProject, type RouteDef } from '../http/route.js';
-import { recordAudit } from '../services/audit.service.js';
-import { buildDetail, toBuildRow } from '../services/build-detail.service.js';
-import type { Links } from '../services/links.js';
 
 const BuildListQuery = z.object({
   page: z.coerce.number().int().min(1).default(1),

@@ -2,18 +2,14 @@ import { CaptureDto, CommitSha, RAW_FLOAT32_MEDIA_TYPE } from '@earmark/contract
 import { Capture } from '@earmark/db';
 import { z } from 'zod';
 import { NotFoundError } from '../errors.js';
-import { parseWith } from '../http/validate.js';
+import { buildDetail, type CaptureIngestService, type Links, parseWith, presentCaptures, renderJunit } from '@earmark/domain';
+import { readCaptureUpload } from '../http/capture-upload.js';
 import { requireProject, type RouteDef } from '../http/route.js';
-import { buildDetail } from '../services/build-detail.service.js';
-import { presentCaptures } from '../services/capture-presenter.js';
-import type { CaptureIngestService } from '../services/capture-ingest.service.js';
-import { renderJunit } from '../services/junit-report.js';
-import type { Links } from '../services/links.js';
 
 const ShaParams = z.object({ sha: CommitSha });
 const CaptureParams = z.object({ id: z.uuid('a capture id (UUID)') });
 
-export function ciCaptureRoutes(ingest: CaptureIngestService, links: Links): RouteDef[] {
+export function ciCaptureRoutes(ingest: CaptureIngestService, links: Links, maxCaptureBytes: number): RouteDef[] {
   return [
     {
       method: 'post',
@@ -23,7 +19,9 @@ export function ciCaptureRoutes(ingest: CaptureIngestService, links: Links): Rou
       doc: { bodyContentTypes: ['audio/wav', RAW_FLOAT32_MEDIA_TYPE, 'multipart/form-data'], query: z.object({ testCase: z.string(), target: z.string().optional() }), response: CaptureDto, status: 202 },
       async handle(ctx) {
         const { sha } = parseWith(ShaParams, ctx.req.params, 'params');
-        const result = await ingest.ingest(ctx.em, requireProject(ctx), sha, ctx.req, ctx.principal!);
+        const project = requireProject(ctx);
+        const upload = await readCaptureUpload(ctx.req, maxCaptureBytes, (destination) => ingest.resolveCaseAndTarget(ctx.em, project, destination));
+        const result = await ingest.ingest(ctx.em, project, sha, upload, ctx.principal!);
         ctx.res.status(result.created ? 202 : 200).setHeader('Location', result.capture.links.self).json(result.capture);
       },
     },

@@ -17,12 +17,8 @@ import {
   UpdateFindingRequest,
 } from '@earmark/contracts';
 import { z } from 'zod';
-import { parseWith } from '../http/validate.js';
+import { buildMatrix, buildTrend, type Gate, parseWith, queryBuilds } from '@earmark/domain';
 import { requireProject, requireUser, type RouteDef } from '../http/route.js';
-import { buildMatrix } from '../services/build-matrix.service.js';
-import { buildTrend, queryBuilds } from '../services/builds-query.service.js';
-import type { CaptureViewService } from '../services/capture-view.service.js';
-import type { FindingsService } from '../services/findings.service.js';
 import { LOUDNESS_CAUTION } from './catalog.routes.js';
 
 const ShaParams = z.object({ sha: CommitSha });
@@ -30,7 +26,8 @@ const IdParams = z.object({ id: z.uuid('a UUID') });
 const AudioParams = IdParams.extend({ kind: AudioKind });
 
 /** What the dashboard reads: builds, the build matrix, capture pages, findings triage. */
-export function dashboardRoutes(views: CaptureViewService, findings: FindingsService): RouteDef[] {
+export function dashboardRoutes(gate: Gate): RouteDef[] {
+  const { views, findings } = gate;
   return [
     {
       method: 'get',

@@ -11,12 +11,7 @@ import {
 } from '@earmark/contracts';
 import { z } from 'zod';
 import { requireProject, requireUser, type RouteContext, type RouteDef } from '../http/route.js';
-import { parseWith } from '../http/validate.js';
-import { CatalogService } from '../services/catalog.service.js';
-import { DriftService } from '../services/drift.service.js';
-import { ImpactService, toImpactRunDto } from '../services/impact.service.js';
-import { MaskDerivationService } from '../services/mask-derivation.service.js';
-import type { RouteDeps } from './index.js';
+import { type Gate, parseWith, toImpactRunDto } from '@earmark/domain';
 
 const CaseParams = z.object({ caseKey: TestCaseKey });
 const RevisionParams = CaseParams.extend({ revision: z.coerce.number().int().min(1) });
@@ -24,11 +19,8 @@ const RunParams = RevisionParams.extend({ runId: z.uuid() });
 const base = '/api/projects/:project/test-cases/:caseKey/masks';
 
 /** Deriving limits from golden captures, impact of a revision on past builds, re-evaluation, drift. */
-export function maskDerivationRoutes(deps: RouteDeps): RouteDef[] {
-  const catalog = new CatalogService();
-  const derivation = new MaskDerivationService(deps.views.audioLoader);
-  const impact = new ImpactService(deps.boss);
-  const drift = new DriftService();
+export function maskDerivationRoutes(gate: Gate): RouteDef[] {
+  const { catalog, derivation, impact, drift } = gate;
   const testCaseOf = async (ctx: RouteContext) => {
     const { caseKey } = parseWith(CaseParams, ctx.req.params, 'params');
     return catalog.getTestCase(ctx.em, requireProject(ctx), caseKey);

@@ -9,7 +9,6 @@ import {
   ProjectAuditQuery,
   ProjectMaskRevisionList,
   ProjectMaskRevisionsQuery,
-  QUEUES,
   RequestWaiverRequest,
   TestCaseKey,
   UpdateMaskDraftRequest,
@@ -19,42 +18,18 @@ import {
   WaiverListQuery,
   WaiverRejectRequest,
 } from '@earmark/contracts';
-import type PgBoss from 'pg-boss';
+
 import { z } from 'zod';
-import { parseWith } from '../http/validate.js';
+import { type Gate, type MaskService, parseWith, toMaskRevisionDto, toWaiverDto } from '@earmark/domain';
 import { requireProject, requireUser, type RouteContext, type RouteDef } from '../http/route.js';
-import type { CatalogService } from '../services/catalog.service.js';
-import type { Links } from '../services/links.js';
-import { MaskService, toMaskRevisionDto } from '../services/mask.service.js';
-import { MaskWorkflowService, type WorkflowPages } from '../services/mask-workflow.service.js';
-import { WaiverService, toWaiverDto } from '../services/waiver.service.js';
 
 const CaseParams = z.object({ caseKey: TestCaseKey });
 const RevisionParams = CaseParams.extend({ revision: z.coerce.number().int().min(1) });
 const IdParams = z.object({ id: z.string() });
 
-export interface MaskWorkflowDeps {
-  links: Links;
-  /** Producer side of the queue, to send mail at once (the worker's sweep is the safety net). */
-  boss: Pick<PgBoss, 'send'>;
-}
-
-/** Dashboard pages, derived from the links the API already builds (same public base URL). */
-function pagesFrom(links: Links): WorkflowPages {
-  const project = (key: string) => links.buildPage(key, '-').replace(/\/builds\/-$/, '');
-  return {
-    masks: (p, testCase) => `${project(p)}/test-cases/${encodeURIComponent(testCase)}/masks`,
-    approvals: (p) => `${project(p)}/approvals`,
-    findings: (p) => `${project(p)}/findings`,
-  };
-}
-
 /** Review workflow of mask revisions, the project audit log and waivers. */
-export function maskWorkflowRoutes(catalog: CatalogService, deps: MaskWorkflowDeps): RouteDef[] {
-  const masks = new MaskService();
-  const pages = pagesFrom(deps.links);
-  const workflow = new MaskWorkflowService(masks, pages);
-  const waivers = new WaiverService(pages);
+export function maskWorkflowRoutes(gate: Gate): RouteDef[] {
+  const { catalog, masks, workflow, waivers } = gate;
   const caseBase = '/api/projects/:project/test-cases/:caseKey/masks/:revision';
 
   const revisionOf = async (ctx: RouteContext) => {
@@ -65,7 +40,7 @@ export function maskWorkflowRoutes(catalog: CatalogService, deps: MaskWorkflowDe
   const sendMail = async (ctx: RouteContext, queued: number) => {
     if (!queued) return;
     try {
-      await deps.boss.send(QUEUES.sendNotifications, { reason: 'review' });
+      await gate.jobs.sendMail('review');
     } catch (error) {
       ctx.req.log.warn({ err: error }, 'could not queue send-notifications; the sweep will');
     }

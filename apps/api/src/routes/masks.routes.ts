@@ -1,9 +1,7 @@
 import { CreateMaskRevisionRequest, MaskDecisionRequest, MaskRevisionDto, TestCaseKey } from '@earmark/contracts';
 import { z } from 'zod';
-import { parseWith } from '../http/validate.js';
+import { type CatalogService, type MaskService, parseWith, toMaskRevisionDto } from '@earmark/domain';
 import { requireProject, requireUser, type RouteContext, type RouteDef } from '../http/route.js';
-import type { CatalogService } from '../services/catalog.service.js';
-import { toMaskRevisionDto, type MaskService } from '../services/mask.service.js';
 
 const CaseParams = z.object({ caseKey: TestCaseKey });
 const RevisionParams = CaseParams.extend({ revision: z.coerce.number().int().min(1) });

@@ -1,8 +1,7 @@
 import { CreateProjectRequest, MemberRow, Project, SetMembershipRequest } from '@earmark/contracts';
 import { z } from 'zod';
-import { parseWith } from '../http/validate.js';
+import { parseWith, type ProjectService } from '@earmark/domain';
 import { requireProject, requireUser, type RouteDef } from '../http/route.js';
-import type { ProjectService } from '../services/project.service.js';
 
 const UserIdParams = z.object({ userId: z.uuid() });
 

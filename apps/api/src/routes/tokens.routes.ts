@@ -1,8 +1,7 @@
 import { ApiTokenRow, CreateApiTokenRequest, CreatedApiToken } from '@earmark/contracts';
 import { z } from 'zod';
-import { parseWith } from '../http/validate.js';
+import { parseWith, type TokenService } from '@earmark/domain';
 import { requireProject, requireUser, type RouteDef } from '../http/route.js';
-import type { TokenService } from '../services/token.service.js';
 
 const TokenParams = z.object({ tokenId: z.uuid() });
 

@@ -3,14 +3,15 @@ import { Writable } from 'node:stream';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import { ObjectStore, initOrm, seedRoles, startBoss, TEST_PASSWORD, type RoleFixture } from '@earmark/db';
+import { initOrm, seedRoles, TEST_PASSWORD, type RoleFixture } from '@earmark/db';
+import type { ObjectStore } from '@earmark/platform';
 import { startS3Fake, type S3Fake } from '@earmark/infra/fakes';
 import type PgBoss from 'pg-boss';
 import { createTestDatabase } from '@earmark/db/testing';
 import type { MikroORM } from '@mikro-orm/postgresql';
 import type { Express } from 'express';
 import { pino } from 'pino';
-import { createApp, loadApiEnv, type ApiEnv, type RouteDef } from '../../src/index.js';
+import { createApiRuntime, createApp, loadApiEnv, type ApiEnv, type RouteDef } from '../../src/index.js';
 
 export const TEST_JWT_SECRET = 'test-secret-that-is-long-enough-for-hs256-0123456789';
 
@@ -60,10 +61,9 @@ export async function startTestApi(envOverrides: Record<string, string> = {}): P
   const logLines: string[] = [];
   const sink = new Writable({ write(chunk, _enc, cb) { logLines.push(String(chunk)); cb(); } });
   const logger = pino({ level: 'info' }, sink);
-  const objectStore = new ObjectStore({ endpoint: fake.endpoint, bucket: env.EARMARK_S3_BUCKET, accessKeyId: 'S3RVER', secretAccessKey: 'S3RVER' });
-  await objectStore.ensureBucket();
-  const boss = await startBoss(db.url, logger);
-  const { app, routes } = createApp({ orm, env, logger, objectStore, boss });
+  const runtime = await createApiRuntime(env, logger, { orm });
+  const { objectStore, boss } = runtime;
+  const { app, routes } = createApp(runtime);
   const server = app.listen(0, '127.0.0.1');
   await new Promise<void>((resolve) => server.once('listening', resolve));
   const baseUrl = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
@@ -109,11 +109,9 @@ export async function startTestApi(envOverrides: Record<string, string> = {}): P
     },
     async close() {
       await new Promise<void>((resolve) => server.close(() => resolve()));
-      await boss.stop({ graceful: false, wait: true });
-      objectStore.destroy();
+      await runtime.close();
       await fake.close().catch(() => {});
       fs.rmSync(s3Dir, { recursive: true, force: true });
-      await orm.close();
       await db.drop();
     },
   };

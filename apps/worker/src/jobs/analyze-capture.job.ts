@@ -1,20 +1,16 @@
-import { AnalyzeCaptureJob, QUEUES } from '@earmark/contracts';
-import { Build, Capture, MaskRevision, ObjectStoreUnavailableError, type ObjectStore } from '@earmark/db';
+import { AnalyzeCaptureJob } from '@earmark/contracts';
+import { Build, Capture, MaskRevision } from '@earmark/db';
+import { ObjectStoreUnavailableError, type ObjectStore } from '@earmark/platform';
 import { ENGINE_VERSION } from '@earmark/dsp';
 import { LockMode, type MikroORM } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
 import type { Logger } from 'pino';
-import { computeBuildStatus } from '../verdicts/build-aggregate.js';
-import { noteDrift } from '../verdicts/drift-notice.js';
-import { judgeCapture } from '../verdicts/judge-capture.js';
-import { errorJudgement } from '../verdicts/judgement.js';
-import { findMaskInForce } from '../verdicts/mask-in-force.js';
-import { recordVerdict, type RecordDeps } from '../verdicts/record-verdict.js';
+import { computeBuildStatus, errorJudgement, findMaskInForce, judgeCapture, noteDrift, recordVerdict, type JobProducer, type RecordDeps } from '@earmark/domain';
 
 export interface AnalyzeDeps {
   orm: MikroORM;
   objectStore: ObjectStore;
-  boss: PgBoss;
+  jobs: JobProducer;
   logger: Logger;
   links: RecordDeps;
   maxAttempts: number;
@@ -71,7 +67,7 @@ export async function analyzeCapture(job: PgBoss.JobWithMetadata<unknown>, deps:
     log.warn({ err: error }, 'drift check failed');
     return 0;
   }) : 0;
-  if (result.notificationsQueued > 0 || driftMails > 0) await deps.boss.send(QUEUES.sendNotifications, { reason: result.notificationsQueued > 0 ? 'build failed' : 'drift' });
+  if (result.notificationsQueued > 0 || driftMails > 0) await deps.jobs.sendMail(result.notificationsQueued > 0 ? 'build failed' : 'drift');
 }
 
 /** Shows the capture (and so its build) as running while the engine works. */

@@ -1,10 +1,10 @@
 import { EvaluateImpactJob, type ImpactBuildRow, type ImpactCaptureRow, type ImpactCheckRow, type ImpactResult, type VerdictFlip, type VerdictOutcome } from '@earmark/contracts';
-import { Capture, CheckResult, ImpactRun, ObjectStoreUnavailableError, Verdict, type MaskRevision, type ObjectStore } from '@earmark/db';
+import { Capture, CheckResult, ImpactRun, Verdict, type MaskRevision } from '@earmark/db';
+import { ObjectStoreUnavailableError, type ObjectStore } from '@earmark/platform';
 import type { EntityManager, MikroORM } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
 import type { Logger } from 'pino';
-import { judgeCapture } from '../verdicts/judge-capture.js';
-import { errorJudgement, type Judgement } from '../verdicts/judgement.js';
+import { errorJudgement, judgeCapture, type Judgement } from '@earmark/domain';
 
 export interface ImpactDeps {
   orm: MikroORM;

@@ -1,7 +1,7 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { MaskDocument, StimulusSpec } from '@earmark/contracts';
 import { ApiToken, MaskRevision, Membership, Project, Target, TestCase, User } from '../entities/index.js';
-import { hashPassword } from '../security/passwords.js';
+import { hashPassword } from '../users/passwords.js';
 import { DEMO_PASSWORD, demoProjects, demoUsers } from './demo-scenario.js';
 
 export interface DemoCiToken {

@@ -1,7 +1,7 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type { ProjectRole } from '@earmark/contracts';
 import { Membership, Project, User } from '../entities/index.js';
-import { hashPassword } from '../security/passwords.js';
+import { hashPassword } from '../users/passwords.js';
 
 export const TEST_PASSWORD = 'correct horse battery';
 

@@ -10,7 +10,7 @@ import {
   type UpdateTestCaseRequest,
 } from '@earmark/contracts';
 import { Capture, Target, TestCase, type Project } from '@earmark/db';
-import { actorName, type Principal } from '../auth/principal.js';
+import { actorName, type Principal } from '../actor.js';
 import { ConflictError, NotFoundError } from '../errors.js';
 import { recordAudit } from './audit.service.js';
 

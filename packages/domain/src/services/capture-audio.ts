@@ -1,4 +1,5 @@
-import { ObjectMissingError, ObjectStoreUnavailableError, type Capture, type ObjectStore } from '@earmark/db';
+import { type Capture } from '@earmark/db';
+import { ObjectMissingError, ObjectStoreUnavailableError, type ObjectStore } from '@earmark/platform';
 import { decodeCapture, type DecodedAudio } from '@earmark/dsp';
 import { NotFoundError, ServiceUnavailableError } from '../errors.js';
 

@@ -15,15 +15,9 @@ import {
 } from '@earmark/contracts';
 import { AuditEvent, MaskRevision, Membership, Notification, type Project, type TestCase, type User } from '@earmark/db';
 import { ConflictError, ForbiddenError, NotFoundError } from '../errors.js';
-import { parseWith } from '../http/validate.js';
+import { parseWith } from '../validate.js';
+import type { Links } from './links.js';
 import { MASK_POPULATE, assertNotAuthor, maskSubject, recordMaskTransition, type MaskService } from './mask.service.js';
-
-/** Absolute links to the dashboard pages mail points to. */
-export interface WorkflowPages {
-  masks(project: string, testCase: string): string;
-  approvals(project: string): string;
-  findings(project: string): string;
-}
 
 export interface OutboxMail {
   kind: string;
@@ -118,7 +112,7 @@ const likeLiteral = (s: string) => s.replace(/[\\%_]/g, (c) => `\\${c}`);
 export class MaskWorkflowService {
   constructor(
     private readonly masks: MaskService,
-    private readonly pages: WorkflowPages,
+    private readonly pages: Links,
   ) {}
 
   listForProject(em: EntityManager, project: Project, state: MaskRevisionState | undefined) {
@@ -171,8 +165,8 @@ export class MaskWorkflowService {
             `Author: ${mask.author.email}. Checks: ${mask.checks.length}.${mask.basedOn ? ` Copied from revision ${mask.basedOn.revision}.` : ''}`,
             ...(mask.note ? ['', `Note: ${mask.note}`] : []),
             '',
-            `Review it: ${this.pages.masks(project.key, testCase.key)}`,
-            `All reviews waiting: ${this.pages.approvals(project.key)}`,
+            `Review it: ${this.pages.masksPage(project.key, testCase.key)}`,
+            `All reviews waiting: ${this.pages.approvalsPage(project.key)}`,
             '',
             'You get this because you are a QA manager of this project in Earmark.',
           ].join('\n'),

@@ -2,8 +2,8 @@ import { QUEUES } from '@earmark/contracts';
 import pino from 'pino';
 import type PgBoss from 'pg-boss';
 import { describe, expect, it } from 'vitest';
-import { startBoss } from '../src/jobs/boss.js';
-import { createTestDatabase } from '../src/testing/index.js';
+import { startBoss } from '@earmark/platform';
+import { createTestDatabase } from '@earmark/db/testing';
 
 const silent = pino({ level: 'silent' });
 

@@ -1,5 +1,4 @@
-import type { BuildStatus } from '@earmark/contracts';
-import { aggregateBuildStatus, type CaptureState } from '@earmark/db';
+import { aggregateBuildStatus, type BuildStatus, type CaptureState } from '@earmark/contracts';
 import type { EntityManager } from '@mikro-orm/postgresql';
 
 interface Row {

@@ -1,6 +1,7 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { AnalysisSettings, CapturePlot, MaskCheck, StimulusSpec, type AudioKind, type CaptureDetail, type MagnitudeEnvelopeCheck, type PlotQuery } from '@earmark/contracts';
-import { Capture, Verdict, type MaskRevision, type ObjectStore, type Project } from '@earmark/db';
+import { Capture, Verdict, type MaskRevision, type Project } from '@earmark/db';
+import { type ObjectStore } from '@earmark/platform';
 import { ENGINE_VERSION, MaskCheckError, captureCurves, encodeWav, listeningResidual, maskPlotData, stimulusAsPlayed, type DecodedAudio } from '@earmark/dsp';
 import { NotFoundError } from '../errors.js';
 import { CaptureAudioLoader } from './capture-audio.js';

@@ -1,2 +1,1 @@
 export * from './api-token-secret.js';
-export * from './passwords.js';

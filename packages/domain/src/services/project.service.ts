@@ -1,8 +1,8 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type { CreateProjectRequest, MemberRow, Project as ProjectDto, ProjectRole } from '@earmark/contracts';
 import { Membership, Project, User } from '@earmark/db';
-import type { Principal } from '../auth/principal.js';
-import { actorName } from '../auth/principal.js';
+import type { Principal } from '../actor.js';
+import { actorName } from '../actor.js';
 import { ConflictError, NotFoundError } from '../errors.js';
 import { recordAudit } from './audit.service.js';
 

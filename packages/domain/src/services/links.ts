@@ -1,4 +1,4 @@
-/** URLs that API answers, JUnit XML and e-mails point to. */
+/** URLs that API answers, JUnit XML and e-mails point to: one set for every process. */
 export function createLinks(publicUrl: string) {
   const base = publicUrl.replace(/\/$/, '');
   return {
@@ -7,6 +7,10 @@ export function createLinks(publicUrl: string) {
     junit: (project: string, sha: string) => `${base}/api/v1/projects/${project}/builds/${sha}/junit.xml`,
     buildPage: (project: string, sha: string) => `${base}/projects/${project}/builds/${sha}`,
     capturePage: (project: string, sha: string, id: string) => `${base}/projects/${project}/builds/${sha}/captures/${id}`,
+    masksPage: (project: string, testCase: string) => `${base}/projects/${project}/test-cases/${encodeURIComponent(testCase)}/masks`,
+    approvalsPage: (project: string) => `${base}/projects/${project}/approvals`,
+    findingsPage: (project: string) => `${base}/projects/${project}/findings`,
+    settingsPage: (project: string) => `${base}/projects/${project}/settings`,
   };
 }
 export type Links = ReturnType<typeof createLinks>;

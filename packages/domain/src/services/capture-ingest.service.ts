@@ -1,36 +1,33 @@
 import { createHash, randomUUID } from 'node:crypto';
 import { UniqueConstraintViolationException, type EntityManager } from '@mikro-orm/postgresql';
-import { QUEUES, RAW_FLOAT32_MEDIA_TYPE, TargetKey, TestCaseKey, WAV_MEDIA_TYPES, type CaptureDto } from '@earmark/contracts';
-import { Build, Capture, ObjectStoreUnavailableError, Target, TestCase, aggregateBuildStatus, type ObjectStore, type Project } from '@earmark/db';
+import { RAW_FLOAT32_MEDIA_TYPE, aggregateBuildStatus, type CaptureDto } from '@earmark/contracts';
+import { Build, Capture, Target, TestCase, type Project } from '@earmark/db';
+import { ObjectStoreUnavailableError, type ObjectStore } from '@earmark/platform';
 import { AudioDecodeError, decodeRawFloat32, decodeWav, type DecodedAudio } from '@earmark/dsp';
-import type { Request } from 'express';
-import type PgBoss from 'pg-boss';
+import type { JobProducer } from '../jobs/job-producer.js';
 import type { Logger } from 'pino';
-import { z } from 'zod';
-import { ConflictError, ServiceUnavailableError, UnsupportedCaptureError, UnsupportedMediaTypeError, ValidationError } from '../errors.js';
-import { readMultipart, readRawBody, type Upload } from '../http/read-upload.js';
-import { parseWith } from '../http/validate.js';
+import { ConflictError, ServiceUnavailableError, UnsupportedCaptureError, ValidationError } from '../errors.js';
 import { presentCaptures } from './capture-presenter.js';
 import type { Links } from './links.js';
 import { recordAudit } from './audit.service.js';
-import { actorName, type Principal } from '../auth/principal.js';
+import { actorName, type Principal } from '../actor.js';
 
-const CaptureParams = z.object({
-  testCase: TestCaseKey,
-  target: TargetKey.optional(),
-});
-const RawHeaders = z.object({
-  'x-sample-rate': z.coerce.number().int().min(8000).max(192000),
-  'x-channels': z.coerce.number().int().min(1).max(8),
-});
-const IdempotencyKey = z.string().min(1).max(200).regex(/^[\x21-\x7e]+$/, 'printable ASCII without spaces');
+/** A capture upload as the HTTP edge parsed it: bytes, how to read them, and where they go. */
+export interface CaptureUpload {
+  bytes: Buffer;
+  /** `wav`, or raw little-endian float32 frames with the rate and channel count given beside them. */
+  encoding: { kind: 'wav' } | { kind: 'raw-float32'; sampleRate: number; channels: number };
+  testCase: string;
+  target?: string;
+  fileName: string | null;
+  idempotencyKey: string | null;
+}
 
 export interface IngestDeps {
   objectStore: ObjectStore;
-  boss: PgBoss;
+  jobs: JobProducer;
   links: Links;
   logger: Logger;
-  maxCaptureBytes: number;
 }
 
 export interface IngestResult {
@@ -38,48 +35,23 @@ export interface IngestResult {
   capture: CaptureDto;
 }
 
-const mediaTypeOf = (header: string | undefined) => (header ?? '').split(';')[0]!.trim().toLowerCase();
-
 /**
- * The upload path of a capture: read and fully validate the body, store the bytes,
+ * The upload path of a capture: fully validate the parsed upload, store the bytes,
  * then insert the row and queue the analysis. A body that fails validation leaves no
  * row and no object; an object whose row could not be written is deleted again.
  */
 export class CaptureIngestService {
   constructor(private readonly deps: IngestDeps) {}
 
-  async ingest(em: EntityManager, project: Project, sha: string, req: Request, principal: Principal): Promise<IngestResult> {
-    const mediaType = mediaTypeOf(req.headers['content-type']);
-    const isMultipart = mediaType === 'multipart/form-data';
-    const isWav = (WAV_MEDIA_TYPES as readonly string[]).includes(mediaType);
-    const isRaw = mediaType === RAW_FLOAT32_MEDIA_TYPE;
-    if (!isMultipart && !isWav && !isRaw) {
-      req.resume();
-      throw new UnsupportedMediaTypeError(
-        `Send a capture as audio/wav, as ${RAW_FLOAT32_MEDIA_TYPE} (with X-Sample-Rate and X-Channels), or as multipart/form-data with a \`file\` part; got ${mediaType || 'no Content-Type'}.`,
-      );
-    }
-    const idempotencyKey = req.headers['idempotency-key'] === undefined ? null : parseWith(IdempotencyKey, req.headers['idempotency-key'], 'params');
-
-    // Raw uploads name the test case and target in the query, so they are checked before the body is read.
-    let upload: Upload;
-    let params: z.infer<typeof CaptureParams>;
-    if (isMultipart) {
-      upload = await readMultipart(req, this.deps.maxCaptureBytes);
-      params = parseWith(CaptureParams, upload.fields, 'body');
-    } else {
-      params = parseWith(CaptureParams, req.query, 'query');
-      await this.resolveCaseAndTarget(em, project, params);
-      upload = { bytes: await readRawBody(req, this.deps.maxCaptureBytes), fields: {}, mediaType, fileName: null };
-    }
-    const { testCase, target } = await this.resolveCaseAndTarget(em, project, params);
-
+  async ingest(em: EntityManager, project: Project, sha: string, upload: CaptureUpload, principal: Principal): Promise<IngestResult> {
+    const { testCase, target } = await this.resolveCaseAndTarget(em, project, upload);
+    const { idempotencyKey } = upload;
     if (idempotencyKey) {
       const existing = await this.findByIdempotencyKey(em, project, idempotencyKey);
       if (existing) return this.replay(em, existing, testCase, target);
     }
 
-    const audio = this.decode(upload, isRaw || (isMultipart && upload.mediaType === RAW_FLOAT32_MEDIA_TYPE), req);
+    const audio = this.decode(upload);
     if (target.sampleRate !== null && audio.sampleRate !== target.sampleRate) {
       throw new UnsupportedCaptureError(
         `The capture is sampled at ${audio.sampleRate} Hz but target ${target.key} runs at ${target.sampleRate} Hz.`,
@@ -145,14 +117,15 @@ export class CaptureIngestService {
   /** Queues the analysis; if the queue is unreachable the worker's sweep picks the capture up later. */
   private async enqueue(captureId: string): Promise<void> {
     try {
-      const id = await this.deps.boss.send(QUEUES.analyzeCapture, { captureId });
+      const id = await this.deps.jobs.analyzeCapture({ captureId });
       if (!id) this.deps.logger.error({ captureId }, 'analysis job was not queued (queue missing?)');
     } catch (error) {
       this.deps.logger.warn({ err: error, captureId }, 'analysis job not queued now; the worker sweep will queue it');
     }
   }
 
-  private async resolveCaseAndTarget(em: EntityManager, project: Project, params: z.infer<typeof CaptureParams>) {
+  /** The test case and target an upload names; the edge calls it before reading a raw body. */
+  async resolveCaseAndTarget(em: EntityManager, project: Project, params: { testCase: string; target?: string }) {
     const testCase = await em.findOne(TestCase, { project, key: params.testCase });
     if (!testCase) {
       throw new ValidationError(`Project ${project.key} has no test case ${params.testCase}.`, [{ path: 'testCase', message: 'unknown test case' }]);
@@ -183,19 +156,15 @@ export class CaptureIngestService {
     return { created: false, capture: dto! };
   }
 
-  private decode(upload: Upload, raw: boolean, req: Request): DecodedAudio {
+  private decode(upload: CaptureUpload): DecodedAudio {
     if (upload.bytes.length === 0) throw new UnsupportedCaptureError('The capture is empty (0 bytes).', 'empty');
+    const bytes = new Uint8Array(upload.bytes.buffer, upload.bytes.byteOffset, upload.bytes.byteLength);
     try {
-      if (!raw) return decodeWav(new Uint8Array(upload.bytes.buffer, upload.bytes.byteOffset, upload.bytes.byteLength));
-      const headers = parseWith(RawHeaders, { ...upload.fields, ...req.headers }, 'params');
-      return decodeRawFloat32(new Uint8Array(upload.bytes.buffer, upload.bytes.byteOffset, upload.bytes.byteLength), {
-        sampleRate: headers['x-sample-rate'],
-        channels: headers['x-channels'],
-      });
+      if (upload.encoding.kind === 'wav') return decodeWav(bytes);
+      return decodeRawFloat32(bytes, { sampleRate: upload.encoding.sampleRate, channels: upload.encoding.channels });
     } catch (error) {
       if (error instanceof AudioDecodeError) throw new UnsupportedCaptureError(error.message, error.code);
       throw error;
     }
   }
 }
-

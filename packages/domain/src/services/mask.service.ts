@@ -2,7 +2,7 @@ import type { EntityManager } from '@mikro-orm/postgresql';
 import { MaskCheck, MaskDocument, type CreateMaskRevisionRequest, type MaskRevisionDto } from '@earmark/contracts';
 import { MaskRevision, Target, type MaskRevisionState, type Project, type TestCase, type User } from '@earmark/db';
 import { ConflictError, ForbiddenError, NotFoundError, ValidationError } from '../errors.js';
-import { parseWith } from '../http/validate.js';
+import { parseWith } from '../validate.js';
 import { recordAudit } from './audit.service.js';
 
 /** Relations every revision answer needs. */

@@ -1,7 +1,7 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { ImpactResult, QUEUES, type CreateImpactRunRequest, type ImpactRunDto, type ReevaluateRequest, type ReevaluateResponse } from '@earmark/contracts';
+import { ImpactResult, type CreateImpactRunRequest, type ImpactRunDto, type ReevaluateRequest, type ReevaluateResponse } from '@earmark/contracts';
 import { ImpactRun, MaskRevision, type Project, type TestCase, type User } from '@earmark/db';
-import type PgBoss from 'pg-boss';
+import type { JobProducer } from '../jobs/job-producer.js';
 import { ENGINE_VERSION } from '@earmark/dsp';
 import { ConflictError, NotFoundError, ServiceUnavailableError } from '../errors.js';
 import { recordAudit } from './audit.service.js';
@@ -45,7 +45,7 @@ export async function governedCaptures(em: EntityManager, revision: MaskRevision
 
 /** Impact runs of a revision over past builds, and re-evaluation under an approved revision. */
 export class ImpactService {
-  constructor(private readonly boss: PgBoss) {}
+  constructor(private readonly jobs: JobProducer) {}
 
   private async revision(em: EntityManager, testCase: TestCase, revision: number): Promise<MaskRevision> {
     const mask = await em.findOne(MaskRevision, { testCase, revision }, { populate: ['testCase', 'target'] });
@@ -59,7 +59,7 @@ export class ImpactService {
     const run = em.create(ImpactRun, { maskRevision: mask, requestedBy: user, builds: req.builds });
     recordAudit(em, { actor: `user:${user.email}`, action: 'mask.impact', subject: `mask:${testCase.key}#${revision}`, project, details: { builds: req.builds } });
     await em.flush();
-    const jobId = await this.boss.send(QUEUES.evaluateImpact, { impactRunId: run.id }).catch(() => null);
+    const jobId = await this.jobs.evaluateImpact({ impactRunId: run.id }).catch(() => null);
     if (!jobId) {
       run.state = 'error';
       run.error = 'The job queue could not be reached; start the impact run again.';
@@ -107,8 +107,7 @@ export class ImpactService {
     const skip = new Set(judged.map((j) => j.capture_id));
     const todo = captures.filter((c) => !skip.has(c.id)).map((c) => c.id);
     if (todo.length > 0) {
-      // send() (not insert()) so each job gets the queue's retry, expiry and dead-letter settings.
-      const ids = await Promise.all(todo.map((captureId) => this.boss.send(QUEUES.analyzeCapture, { captureId, maskRevisionId: mask.id }).catch(() => null)));
+      const ids = await Promise.all(todo.map((captureId) => this.jobs.analyzeCapture({ captureId, maskRevisionId: mask.id }).catch(() => null)));
       if (ids.some((id) => !id)) throw new ServiceUnavailableError('The job queue is unavailable right now; try again shortly.');
     }
     recordAudit(em, { actor: `user:${user.email}`, action: 'mask.reevaluate', subject: `mask:${testCase.key}#${revision}`, project, details: { scope: req.scope, builds: builds.length, queued: todo.length } });

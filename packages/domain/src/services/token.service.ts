@@ -1,6 +1,7 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type { ApiTokenRow, CreateApiTokenRequest, CreatedApiToken } from '@earmark/contracts';
-import { ApiToken, generateTokenSecret, type Project, type User } from '@earmark/db';
+import { ApiToken, type Project, type User } from '@earmark/db';
+import { generateTokenSecret } from '@earmark/platform';
 
 import { NotFoundError } from '../errors.js';
 import { recordAudit } from './audit.service.js';

@@ -3,7 +3,8 @@ import type { RequestWaiverRequest, WaiverDto, WaiverListQuery } from '@earmark/
 import { Finding, Notification, Waiver, type Project, type User, type WaiverState } from '@earmark/db';
 import { ConflictError, NotFoundError, ValidationError } from '../errors.js';
 import { recordAudit } from './audit.service.js';
-import { assertNotRequester, mailQaManagers, type WorkflowPages } from './mask-workflow.service.js';
+import { assertNotRequester, mailQaManagers } from './mask-workflow.service.js';
+import type { Links } from './links.js';
 
 const POPULATE = ['project', 'testCase', 'target', 'requestedBy', 'approvedBy', 'finding'] as const;
 
@@ -41,7 +42,7 @@ export function parseUntil(until: string): Date {
  * expires it, re-opens the finding and mails its assignee.
  */
 export class WaiverService {
-  constructor(private readonly pages: WorkflowPages) {}
+  constructor(private readonly pages: Links) {}
 
   async list(em: EntityManager, project: Project, q: WaiverListQuery): Promise<Waiver[]> {
     const state = q.state === 'active' ? { state: 'approved' as const, expiresAt: { $gt: new Date() } } : q.state ? { state: q.state } : {};
@@ -95,7 +96,7 @@ export class WaiverService {
             `Finding: ${finding.title}`,
             `Reason: ${input.reason}`,
             '',
-            `Decide: ${this.pages.approvals(project.key)}`,
+            `Decide: ${this.pages.approvalsPage(project.key)}`,
             '',
             'You get this because you are a QA manager of this project in Earmark.',
           ].join('\n'),
@@ -164,7 +165,7 @@ export class WaiverService {
           (waiver.state === 'approved' ? `; it runs until ${waiver.expiresAt.toISOString().slice(0, 10)}.` : '.'),
         ...(waiver.decisionComment ? ['', `Comment: ${waiver.decisionComment}`] : []),
         '',
-        `Findings: ${this.pages.findings(project.key)}`,
+        `Findings: ${this.pages.findingsPage(project.key)}`,
       ].join('\n'),
       payload: { project: project.key, waiverId: waiver.id },
     });

@@ -1,5 +1,5 @@
 import type { z } from 'zod';
-import { ValidationError } from '../errors.js';
+import { ValidationError } from './errors.js';
 
 /**
  * Parses a request part with its zod schema.

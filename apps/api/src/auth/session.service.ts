@@ -4,7 +4,7 @@ import { BCRYPT_COST, Membership, User, hashPassword, verifyPassword } from '@ea
 import type { TokenSigner } from '../auth/jwt.js';
 
 import { AuthError } from '../errors.js';
-import { recordAudit } from './audit.service.js';
+import { recordAudit } from '@earmark/domain';
 
 export function toCurrentUser(user: User, memberships: Membership[]): CurrentUser {
   return {

@@ -1,0 +1,70 @@
+/**
+ * Domain errors: what went wrong in the gate's terms, with no transport attached. The HTTP
+ * edge maps each kind to a status and problem+json (apps/api/src/http/problem.ts); the worker
+ * records them on a verdict or logs them.
+ */
+export type DomainErrorKind = 'not_found' | 'forbidden' | 'conflict' | 'invalid' | 'unsupported_capture' | 'unavailable';
+
+export interface FieldError {
+  path: string;
+  message: string;
+}
+
+export abstract class DomainError extends Error {
+  abstract readonly kind: DomainErrorKind;
+  /** A stable machine-readable reason (`sample-rate-mismatch`), where clients branch on it. */
+  readonly code?: string;
+  readonly fieldErrors: FieldError[];
+
+  constructor(detail: string, options: { code?: string; fieldErrors?: FieldError[] } = {}) {
+    super(detail);
+    this.name = new.target.name;
+    this.code = options.code;
+    this.fieldErrors = options.fieldErrors ?? [];
+  }
+}
+
+/** The thing asked for does not exist (or is not visible to the caller). */
+export class NotFoundError extends DomainError {
+  readonly kind = 'not_found';
+}
+
+/** A rule of the gate forbids this actor this act (four-eyes, author-only edits). */
+export class ForbiddenError extends DomainError {
+  readonly kind = 'forbidden';
+  constructor(detail = 'Your role does not allow this.', options: { code?: string } = {}) {
+    super(detail, options);
+  }
+}
+
+/** The act does not fit the current state (a submitted revision edited, a key reused). */
+export class ConflictError extends DomainError {
+  readonly kind = 'conflict';
+}
+
+/** Input that breaks a rule, naming every failing field. */
+export class ValidationError extends DomainError {
+  readonly kind = 'invalid';
+  constructor(detail: string, fieldErrors: FieldError[] = [], code?: string) {
+    super(detail, { fieldErrors, code });
+  }
+}
+
+/** The upload is not a capture Earmark can judge (format, channels, rate, samples). */
+export class UnsupportedCaptureError extends DomainError {
+  readonly kind = 'unsupported_capture';
+  constructor(detail: string, code: string) {
+    super(detail, { code });
+  }
+}
+
+/** A dependency (object store, queue) is down; the caller should retry. */
+export class ServiceUnavailableError extends DomainError {
+  readonly kind = 'unavailable';
+  constructor(
+    detail: string,
+    readonly retryAfterSeconds = 5,
+  ) {
+    super(detail);
+  }
+}

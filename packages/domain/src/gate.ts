@@ -1,0 +1,52 @@
+import type { ObjectStore } from '@earmark/platform';
+import type { Logger } from 'pino';
+import type { JobProducer } from './jobs/job-producer.js';
+import { CaptureIngestService } from './services/capture-ingest.service.js';
+import { CaptureViewService } from './services/capture-view.service.js';
+import { CatalogService } from './services/catalog.service.js';
+import { DriftService } from './services/drift.service.js';
+import { FindingsService } from './services/findings.service.js';
+import { ImpactService } from './services/impact.service.js';
+import type { Links } from './services/links.js';
+import { MaskDerivationService } from './services/mask-derivation.service.js';
+import { MaskWorkflowService } from './services/mask-workflow.service.js';
+import { MaskService } from './services/mask.service.js';
+import { ProjectService } from './services/project.service.js';
+import { TokenService } from './services/token.service.js';
+import { WaiverService } from './services/waiver.service.js';
+
+export interface GateDeps {
+  objectStore: ObjectStore;
+  jobs: JobProducer;
+  links: Links;
+  logger: Logger;
+}
+
+/**
+ * Every service of the gate, built once per process by its composition root (the API's
+ * `createApiRuntime`, the worker's `createWorker`, the tests through either).
+ */
+export function createGate(deps: GateDeps) {
+  const { objectStore, jobs, links, logger } = deps;
+  const catalog = new CatalogService();
+  const masks = new MaskService();
+  const findings = new FindingsService();
+  const views = new CaptureViewService(objectStore, findings, links);
+  return {
+    links,
+    jobs,
+    catalog,
+    masks,
+    findings,
+    views,
+    projects: new ProjectService(),
+    tokens: new TokenService(),
+    workflow: new MaskWorkflowService(masks, links),
+    waivers: new WaiverService(links),
+    ingest: new CaptureIngestService({ objectStore, jobs, links, logger }),
+    derivation: new MaskDerivationService(views.audioLoader),
+    impact: new ImpactService(jobs),
+    drift: new DriftService(),
+  };
+}
+export type Gate = ReturnType<typeof createGate>;
