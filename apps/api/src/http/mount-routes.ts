@@ -1,4 +1,5 @@
 import type { MikroORM } from '@mikro-orm/postgresql';
+import { parseWith } from '@earmark/domain';
 import type { Router } from 'express';
 import { authenticate } from '../auth/authenticate.js';
 import { authorize } from '../auth/authorize.js';
@@ -6,7 +7,10 @@ import { AuthError } from '../errors.js';
 import type { TokenSigner } from '../auth/jwt.js';
 import type { RouteDef } from './route.js';
 
-/** Mounts route definitions: authenticate → authorize (the permission matrix) → handler. */
+/**
+ * Mounts route definitions: authenticate → authorize (the permission matrix) → parse the
+ * params, query and body with the route's schemas → handler.
+ */
 export function mountRoutes(router: Router, routes: RouteDef[], orm: MikroORM, signer: TokenSigner): void {
   for (const route of routes) {
     router[route.method](route.path, ...(route.before ?? []), async (req, res) => {
@@ -17,7 +21,10 @@ export function mountRoutes(router: Router, routes: RouteDef[], orm: MikroORM, s
         ? await route.resolveProjectKey(req, em)
         : typeof req.params.project === 'string' ? req.params.project : undefined;
       const { project } = await authorize(route.access, principal, projectKey, em);
-      await route.handle({ req, res, em, principal, project });
+      const params = route.params ? parseWith(route.params, req.params, 'params') : {};
+      const query = route.query ? parseWith(route.query, req.query, 'query') : {};
+      const body = route.body ? parseWith(route.body, req.body, 'body') : undefined;
+      await route.handle({ req, res, em, principal, project, params, query, body });
     });
   }
 }

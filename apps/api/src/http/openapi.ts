@@ -27,7 +27,7 @@ export function buildOpenApiDocument(routes: RouteDef[], serverUrl: string): obj
     const params = [...route.path.matchAll(/:(\w+)/g)].map((m) => m[1]!);
     const access = route.access;
     const who = 'permission' in access ? `${accessText[access.kind]} \`${access.permission}\`.` : accessText[access.kind];
-    const status = doc.status ?? 200;
+    const status = route.status ?? 200;
     registry.registerPath({
       method: route.method,
       path: route.path.replace(/:(\w+)/g, '{$1}').replace('{sha}/junit.xml', '{sha}/junit.xml'),
@@ -37,15 +37,15 @@ export function buildOpenApiDocument(routes: RouteDef[], serverUrl: string): obj
       security: access.kind === 'public' ? [] : [{ bearer: [] }],
       request: {
         ...(params.length ? { params: z.object(Object.fromEntries(params.map((p) => [p, z.string()]))) } : {}),
-        ...(doc.query ? { query: doc.query } : {}),
-        ...(doc.body || doc.bodyContentTypes
-          ? { body: { content: Object.fromEntries((doc.bodyContentTypes ?? ['application/json']).map((t) => [t, { schema: t === 'application/json' && doc.body ? doc.body : z.string() }])) } }
+        ...(route.query instanceof z.ZodObject ? { query: route.query } : doc.query ? { query: doc.query } : {}),
+        ...(route.body || doc.bodyContentTypes
+          ? { body: { content: Object.fromEntries((doc.bodyContentTypes ?? ['application/json']).map((t) => [t, { schema: t === 'application/json' && route.body ? route.body : z.string() }])) } }
           : {}),
       },
       responses: {
         [status]: {
-          description: doc.responseContentType ?? (doc.response ? 'OK' : 'No content'),
-          ...(doc.response ? { content: { 'application/json': { schema: doc.response } } } : {}),
+          description: doc.responseContentType ?? (route.response ? 'OK' : 'No content'),
+          ...(route.response ? { content: { 'application/json': { schema: route.response } } } : {}),
           ...(doc.responseContentType ? { content: { [doc.responseContentType]: { schema: z.string() } } } : {}),
         },
         default: { description: 'An error as RFC 9457 problem details', content: { 'application/problem+json': { schema: Problem } } },

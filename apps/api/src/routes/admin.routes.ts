@@ -3,8 +3,8 @@ import { AuditEvent, User, hashPassword } from '@earmark/db';
 import { z } from 'zod';
 
 import { ConflictError } from '../errors.js';
-import { parseWith, recordAudit } from '@earmark/domain';
-import { requireUser, type RouteDef } from '../http/route.js';
+import { recordAudit } from '@earmark/domain';
+import { requireUser, route, type RouteDef } from '../http/route.js';
 
 const PageQuery = z.object({
   page: z.coerce.number().int().min(1).default(1),
@@ -22,25 +22,27 @@ const toUserRow = (u: User): UserRow => ({
 
 export function adminRoutes(): RouteDef[] {
   return [
-    {
+    route({
       method: 'get',
       path: '/api/admin/users',
       access: { kind: 'admin' },
       summary: 'All users',
-      doc: { response: z.object({ items: z.array(UserRowSchema) }) },
+      response: z.object({ items: z.array(UserRowSchema) }),
       async handle({ res, em }) {
         const users = await em.find(User, {}, { orderBy: { email: 'asc' } });
         res.json({ items: users.map(toUserRow) });
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: '/api/admin/users',
       access: { kind: 'admin' },
       summary: 'Create a user with a password',
-      doc: { body: CreateUserRequest, response: UserRowSchema, status: 201 },
+      body: CreateUserRequest,
+      response: UserRowSchema,
+      status: 201,
       async handle(ctx) {
-        const body = parseWith(CreateUserRequest, ctx.req.body, 'body');
+        const body = ctx.body;
         const email = body.email.toLowerCase();
         if (await ctx.em.findOne(User, { email })) throw new ConflictError(`A user with e-mail ${email} already exists.`);
         const user = ctx.em.create(User, {
@@ -53,15 +55,15 @@ export function adminRoutes(): RouteDef[] {
         await ctx.em.flush();
         ctx.res.status(201).json(toUserRow(user));
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/api/admin/audit',
       access: { kind: 'admin' },
       summary: 'The audit log, newest first, paged',
-      doc: { query: PageQuery, response: Page(AuditEventRowSchema) },
-      async handle({ req, res, em }) {
-        const { page, pageSize } = parseWith(PageQuery, req.query, 'query');
+      query: PageQuery,
+      response: Page(AuditEventRowSchema),
+      async handle({ query: { page, pageSize }, res, em }) {
         const [events, total] = await em.findAndCount(
           AuditEvent,
           {},
@@ -78,6 +80,6 @@ export function adminRoutes(): RouteDef[] {
         }));
         res.json({ items, total, page, pageSize });
       },
-    },
+    }),
   ];
 }

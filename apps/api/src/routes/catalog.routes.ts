@@ -12,7 +12,7 @@ import {
 import { encodeWav, generateStimulus } from '@earmark/dsp';
 import { z } from 'zod';
 import { type CatalogService, parseWith, toTargetDto, toTestCaseDto } from '@earmark/domain';
-import { requireProject, type RouteContext, type RouteDef } from '../http/route.js';
+import { requireProject, type RouteContext, route, type RouteDef } from '../http/route.js';
 
 const TargetParams = z.object({ targetKey: TargetKey });
 const CaseParams = z.object({ caseKey: TestCaseKey });
@@ -37,98 +37,107 @@ async function sendStimulus(ctx: RouteContext, catalog: CatalogService): Promise
 
 export function catalogRoutes(catalog: CatalogService): RouteDef[] {
   return [
-    {
+    route({
       method: 'get',
       path: '/api/projects/:project/targets',
       access: { kind: 'project', permission: 'project.read' },
       summary: 'Targets (hardware or configuration variants) of a project',
-      doc: { response: z.object({ items: z.array(TargetDto) }) },
+      response: z.object({ items: z.array(TargetDto) }),
       async handle(ctx) {
         ctx.res.json({ items: (await catalog.listTargets(ctx.em, requireProject(ctx))).map(toTargetDto) });
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: '/api/projects/:project/targets',
       access: { kind: 'project', permission: 'project.configure' },
       summary: 'Add a target',
-      doc: { body: CreateTargetRequest, response: TargetDto, status: 201 },
+      body: CreateTargetRequest,
+      response: TargetDto,
+      status: 201,
       async handle(ctx) {
-        const body = parseWith(CreateTargetRequest, ctx.req.body, 'body');
+        const body = ctx.body;
         ctx.res.status(201).json(toTargetDto(await catalog.createTarget(ctx.em, requireProject(ctx), body, ctx.principal!)));
       },
-    },
-    {
+    }),
+    route({
       method: 'patch',
       path: '/api/projects/:project/targets/:targetKey',
       access: { kind: 'project', permission: 'project.configure' },
       summary: "Change a target's name, description or sample rate",
-      doc: { body: UpdateTargetRequest, response: TargetDto },
+      params: TargetParams,
+      body: UpdateTargetRequest,
+      response: TargetDto,
       async handle(ctx) {
-        const { targetKey } = parseWith(TargetParams, ctx.req.params, 'params');
-        const body = parseWith(UpdateTargetRequest, ctx.req.body, 'body');
+        const { targetKey } = ctx.params;
+        const body = ctx.body;
         ctx.res.json(toTargetDto(await catalog.updateTarget(ctx.em, requireProject(ctx), targetKey, body, ctx.principal!)));
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/api/projects/:project/test-cases',
       access: { kind: 'project', permission: 'project.read' },
       summary: 'Test cases of a project with their stimulus specs and analysis settings',
-      doc: { response: z.object({ items: z.array(TestCaseDto) }) },
+      response: z.object({ items: z.array(TestCaseDto) }),
       async handle(ctx) {
         ctx.res.json({ items: (await catalog.listTestCases(ctx.em, requireProject(ctx))).map(toTestCaseDto) });
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: '/api/projects/:project/test-cases',
       access: { kind: 'project', permission: 'project.configure' },
       summary: 'Add a test case',
-      doc: { body: CreateTestCaseRequest, response: TestCaseDto, status: 201 },
+      body: CreateTestCaseRequest,
+      response: TestCaseDto,
+      status: 201,
       async handle(ctx) {
-        const body = parseWith(CreateTestCaseRequest, ctx.req.body, 'body');
+        const body = ctx.body;
         ctx.res.status(201).json(toTestCaseDto(await catalog.createTestCase(ctx.em, requireProject(ctx), body, ctx.principal!)));
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/api/projects/:project/test-cases/:caseKey',
       access: { kind: 'project', permission: 'project.read' },
       summary: 'One test case',
-      doc: { response: TestCaseDto },
+      params: CaseParams,
+      response: TestCaseDto,
       async handle(ctx) {
-        const { caseKey } = parseWith(CaseParams, ctx.req.params, 'params');
+        const { caseKey } = ctx.params;
         ctx.res.json(toTestCaseDto(await catalog.getTestCase(ctx.em, requireProject(ctx), caseKey)));
       },
-    },
-    {
+    }),
+    route({
       method: 'patch',
       path: '/api/projects/:project/test-cases/:caseKey',
       access: { kind: 'project', permission: 'project.configure' },
       summary: 'Change a test case (the stimulus only while it has no captures)',
-      doc: { body: UpdateTestCaseRequest, response: TestCaseDto },
+      params: CaseParams,
+      body: UpdateTestCaseRequest,
+      response: TestCaseDto,
       async handle(ctx) {
-        const { caseKey } = parseWith(CaseParams, ctx.req.params, 'params');
-        const body = parseWith(UpdateTestCaseRequest, ctx.req.body, 'body');
+        const { caseKey } = ctx.params;
+        const body = ctx.body;
         ctx.res.json(toTestCaseDto(await catalog.updateTestCase(ctx.em, requireProject(ctx), caseKey, body, ctx.principal!)));
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/api/projects/:project/test-cases/:caseKey/stimulus.wav',
       access: { kind: 'project', permission: 'project.read' },
       summary: 'The exact stimulus a rig must play, as 32-bit float WAV (loud: see the caution header)',
       doc: { responseContentType: 'audio/wav' },
       handle: (ctx) => sendStimulus(ctx, catalog),
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/api/v1/projects/:project/test-cases/:caseKey/stimulus.wav',
       access: { kind: 'ci', permission: 'build.read' },
       summary: 'The stimulus for rigs and pipelines (CI token)',
       doc: { responseContentType: 'audio/wav' },
       handle: (ctx) => sendStimulus(ctx, catalog),
-    },
+    }),
   ];
 }

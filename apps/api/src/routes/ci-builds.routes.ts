@@ -2,8 +2,8 @@ import { BuildDetail, BuildRow, CommitSha, UpsertBuildRequest } from '@earmark/c
 import { Build, Capture, type Project } from '@earmark/db';
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { z } from 'zod';
-import { actorName, buildDetail, type Links, parseWith, recordAudit, toBuildRow } from '@earmark/domain';
-import { requireProject, type RouteDef } from '../http/route.js';
+import { actorName, buildDetail, type Links, recordAudit, toBuildRow } from '@earmark/domain';
+import { requireProject, route, type RouteDef } from '../http/route.js';
 
 const BuildListQuery = z.object({
   page: z.coerce.number().int().min(1).default(1),
@@ -16,15 +16,17 @@ const rowOf = async (em: EntityManager, build: Build, project: Project): Promise
 
 export function ciBuildRoutes(links: Links): RouteDef[] {
   return [
-    {
+    route({
       method: 'post',
       path: '/api/v1/projects/:project/builds',
       access: { kind: 'ci', permission: 'build.submit' },
       summary: 'Create a build, or update its label/branch/pipeline URL (upsert by commit SHA)',
-      doc: { body: UpsertBuildRequest, response: BuildRow, status: 201 },
+      body: UpsertBuildRequest,
+      response: BuildRow,
+      status: 201,
       async handle(ctx) {
         const project = requireProject(ctx);
-        const body = parseWith(UpsertBuildRequest, ctx.req.body, 'body');
+        const body = ctx.body;
         let build = await ctx.em.findOne(Build, { project, sha: body.sha });
         const created = !build;
         build ??= ctx.em.create(Build, { project, sha: body.sha });
@@ -46,16 +48,17 @@ export function ciBuildRoutes(links: Links): RouteDef[] {
         }
         ctx.res.status(created ? 201 : 200).json(await rowOf(ctx.em, build, project));
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/api/v1/projects/:project/builds',
       access: { kind: 'ci', permission: 'build.read' },
       summary: 'Builds of a project, newest first, paged; `sha` filters by prefix',
-      doc: { query: BuildListQuery, response: z.object({ items: z.array(BuildRow), total: z.number(), page: z.number(), pageSize: z.number() }) },
+      query: BuildListQuery,
+      response: z.object({ items: z.array(BuildRow), total: z.number(), page: z.number(), pageSize: z.number() }),
       async handle(ctx) {
         const project = requireProject(ctx);
-        const q = parseWith(BuildListQuery, ctx.req.query, 'query');
+        const q = ctx.query;
         const where = q.sha ? { project, sha: { $like: `${q.sha}%` } } : { project };
         const [builds, total] = await ctx.em.findAndCount(Build, where, {
           orderBy: { createdAt: 'desc' },
@@ -65,17 +68,18 @@ export function ciBuildRoutes(links: Links): RouteDef[] {
         const items = await Promise.all(builds.map((b) => rowOf(ctx.em, b, project)));
         ctx.res.json({ items, total, page: q.page, pageSize: q.pageSize });
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/api/v1/projects/:project/builds/:sha',
       access: { kind: 'ci', permission: 'build.read' },
       summary: 'One build by commit SHA, with every capture and its verdict',
-      doc: { response: BuildDetail },
+      params: ShaParams,
+      response: BuildDetail,
       async handle(ctx) {
-        const { sha } = parseWith(ShaParams, ctx.req.params, 'params');
+        const { sha } = ctx.params;
         ctx.res.json(await buildDetail(ctx.em, requireProject(ctx), sha, links));
       },
-    },
+    }),
   ];
 }

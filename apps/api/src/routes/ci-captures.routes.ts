@@ -4,33 +4,39 @@ import { z } from 'zod';
 import { NotFoundError } from '../errors.js';
 import { buildDetail, type CaptureIngestService, type Links, parseWith, presentCaptures, renderJunit } from '@earmark/domain';
 import { readCaptureUpload } from '../http/capture-upload.js';
-import { requireProject, type RouteDef } from '../http/route.js';
+import { requireProject, route, type RouteDef } from '../http/route.js';
 
 const ShaParams = z.object({ sha: CommitSha });
 const CaptureParams = z.object({ id: z.uuid('a capture id (UUID)') });
 
 export function ciCaptureRoutes(ingest: CaptureIngestService, links: Links, maxCaptureBytes: number): RouteDef[] {
   return [
-    {
+    route({
       method: 'post',
       path: '/api/v1/projects/:project/builds/:sha/captures',
       access: { kind: 'ci', permission: 'build.submit' },
       summary: 'Upload a capture (WAV, raw float32 or multipart); answers 202 and queues the analysis',
-      doc: { bodyContentTypes: ['audio/wav', RAW_FLOAT32_MEDIA_TYPE, 'multipart/form-data'], query: z.object({ testCase: z.string(), target: z.string().optional() }), response: CaptureDto, status: 202 },
+      params: ShaParams,
+      response: CaptureDto,
+      status: 202,
+      // The upload names its test case and target in the query (raw bodies) or in form fields
+      // (multipart), so readCaptureUpload parses them, not the mount.
+      doc: { bodyContentTypes: ['audio/wav', RAW_FLOAT32_MEDIA_TYPE, 'multipart/form-data'], query: z.object({ testCase: z.string(), target: z.string().optional() }) },
       async handle(ctx) {
-        const { sha } = parseWith(ShaParams, ctx.req.params, 'params');
+        const { sha } = ctx.params;
         const project = requireProject(ctx);
         const upload = await readCaptureUpload(ctx.req, maxCaptureBytes, (destination) => ingest.resolveCaseAndTarget(ctx.em, project, destination));
         const result = await ingest.ingest(ctx.em, project, sha, upload, ctx.principal!);
         ctx.res.status(result.created ? 202 : 200).setHeader('Location', result.capture.links.self).json(result.capture);
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/api/v1/captures/:id',
       access: { kind: 'ci', permission: 'build.read' },
       summary: 'A capture with its status and verdict (poll until the verdict is there)',
-      doc: { response: CaptureDto },
+      params: CaptureParams,
+      response: CaptureDto,
       async resolveProjectKey(req, em) {
         const { id } = parseWith(CaptureParams, req.params, 'params');
         const capture = await em.findOne(Capture, { id }, { populate: ['project'] });
@@ -38,23 +44,24 @@ export function ciCaptureRoutes(ingest: CaptureIngestService, links: Links, maxC
         return capture.project.key;
       },
       async handle(ctx) {
-        const { id } = parseWith(CaptureParams, ctx.req.params, 'params');
+        const { id } = ctx.params;
         const capture = await ctx.em.findOneOrFail(Capture, { id }, { populate: ['project', 'build', 'testCase', 'target'] });
         const [dto] = await presentCaptures(ctx.em, [capture], links);
         ctx.res.json(dto);
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/api/v1/projects/:project/builds/:sha/junit.xml',
       access: { kind: 'ci', permission: 'build.read' },
       summary: 'JUnit XML of a build: one testsuite per target, one testcase per test case × check',
+      params: ShaParams,
       doc: { responseContentType: 'application/xml' },
       async handle(ctx) {
-        const { sha } = parseWith(ShaParams, ctx.req.params, 'params');
+        const { sha } = ctx.params;
         const detail = await buildDetail(ctx.em, requireProject(ctx), sha, links);
         ctx.res.type('application/xml').send(renderJunit(detail));
       },
-    },
+    }),
   ];
 }

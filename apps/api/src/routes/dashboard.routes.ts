@@ -17,8 +17,8 @@ import {
   UpdateFindingRequest,
 } from '@earmark/contracts';
 import { z } from 'zod';
-import { buildMatrix, buildTrend, type Gate, parseWith, queryBuilds } from '@earmark/domain';
-import { requireProject, requireUser, type RouteDef } from '../http/route.js';
+import { buildMatrix, buildTrend, type Gate, queryBuilds } from '@earmark/domain';
+import { requireProject, requireUser, route, type RouteDef } from '../http/route.js';
 import { LOUDNESS_CAUTION } from './catalog.routes.js';
 
 const ShaParams = z.object({ sha: CommitSha });
@@ -29,127 +29,141 @@ const AudioParams = IdParams.extend({ kind: AudioKind });
 export function dashboardRoutes(gate: Gate): RouteDef[] {
   const { views, findings } = gate;
   return [
-    {
+    route({
       method: 'get',
       path: '/api/projects/:project/builds',
       access: { kind: 'project', permission: 'build.read' },
       summary: 'Builds table: paged, sorted and filtered on the server, with verdict counts',
-      doc: { query: BuildsQuery, response: BuildsPage },
+      query: BuildsQuery,
+      response: BuildsPage,
       async handle(ctx) {
-        ctx.res.json(await queryBuilds(ctx.em, requireProject(ctx), parseWith(BuildsQuery, ctx.req.query, 'query')));
+        ctx.res.json(await queryBuilds(ctx.em, requireProject(ctx), ctx.query));
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/api/projects/:project/builds/trend',
       access: { kind: 'project', permission: 'build.read' },
       summary: 'Pass rate of the newest builds, for the trend chart',
-      doc: { response: BuildTrend },
+      response: BuildTrend,
       async handle(ctx) {
         ctx.res.json(await buildTrend(ctx.em, requireProject(ctx)));
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/api/projects/:project/builds/:sha/matrix',
       access: { kind: 'project', permission: 'build.read' },
       summary: 'Test case × target matrix of a build, compared with the previous build on its branch',
-      doc: { response: BuildMatrix },
+      params: ShaParams,
+      response: BuildMatrix,
       async handle(ctx) {
-        const { sha } = parseWith(ShaParams, ctx.req.params, 'params');
+        const { sha } = ctx.params;
         ctx.res.json(await buildMatrix(ctx.em, requireProject(ctx), sha));
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/api/projects/:project/captures/:id',
       access: { kind: 'project', permission: 'build.read' },
       summary: 'A capture with its verdict, mask, findings and the last passing capture',
-      doc: { response: CaptureDetail },
+      params: IdParams,
+      response: CaptureDetail,
       async handle(ctx) {
-        const { id } = parseWith(IdParams, ctx.req.params, 'params');
+        const { id } = ctx.params;
         ctx.res.json(await views.detail(ctx.em, requireProject(ctx), id, requireUser(ctx).user));
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/api/projects/:project/captures/:id/plot',
       access: { kind: 'project', permission: 'build.read' },
       summary: 'Plot data decimated for the view: spectrum (min/max per log-frequency column) with mask, phase, group delay, waveform',
-      doc: { query: PlotQuery, response: CapturePlot },
+      params: IdParams,
+      query: PlotQuery,
+      response: CapturePlot,
       async handle(ctx) {
-        const { id } = parseWith(IdParams, ctx.req.params, 'params');
-        ctx.res.json(await views.plot(ctx.em, requireProject(ctx), id, parseWith(PlotQuery, ctx.req.query, 'query')));
+        const { id } = ctx.params;
+        ctx.res.json(await views.plot(ctx.em, requireProject(ctx), id, ctx.query));
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/api/projects/:project/captures/:id/audio/:kind',
       access: { kind: 'project', permission: 'build.read' },
       summary: 'The capture, its stimulus or the residual as 32-bit float WAV for listening (loud: see the caution header)',
+      params: AudioParams,
       doc: { responseContentType: 'audio/wav' },
       async handle(ctx) {
-        const { id, kind } = parseWith(AudioParams, ctx.req.params, 'params');
+        const { id, kind } = ctx.params;
         const wav = await views.audio(ctx.em, requireProject(ctx), id, kind);
         ctx.res.type('audio/wav').setHeader('X-Earmark-Caution', LOUDNESS_CAUTION).setHeader('Cache-Control', 'private, max-age=300').send(Buffer.from(wav.buffer, wav.byteOffset, wav.byteLength));
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/api/projects/:project/findings',
       access: { kind: 'project', permission: 'build.read' },
       summary: 'Findings queue, filtered by state, assignee, test case, target or capture',
-      doc: { query: FindingsQuery, response: FindingsPage },
+      query: FindingsQuery,
+      response: FindingsPage,
       async handle(ctx) {
-        ctx.res.json(await findings.list(ctx.em, requireProject(ctx), parseWith(FindingsQuery, ctx.req.query, 'query'), requireUser(ctx).user));
+        ctx.res.json(await findings.list(ctx.em, requireProject(ctx), ctx.query, requireUser(ctx).user));
       },
-    },
-    {
+    }),
+    route({
       method: 'patch',
       path: '/api/projects/:project/findings/:id',
       access: { kind: 'project', permission: 'finding.triage' },
       summary: 'Assign a finding or change its state',
-      doc: { body: UpdateFindingRequest, response: FindingRow },
+      params: IdParams,
+      body: UpdateFindingRequest,
+      response: FindingRow,
       async handle(ctx) {
-        const { id } = parseWith(IdParams, ctx.req.params, 'params');
-        const body = parseWith(UpdateFindingRequest, ctx.req.body, 'body');
+        const { id } = ctx.params;
+        const body = ctx.body;
         const [row] = await findings.update(ctx.em, requireProject(ctx), [id], body, requireUser(ctx).user);
         ctx.res.json(row);
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: '/api/projects/:project/findings/bulk',
       access: { kind: 'project', permission: 'finding.triage' },
       summary: 'Assign or change the state of several findings at once',
-      doc: { body: BulkUpdateFindingsRequest, response: z.object({ items: z.array(FindingRow) }) },
+      body: BulkUpdateFindingsRequest,
+      response: z.object({ items: z.array(FindingRow) }),
       async handle(ctx) {
-        const { ids, ...change } = parseWith(BulkUpdateFindingsRequest, ctx.req.body, 'body');
+        const { ids, ...change } = ctx.body;
         ctx.res.json({ items: await findings.update(ctx.em, requireProject(ctx), ids, change, requireUser(ctx).user) });
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/api/projects/:project/findings/:id/comments',
       access: { kind: 'project', permission: 'build.read' },
       summary: "A finding's comments, oldest first",
-      doc: { response: z.object({ items: z.array(CommentRow) }) },
+      params: IdParams,
+      response: z.object({ items: z.array(CommentRow) }),
       async handle(ctx) {
-        const { id } = parseWith(IdParams, ctx.req.params, 'params');
+        const { id } = ctx.params;
         ctx.res.json({ items: await findings.comments(ctx.em, requireProject(ctx), id) });
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: '/api/projects/:project/findings/:id/comments',
       access: { kind: 'project', permission: 'finding.triage' },
       summary: 'Comment on a finding',
-      doc: { body: CreateCommentRequest, response: CommentRow, status: 201 },
+      params: IdParams,
+      body: CreateCommentRequest,
+      response: CommentRow,
+      status: 201,
       async handle(ctx) {
-        const { id } = parseWith(IdParams, ctx.req.params, 'params');
-        const { body } = parseWith(CreateCommentRequest, ctx.req.body, 'body');
+        const { id } = ctx.params;
+        const { body } = ctx.body;
         ctx.res.status(201).json(await findings.addComment(ctx.em, requireProject(ctx), id, body, requireUser(ctx).user));
       },
-    },
+    }),
   ];
 }

@@ -1,5 +1,5 @@
 import { buildOpenApiDocument } from '../http/openapi.js';
-import type { RouteDef } from '../http/route.js';
+import { route, type RouteDef } from '../http/route.js';
 
 const escape = (s: string) => s.replace(/[&<>"]/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;' })[c]!);
 
@@ -35,7 +35,7 @@ export function docsRoutes(allRoutes: () => RouteDef[], serverUrl: string): Rout
   let cached: object | null = null;
   const document = () => (cached ??= buildOpenApiDocument(allRoutes(), serverUrl));
   return [
-    {
+    route({
       method: 'get',
       path: '/api/v1/openapi.json',
       access: { kind: 'public' },
@@ -43,8 +43,8 @@ export function docsRoutes(allRoutes: () => RouteDef[], serverUrl: string): Rout
       async handle({ res }) {
         res.json(document());
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/api/docs',
       access: { kind: 'public' },
@@ -52,6 +52,6 @@ export function docsRoutes(allRoutes: () => RouteDef[], serverUrl: string): Rout
       async handle({ res }) {
         res.type('html').send(renderDocsPage(document() as Parameters<typeof renderDocsPage>[0]));
       },
-    },
+    }),
   ];
 }

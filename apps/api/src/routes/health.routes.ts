@@ -1,9 +1,9 @@
 import { ENGINE_VERSION } from '@earmark/dsp';
-import type { RouteDef } from '../http/route.js';
+import { route, type RouteDef } from '../http/route.js';
 
 export function healthRoutes(): RouteDef[] {
   return [
-    {
+    route({
       method: 'get',
       path: '/api/health',
       access: { kind: 'public' },
@@ -12,6 +12,6 @@ export function healthRoutes(): RouteDef[] {
         await em.getConnection().execute('select 1');
         res.json({ status: 'ok', engineVersion: ENGINE_VERSION });
       },
-    },
+    }),
   ];
 }

@@ -21,7 +21,7 @@ import {
 
 import { z } from 'zod';
 import { type Gate, type MaskService, parseWith, toMaskRevisionDto, toWaiverDto } from '@earmark/domain';
-import { requireProject, requireUser, type RouteContext, type RouteDef } from '../http/route.js';
+import { requireProject, requireUser, type RouteContext, route, type RouteDef } from '../http/route.js';
 
 const CaseParams = z.object({ caseKey: TestCaseKey });
 const RevisionParams = CaseParams.extend({ revision: z.coerce.number().int().min(1) });
@@ -50,166 +50,181 @@ export function maskWorkflowRoutes(gate: Gate): RouteDef[] {
   };
 
   return [
-    {
+    route({
       method: 'get',
       path: '/api/projects/:project/masks',
       access: { kind: 'project', permission: 'project.read' },
       summary: "Mask revisions of all the project's test cases (e.g. ?state=in_review for the approvals queue), newest first",
-      doc: { query: ProjectMaskRevisionsQuery, response: ProjectMaskRevisionList },
+      query: ProjectMaskRevisionsQuery,
+      response: ProjectMaskRevisionList,
       async handle(ctx) {
-        const { state } = parseWith(ProjectMaskRevisionsQuery, ctx.req.query, 'query');
+        const { state } = ctx.query;
         ctx.res.json({ items: (await workflow.listForProject(ctx.em, requireProject(ctx), state)).map(toMaskRevisionDto) });
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: caseBase,
       access: { kind: 'project', permission: 'project.read' },
       summary: 'One mask revision',
-      doc: { response: MaskRevisionDto },
+      response: MaskRevisionDto,
       async handle(ctx) {
         const { testCase, revision } = await revisionOf(ctx);
         await revisionAnswer(ctx, testCase, revision);
       },
-    },
-    {
+    }),
+    route({
       method: 'patch',
       path: caseBase,
       access: { kind: 'project', permission: 'mask.draft' },
       summary: 'Change a draft (checks, note, target); a submitted revision answers 409',
-      doc: { body: UpdateMaskDraftRequest, response: MaskRevisionDto },
+      body: UpdateMaskDraftRequest,
+      response: MaskRevisionDto,
       async handle(ctx) {
         const { testCase, revision } = await revisionOf(ctx);
-        const body = parseWith(UpdateMaskDraftRequest, ctx.req.body, 'body');
+        const body = ctx.body;
         await workflow.updateDraft(ctx.em, requireProject(ctx), testCase, revision, body, requireUser(ctx).user);
         await revisionAnswer(ctx, testCase, revision);
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: `${caseBase}/submit`,
       access: { kind: 'project', permission: 'mask.draft' },
       summary: "Submit a draft for review; the project's QA managers are mailed. From here on it cannot change",
-      doc: { response: MaskRevisionDto },
+      response: MaskRevisionDto,
       async handle(ctx) {
         const { testCase, revision } = await revisionOf(ctx);
         const { mailed } = await workflow.submit(ctx.em, requireProject(ctx), testCase, revision, requireUser(ctx).user);
         await sendMail(ctx, mailed);
         await revisionAnswer(ctx, testCase, revision);
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: `${caseBase}/reject`,
       access: { kind: 'project', permission: 'mask.approve' },
       summary: 'Reject a revision in review (not your own), with a comment that says why',
-      doc: { body: MaskRejectRequest, response: MaskRevisionDto },
+      body: MaskRejectRequest,
+      response: MaskRevisionDto,
       async handle(ctx) {
         const { testCase, revision } = await revisionOf(ctx);
-        const { comment } = parseWith(MaskRejectRequest, ctx.req.body, 'body');
+        const { comment } = ctx.body;
         await workflow.reject(ctx.em, requireProject(ctx), testCase, revision, requireUser(ctx).user, comment);
         await revisionAnswer(ctx, testCase, revision);
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: `${caseBase}/copy`,
       access: { kind: 'project', permission: 'mask.draft' },
       summary: 'Copy any revision to a new draft (basedOn points back at it)',
-      doc: { body: CopyMaskRevisionRequest, response: MaskRevisionDto, status: 201 },
+      body: CopyMaskRevisionRequest,
+      response: MaskRevisionDto,
+      status: 201,
       async handle(ctx) {
         const { testCase, revision } = await revisionOf(ctx);
-        const body = parseWith(CopyMaskRevisionRequest, ctx.req.body, 'body');
+        const body = ctx.body;
         const draft = await workflow.copy(ctx.em, requireProject(ctx), testCase, revision, body, requireUser(ctx).user);
         ctx.res.status(201).json(toMaskRevisionDto(draft));
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: `${caseBase}/diff`,
       access: { kind: 'project', permission: 'project.read' },
       summary: 'Check-by-check differences from ?base (default: the revision it was copied from, else the previous one)',
-      doc: { query: MaskDiffQuery, response: MaskDiff },
+      query: MaskDiffQuery,
+      response: MaskDiff,
       async handle(ctx) {
         const { testCase, revision } = await revisionOf(ctx);
-        const { base } = parseWith(MaskDiffQuery, ctx.req.query, 'query');
+        const { base } = ctx.query;
         ctx.res.json(await workflow.diff(ctx.em, testCase, revision, base));
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: `${caseBase}/history`,
       access: { kind: 'project', permission: 'project.read' },
       summary: "A revision's transitions (who, when, from, to, comment), oldest first",
-      doc: { response: MaskHistory },
+      response: MaskHistory,
       async handle(ctx) {
         const { testCase, revision } = await revisionOf(ctx);
         ctx.res.json(await workflow.history(ctx.em, requireProject(ctx), testCase, revision));
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/api/projects/:project/audit',
       access: { kind: 'project', permission: 'audit.read' },
       summary: "The project's audit log, newest first, filtered by actor, action and entity",
-      doc: { query: ProjectAuditQuery, response: ProjectAuditPage },
+      query: ProjectAuditQuery,
+      response: ProjectAuditPage,
       async handle(ctx) {
-        const q = parseWith(ProjectAuditQuery, ctx.req.query, 'query');
+        const q = ctx.query;
         ctx.res.json(await workflow.projectAudit(ctx.em, requireProject(ctx), q));
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: '/api/projects/:project/findings/:id/waivers',
       access: { kind: 'project', permission: 'waiver.request' },
       summary: "Ask for a waiver of a finding's check until a date; the project's QA managers are mailed",
-      doc: { body: RequestWaiverRequest, response: WaiverDto, status: 201 },
+      params: IdParams,
+      body: RequestWaiverRequest,
+      response: WaiverDto,
+      status: 201,
       async handle(ctx) {
-        const { id } = parseWith(IdParams, ctx.req.params, 'params');
-        const body = parseWith(RequestWaiverRequest, ctx.req.body, 'body');
+        const { id } = ctx.params;
+        const body = ctx.body;
         const { waiver, mailed } = await waivers.request(ctx.em, requireProject(ctx), id, body, requireUser(ctx).user);
         await sendMail(ctx, mailed);
         ctx.res.status(201).json(toWaiverDto(waiver));
       },
-    },
-    {
+    }),
+    route({
       method: 'get',
       path: '/api/projects/:project/waivers',
       access: { kind: 'project', permission: 'project.read' },
       summary: "The project's waivers, newest first (?state=requested|approved|rejected|expired|revoked|active)",
-      doc: { query: WaiverListQuery, response: WaiverList },
+      query: WaiverListQuery,
+      response: WaiverList,
       async handle(ctx) {
-        const q = parseWith(WaiverListQuery, ctx.req.query, 'query');
+        const q = ctx.query;
         ctx.res.json({ items: (await waivers.list(ctx.em, requireProject(ctx), q)).map(toWaiverDto) });
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: '/api/projects/:project/waivers/:id/approve',
       access: { kind: 'project', permission: 'mask.approve' },
       summary: 'Approve a waiver (not your own request); its finding becomes an accepted deviation',
-      doc: { body: WaiverDecisionRequest, response: WaiverDto },
+      params: IdParams,
+      body: WaiverDecisionRequest,
+      response: WaiverDto,
       async handle(ctx) {
-        const { id } = parseWith(IdParams, ctx.req.params, 'params');
-        const { comment } = parseWith(WaiverDecisionRequest, ctx.req.body, 'body');
+        const { id } = ctx.params;
+        const { comment } = ctx.body;
         const waiver = await waivers.approve(ctx.em, requireProject(ctx), id, requireUser(ctx).user, comment);
         await sendMail(ctx, 1);
         ctx.res.json(toWaiverDto(waiver));
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: '/api/projects/:project/waivers/:id/reject',
       access: { kind: 'project', permission: 'mask.approve' },
       summary: 'Reject a waiver (not your own request), with a comment that says why',
-      doc: { body: WaiverRejectRequest, response: WaiverDto },
+      params: IdParams,
+      body: WaiverRejectRequest,
+      response: WaiverDto,
       async handle(ctx) {
-        const { id } = parseWith(IdParams, ctx.req.params, 'params');
-        const { comment } = parseWith(WaiverRejectRequest, ctx.req.body, 'body');
+        const { id } = ctx.params;
+        const { comment } = ctx.body;
         const waiver = await waivers.reject(ctx.em, requireProject(ctx), id, requireUser(ctx).user, comment);
         await sendMail(ctx, 1);
         ctx.res.json(toWaiverDto(waiver));
       },
-    },
+    }),
   ];
 }

@@ -1,7 +1,7 @@
 import { CreateMaskRevisionRequest, MaskDecisionRequest, MaskRevisionDto, TestCaseKey } from '@earmark/contracts';
 import { z } from 'zod';
 import { type CatalogService, type MaskService, parseWith, toMaskRevisionDto } from '@earmark/domain';
-import { requireProject, requireUser, type RouteContext, type RouteDef } from '../http/route.js';
+import { requireProject, requireUser, type RouteContext, route, type RouteDef } from '../http/route.js';
 
 const CaseParams = z.object({ caseKey: TestCaseKey });
 const RevisionParams = CaseParams.extend({ revision: z.coerce.number().int().min(1) });
@@ -12,41 +12,45 @@ export function maskRoutes(masks: MaskService, catalog: CatalogService): RouteDe
     return catalog.getTestCase(ctx.em, requireProject(ctx), caseKey);
   };
   return [
-    {
+    route({
       method: 'get',
       path: '/api/projects/:project/test-cases/:caseKey/masks',
       access: { kind: 'project', permission: 'project.read' },
       summary: "A test case's mask revisions, newest first",
-      doc: { response: z.object({ items: z.array(MaskRevisionDto) }) },
+      response: z.object({ items: z.array(MaskRevisionDto) }),
       async handle(ctx) {
         ctx.res.json({ items: (await masks.list(ctx.em, await testCaseOf(ctx))).map(toMaskRevisionDto) });
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: '/api/projects/:project/test-cases/:caseKey/masks',
       access: { kind: 'project', permission: 'mask.draft' },
       summary: 'Draft a new mask revision (checks validated as a mask document)',
-      doc: { body: CreateMaskRevisionRequest, response: MaskRevisionDto, status: 201 },
+      body: CreateMaskRevisionRequest,
+      response: MaskRevisionDto,
+      status: 201,
       async handle(ctx) {
-        const body = parseWith(CreateMaskRevisionRequest, ctx.req.body, 'body');
+        const body = ctx.body;
         const draft = await masks.createDraft(ctx.em, requireProject(ctx), await testCaseOf(ctx), body, requireUser(ctx).user);
         ctx.res.status(201).json(toMaskRevisionDto(await masks.get(ctx.em, draft.testCase, draft.revision)));
       },
-    },
-    {
+    }),
+    route({
       method: 'post',
       path: '/api/projects/:project/test-cases/:caseKey/masks/:revision/approve',
       access: { kind: 'project', permission: 'mask.approve' },
       summary: 'Approve a revision in review or a draft (not your own), with an optional comment; it replaces the revision in force',
-      doc: { body: MaskDecisionRequest, response: MaskRevisionDto },
+      params: RevisionParams,
+      body: MaskDecisionRequest,
+      response: MaskRevisionDto,
       async handle(ctx) {
-        const { revision } = parseWith(RevisionParams, ctx.req.params, 'params');
-        const { comment } = parseWith(MaskDecisionRequest, ctx.req.body, 'body');
+        const { revision } = ctx.params;
+        const { comment } = ctx.body;
         const testCase = await testCaseOf(ctx);
         await masks.approve(ctx.em, requireProject(ctx), testCase, revision, requireUser(ctx).user, comment);
         ctx.res.json(toMaskRevisionDto(await masks.get(ctx.em, testCase, revision)));
       },
-    },
+    }),
   ];
 }
