@@ -91,6 +91,24 @@ describe('dashboard in the browser', () => {
     await page.close();
   });
 
+  it("shows each build's status in the builds table as the API reports it", async () => {
+    const res = await fetch(`${stack.url}/api/v1/projects/kestrel-buds/builds?pageSize=50`, { headers: { authorization: `Bearer ${stack.ciToken}` } });
+    const api = ((await res.json()) as { items: { sha: string; status: string }[] }).items;
+    expect(api.map((b) => b.status)).toContain('error');
+    const label: Record<string, string> = { pass: 'Pass', fail: 'Fail', error: 'Error', pending: 'Pending', running: 'Running' };
+    const page = await pageAs('viewer@fernwick.test');
+    await page.goto(`${stack.url}/projects/kestrel-buds/builds`);
+    const table = page.getByRole('table', { name: 'Builds' });
+    await table.locator(`tr[data-sha="${api[0]!.sha}"]`).waitFor();
+    const headers = await table.getByRole('columnheader').allTextContents();
+    const column = headers.findIndex((h) => h.startsWith('Status'));
+    expect(column).toBeGreaterThanOrEqual(0);
+    const shown: Record<string, string> = {};
+    for (const b of api) shown[b.sha] = ((await table.locator(`tr[data-sha="${b.sha}"] td`).nth(column).textContent()) ?? '').trim();
+    expect(shown).toEqual(Object.fromEntries(api.map((b) => [b.sha, label[b.status]])));
+    await page.close();
+  });
+
   it('assigns and comments on a finding from the capture page', async () => {
     const page = await pageAs('engineer@fernwick.test');
     await page.goto(`${stack.url}/projects/kestrel-buds/builds/d19b3f8e44`);
@@ -137,7 +155,7 @@ describe('dashboard in the browser', () => {
     await page.getByRole('dialog').getByRole('button', { name: 'Revoke' }).click();
     await row.getByText(/Revoked/).waitFor();
     const refused = await runCli([...args, '--sha', 'abc0e2e002'], env);
-    expect(refused.code).toBe(2);
+    expect(refused.code).toBe(3); // a problem answer from the server: could not finish, not a verdict
     expect(refused.out).toMatch(/revoked/i);
     await page.close();
   });

@@ -1,9 +1,10 @@
-import { Build, MaskRevision, Target, TestCase, TEST_PASSWORD } from '@earmark/db';
+import { Build, MaskRevision, Target, TestCase, TEST_PASSWORD, testCaseSettings } from '@earmark/db';
 import { CapturePlot, StimulusSpec, type BuildMatrix, type BuildsPage, type CaptureDetail, type CaptureDto, type FindingsPage, type MaskCheckInput } from '@earmark/contracts';
 import { decodeWav, encodeWav, stimulusAsPlayed } from '@earmark/dsp';
 import { applyBiquad, delay, peakingEqCoefficients } from '@earmark/dsp/testing';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startStack, type Stack } from '../support/stack.js';
+import { waitFor } from '../support/wait-for.js';
 
 /** The dashboard's reads over verdicts made by the real worker. */
 let stack: Stack;
@@ -29,12 +30,13 @@ async function submit(sha: string, branch: string, samples: Float64Array): Promi
     body: Buffer.from(encodeWav([samples], FS, { encoding: 'float', bitsPerSample: 32 })),
   });
   const capture = (await res.json()) as CaptureDto;
-  for (const deadline = Date.now() + 30_000; ; ) {
-    const now = (await call<CaptureDto>(`/api/v1/captures/${capture.id}`, { token: stack.ciToken })).body;
-    if (now.verdict) return now;
-    if (Date.now() > deadline) throw new Error('no verdict');
-    await new Promise((r) => setTimeout(r, 150));
-  }
+  return waitFor(
+    async () => {
+      const now = (await call<CaptureDto>(`/api/v1/captures/${capture.id}`, { token: stack.ciToken })).body;
+      return now.verdict ? now : null;
+    },
+    { what: `a verdict for capture ${capture.id} of ${sha}`, timeoutMs: 30_000, intervalMs: 150 },
+  );
 }
 
 let passing: CaptureDto;
@@ -45,7 +47,7 @@ beforeAll(async () => {
   const project = stack.fixture.project.id;
   em.create(Target, { project, key: 'board', name: 'Board', sampleRate: FS });
   const eq = em.create(TestCase, { project, key: 'eq', name: 'EQ sweep', stimulus: spec });
-  em.create(MaskRevision, { testCase: eq, revision: 1, state: 'approved', checks: mask, author: stack.fixture.users.engineer.id });
+  em.create(MaskRevision, { testCase: eq, revision: 1, state: 'approved', checks: mask, settings: testCaseSettings(eq), author: stack.fixture.users.engineer.id });
   await em.flush();
   await stack.startWorker();
   const login = await fetch(`${stack.url}/api/auth/login`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email: 'engineer@example.test', password: TEST_PASSWORD }) });
@@ -63,7 +65,7 @@ describe('dashboard API', () => {
     const first = (await call<BuildsPage>('/api/projects/alpha-dsp/builds?pageSize=5')).body;
     expect(first.total).toBe(14);
     expect(first.items.map((b) => b.sha).slice(0, 2)).toEqual(['2222bbb', '1111aaa']);
-    expect(first.items[0]!.counts).toEqual({ pass: 0, fail: 1, error: 0, pending: 0 });
+    expect(first.items[0]!.counts).toEqual({ pass: 0, fail: 1, error: 0, pending: 0, waived: 0 });
     const third = (await call<BuildsPage>('/api/projects/alpha-dsp/builds?pageSize=5&page=3')).body;
     expect(third.items).toHaveLength(4);
     const main = (await call<BuildsPage>('/api/projects/alpha-dsp/builds?branch=main&sort=createdAt')).body;
@@ -113,12 +115,14 @@ describe('dashboard API', () => {
     expect(plot.waveform.seconds.length).toBeLessThanOrEqual(512);
 
     // The answer is cached in the object store under a key naming what it depends on.
-    let keys: string[] = [];
     // Written after the answer, without holding it up: wait for it briefly.
-    for (const deadline = Date.now() + 5000; keys.length === 0 && Date.now() < deadline; ) {
-      keys = await stack.objectStore.list(`plot-cache/${failing.id}/`);
-      if (keys.length === 0) await new Promise((r) => setTimeout(r, 50));
-    }
+    const keys = await waitFor(
+      async () => {
+        const listed = await stack.objectStore.list(`plot-cache/${failing.id}/`);
+        return listed.length ? listed : null;
+      },
+      { what: `the plot cache entry of capture ${failing.id}`, timeoutMs: 5000, intervalMs: 50 },
+    );
     expect(keys).toHaveLength(1);
     expect(keys[0]).toContain(`-${passing.id}.json`);
     const again = await call<unknown>(`/api/projects/alpha-dsp/captures/${failing.id}/plot?columns=512`);

@@ -1,10 +1,11 @@
-import { Build, MaskRevision, Notification, TEST_PASSWORD, Target, TestCase, Verdict } from '@earmark/db';
+import { Build, MaskRevision, Notification, TEST_PASSWORD, Target, TestCase, Verdict, testCaseSettings } from '@earmark/db';
 import { StimulusSpec, type BuildMatrix, type CaptureDto, type DriftResponse, type ImpactRunDto, type MaskCheckInput } from '@earmark/contracts';
 import { ENGINE_VERSION, encodeWav, generateStimulus } from '@earmark/dsp';
 import { applyBiquad, peakingEqCoefficients } from '@earmark/dsp/testing';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startStack, type Stack } from '../support/stack.js';
 import type { WorkerProcess } from '../support/worker-process.js';
+import { waitFor } from '../support/wait-for.js';
 
 /**
  * Impact of draft masks on a seeded history, re-evaluation under an approved revision, and
@@ -54,13 +55,7 @@ async function submit(sha: string, branch: string, gainDb: number): Promise<Capt
 }
 
 async function until<T>(what: string, probe: () => Promise<T | null | undefined>, timeoutMs = 60_000): Promise<T> {
-  const deadline = Date.now() + timeoutMs;
-  for (;;) {
-    const value = await probe();
-    if (value) return value;
-    if (Date.now() > deadline) throw new Error(`${what} did not happen within ${timeoutMs} ms; worker said:\n${worker.output.join('').slice(-3000)}`);
-    await new Promise((r) => setTimeout(r, 200));
-  }
+  return waitFor(probe, { what, timeoutMs, intervalMs: 200, context: () => `worker said:\n${worker.output.join('').slice(-3000)}` });
 }
 
 const verdictOf = (id: string, revision?: number) =>
@@ -93,9 +88,10 @@ beforeAll(async () => {
   em.create(Target, { project: project.id, key: 'board', name: 'Board', sampleRate: FS });
   const eq = em.create(TestCase, { project: project.id, key: 'eq.sweep', name: 'EQ sweep', stimulus: spec });
   const author = stack.fixture.users.engineer.id;
-  em.create(MaskRevision, { testCase: eq, revision: 1, state: 'approved', checks: envelope(1.5), author, reviewer: stack.fixture.users.qa_manager.id });
-  em.create(MaskRevision, { testCase: eq, revision: 2, checks: envelope(0.75), author, note: 'tighter' });
-  em.create(MaskRevision, { testCase: eq, revision: 3, checks: envelope(2.5), author, note: 'looser' });
+  const settings = testCaseSettings(eq);
+  em.create(MaskRevision, { testCase: eq, revision: 1, state: 'approved', checks: envelope(1.5), settings, author, reviewer: stack.fixture.users.qa_manager.id });
+  em.create(MaskRevision, { testCase: eq, revision: 2, checks: envelope(0.75), settings, author, note: 'tighter' });
+  em.create(MaskRevision, { testCase: eq, revision: 3, checks: envelope(2.5), settings, author, note: 'looser' });
   await em.flush();
   worker = await stack.startWorker();
   userToken = await login('engineer@example.test');
@@ -243,12 +239,15 @@ describe('drift', () => {
     expect((await matrix('d000004')).drift!.map((f) => f.checkId)).toEqual(['response']);
     expect((await matrix('d000003')).drift).toEqual([]);
 
-    // One mail per subscribed member (the engineer), for d000004 only.
+    // One mail per subscribed member (engineer and QA manager by default; not the viewer), for d000004 only.
     const mails = await until('drift mail', async () => {
-      const rows = await stack.orm.em.fork().find(Notification, { kind: 'drift' });
+      const rows = await stack.orm.em.fork().find(Notification, { kind: 'drift' }, { orderBy: { recipient: 'asc' } });
       return rows.length ? rows : null;
     });
-    expect(mails.map((m) => [m.recipient, m.payload.sha, m.payload.checkId])).toEqual([['engineer@example.test', 'd000004', 'response']]);
+    expect(mails.map((m) => [m.recipient, m.payload.sha, m.payload.checkId])).toEqual([
+      ['engineer@example.test', 'd000004', 'response'],
+      ['qa_manager@example.test', 'd000004', 'response'],
+    ]);
     expect(mails[0]!.body).toContain('shrank by');
   });
 });

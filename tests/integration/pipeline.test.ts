@@ -1,4 +1,4 @@
-import { Capture, MaskRevision, Notification, Target, TestCase, Verdict } from '@earmark/db';
+import { Capture, MaskRevision, Notification, Target, TestCase, Verdict, testCaseSettings } from '@earmark/db';
 import { StimulusSpec, type CaptureDto, type MaskCheckInput } from '@earmark/contracts';
 import { encodeWav, generateStimulus } from '@earmark/dsp';
 import { applyBiquad, applyFir, clip, delay, lowPassBiquadCoefficients, peakingEqCoefficients, scaleDb, windowedSincLowPass } from '@earmark/dsp/testing';
@@ -7,6 +7,7 @@ import { fileURLToPath } from 'node:url';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startStack, type Stack } from '../support/stack.js';
 import type { WorkerProcess } from '../support/worker-process.js';
+import { waitFor } from '../support/wait-for.js';
 
 /**
  * The main job end to end: CI uploads captures over the API, the object lands in the S3
@@ -41,14 +42,16 @@ async function submit(sha: string, testCase: string, samples: Float64Array): Pro
   return JSON.parse(res.text) as CaptureDto;
 }
 
+const workerSaid = (chars = 3000) => () => `worker said:\n${worker.output.join('').slice(-chars)}`;
+
 async function verdictOf(id: string, timeoutMs = 30_000): Promise<CaptureDto> {
-  const deadline = Date.now() + timeoutMs;
-  for (;;) {
-    const capture = JSON.parse((await api('GET', `/api/v1/captures/${id}`)).text) as CaptureDto;
-    if (capture.verdict) return capture;
-    if (Date.now() > deadline) throw new Error(`no verdict for ${id} within ${timeoutMs} ms; worker said:\n${worker.output.join('').slice(-3000)}`);
-    await new Promise((r) => setTimeout(r, 150));
-  }
+  return waitFor(
+    async () => {
+      const capture = JSON.parse((await api('GET', `/api/v1/captures/${id}`)).text) as CaptureDto;
+      return capture.verdict ? capture : null;
+    },
+    { what: `a verdict for capture ${id}`, timeoutMs, intervalMs: 150, context: workerSaid() },
+  );
 }
 
 const check = (c: CaptureDto, id: string) => c.verdict!.checks.find((x) => x.id === id)!;
@@ -65,8 +68,8 @@ beforeAll(async () => {
   em.create(Target, { project: project.id, key: 'board', name: 'Board', sampleRate: FS });
   const eq = em.create(TestCase, { project: project.id, key: 'eq.sweep', name: 'EQ sweep', stimulus: sweepSpec });
   const phase = em.create(TestCase, { project: project.id, key: 'phase.sweep', name: 'Phase sweep', stimulus: sweepSpec });
-  em.create(MaskRevision, { testCase: eq, revision: 1, state: 'approved', checks: responseMask, author: stack.fixture.users.engineer.id, reviewer: stack.fixture.users.qa_manager.id });
-  em.create(MaskRevision, { testCase: phase, revision: 1, state: 'approved', checks: phaseMask, author: stack.fixture.users.engineer.id, reviewer: stack.fixture.users.qa_manager.id });
+  em.create(MaskRevision, { testCase: eq, revision: 1, state: 'approved', checks: responseMask, settings: testCaseSettings(eq), author: stack.fixture.users.engineer.id, reviewer: stack.fixture.users.qa_manager.id });
+  em.create(MaskRevision, { testCase: phase, revision: 1, state: 'approved', checks: phaseMask, settings: testCaseSettings(phase), author: stack.fixture.users.engineer.id, reviewer: stack.fixture.users.qa_manager.id });
   await em.flush();
   worker = await stack.startWorker();
 }, 120_000);
@@ -83,6 +86,8 @@ describe('capture → verdict', () => {
     expect(clean.verdict!.outcome, JSON.stringify(clean.verdict)).toBe('pass');
     expect(clean.verdict!.engineVersion).toMatch(/^\d+\.\d+\.\d+$/);
     expect(clean.verdict!.maskRevision).toBe(1);
+    // The worker records the settings it judged with: revision 1's, with the schema's defaults filled in.
+    expect(clean.verdict!.settings).toEqual({ stimulus: sweepSpec, analysis: {}, channelMap: [] });
     expect(check(clean, 'parseval').pass).toBe(true);
     expect(check(clean, 'response').margin!).toBeGreaterThan(0.5);
   });
@@ -135,7 +140,7 @@ describe('capture → verdict', () => {
     expect(passing.status).toBe('pass');
     const failing = JSON.parse((await api('GET', '/api/v1/projects/alpha-dsp/builds/bbbb002')).text);
     expect(failing.status).toBe('fail');
-    expect(failing.counts).toEqual({ pass: 0, fail: 3, error: 0, pending: 0 });
+    expect(failing.counts).toEqual({ pass: 0, fail: 3, error: 0, pending: 0, waived: 0 });
 
     const xml = (await api('GET', '/api/v1/projects/alpha-dsp/builds/bbbb002/junit.xml')).text;
     const parsed = new XMLParser({ ignoreAttributes: false }).parse(xml);
@@ -150,20 +155,23 @@ describe('capture → verdict', () => {
     expect(JSON.stringify(envelopeFailure.failure)).toMatch(/Hz/);
   });
 
-  it('opens one finding per failing check and e-mails the subscribed engineer once', async () => {
+  it('opens one finding per failing check and e-mails each subscriber (engineer and QA manager by default) once', async () => {
     const em = stack.orm.em.fork();
     const findings = await em.getConnection().execute<{ check_id: string }[]>(`select check_id from finding order by check_id`);
     expect(findings.map((f) => f.check_id)).toEqual(expect.arrayContaining(['clipping', 'level', 'response', 'phase']));
-    const deadline = Date.now() + 15_000;
-    let mails = await inbox();
-    while (mails.filter((m) => m.subject.includes('bbbb002')).length === 0 && Date.now() < deadline) {
-      await new Promise((r) => setTimeout(r, 200));
-      mails = await inbox();
-    }
+    const mails = await waitFor(
+      async () => {
+        const all = await inbox();
+        return all.filter((m) => m.subject.includes('bbbb002')).length >= 2 ? all : null;
+      },
+      { what: "two build-failed mails for bbbb002 in the SMTP fake's inbox", timeoutMs: 15_000, intervalMs: 200, context: workerSaid() },
+    );
     const failedMail = mails.filter((m) => m.subject.includes('bbbb002'));
-    expect(failedMail).toHaveLength(1); // the build turned failed once
-    expect(failedMail[0]!.to[0]!.address).toBe('engineer@example.test');
+    // The build's status was final (and failing) once; the viewer is not subscribed.
+    expect(failedMail.map((m) => m.to[0]!.address).sort()).toEqual(['engineer@example.test', 'qa_manager@example.test']);
     expect(failedMail[0]!.text).toContain('/projects/alpha-dsp/builds/bbbb002');
+    expect(failedMail[0]!.text).toContain('eq.sweep on board');
+    expect(failedMail[0]!.text, failedMail[0]!.text).toMatch(/Flat ±1 dB \(response\): measured [\d.]+ dB, limit 1 dB, margin −[\d.]+ dB, worst at \d+ Hz/);
   });
 });
 
@@ -173,11 +181,11 @@ describe('failure and recovery', () => {
     const slow = await stack.startWorker({ EARMARK_ANALYSIS_DELAY_MS: '60000' });
     const submitted = await submit('dddd004', 'eq.sweep', delay(stimulus, LATENCY));
     const em = stack.orm.em.fork();
-    const deadline = Date.now() + 20_000;
-    while ((await em.fork().findOneOrFail(Capture, { id: submitted.id })).status !== 'analysing') {
-      if (Date.now() > deadline) throw new Error('analysis never started');
-      await new Promise((r) => setTimeout(r, 100));
-    }
+    await waitFor(async () => (await em.fork().findOneOrFail(Capture, { id: submitted.id })).status === 'analysing', {
+      what: `the slow worker to start analysing capture ${submitted.id}`,
+      timeoutMs: 20_000,
+      context: workerSaid(),
+    });
     await slow.kill();
     worker = await stack.startWorker();
     const judged = await verdictOf(submitted.id, 60_000);
@@ -191,22 +199,26 @@ describe('failure and recovery', () => {
     const failed = await verdictOf((await submit('eeee005', 'eq.sweep', bumped)).id);
     expect(failed.verdict!.outcome).toBe('fail');
     const em = stack.orm.em.fork();
-    const pending = await em.find(Notification, { subject: { $like: '%eeee005%' } });
-    expect(pending).toHaveLength(1);
+    const pending = await em.find(Notification, { subject: { $like: '%eeee005%' } }, { orderBy: { recipient: 'asc' } });
+    expect(pending.map((n) => n.recipient)).toEqual(['engineer@example.test', 'qa_manager@example.test']);
     // Give the worker time to try (and fail) at least once.
-    const tried = Date.now() + 10_000;
-    while ((await em.fork().findOneOrFail(Notification, { id: pending[0]!.id })).attempts === 0 && Date.now() < tried) await new Promise((r) => setTimeout(r, 200));
+    await waitFor(async () => (await em.fork().find(Notification, { id: { $in: pending.map((n) => n.id) } })).some((n) => n.attempts > 0), {
+      what: 'the worker to try (and fail) to send the eeee005 mail',
+      timeoutMs: 10_000,
+      intervalMs: 200,
+      context: workerSaid(),
+    });
     expect((await em.fork().findOneOrFail(Notification, { id: pending[0]!.id })).state).toBe('pending');
 
     await stack.smtp.restart();
-    const deadline = Date.now() + 30_000;
-    for (;;) {
-      const mails = await inbox().catch(() => []);
-      if (mails.some((m) => m.subject.includes('eeee005'))) break;
-      if (Date.now() > deadline) throw new Error(`mail not delivered after the SMTP fake returned; worker said:\n${worker.output.join('').slice(-2000)}`);
-      await new Promise((r) => setTimeout(r, 300));
-    }
-    expect((await em.fork().findOneOrFail(Notification, { id: pending[0]!.id })).state).toBe('sent');
+    await waitFor(
+      async () => {
+        const mails = await inbox().catch(() => []);
+        const sent = await em.fork().count(Notification, { id: { $in: pending.map((n) => n.id) }, state: 'sent' });
+        return mails.filter((m) => m.subject.includes('eeee005')).length === 2 && sent === 2;
+      },
+      { what: 'both eeee005 mails delivered after the SMTP fake returned', timeoutMs: 30_000, intervalMs: 300, context: workerSaid(2000) },
+    );
   });
 });
 

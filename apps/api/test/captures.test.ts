@@ -1,4 +1,4 @@
-import { Capture, Target, TestCase, ApiToken } from '@earmark/db';
+import { Build, Capture, Target, TestCase, ApiToken } from '@earmark/db';
 import { generateTokenSecret } from '@earmark/platform';
 import { QUEUES, RAW_FLOAT32_MEDIA_TYPE } from '@earmark/contracts';
 import { decodeWav, encodeWav, generateStimulus } from '@earmark/dsp';
@@ -37,6 +37,8 @@ beforeAll(async () => {
   const em = api.orm.em.fork();
   const { project, otherProject, users } = api.fixture;
   em.create(TestCase, { project: project.id, key: 'tone.997', name: 'tone', stimulus: { kind: 'sine', sampleRate: 48000, seconds: 0.1, frequency: 997, levelDbfs: -12 } });
+  em.create(TestCase, { project: project.id, key: 'tone.44k', name: 'tone at 44.1 kHz', stimulus: { kind: 'sine', sampleRate: 44100, seconds: 0.1, frequency: 997, levelDbfs: -12 } });
+  em.create(TestCase, { project: project.id, key: 'stereo.997', name: 'stereo tone', stimulus: { kind: 'sine', sampleRate: 48000, seconds: 0.1, frequency: 997, levelDbfs: -12 }, channelMap: [0, 2] });
   em.create(Target, { project: project.id, key: 'board-a', name: 'Board A', sampleRate: 48000 });
   em.create(Target, { project: project.id, key: 'board-b', name: 'Board B', sampleRate: 96000 });
   const secret = generateTokenSecret();
@@ -106,6 +108,25 @@ describe('uploading a capture', () => {
   });
 });
 
+describe('parallel first uploads to a new commit', () => {
+  it('all 16 answer 202 and share one build holding 16 captures', async () => {
+    const sha = 'fe11a1e1';
+    const sends = Array.from({ length: 16 }, (_, i) =>
+      fetch(`${api.baseUrl}/api/v1/projects/alpha-dsp/builds/${sha}/captures?testCase=tone.997&target=board-a`, {
+        method: 'POST',
+        headers: { authorization: `Bearer ${token}`, 'content-type': 'audio/wav' },
+        body: wav([tone(480 + i)]),
+      }).then(async (res) => ({ status: res.status, text: await res.text() })),
+    );
+    const answers = await Promise.all(sends);
+    expect(answers.filter((a) => a.status !== 202)).toEqual([]);
+    const em = api.orm.em.fork();
+    const builds = await em.find(Build, { project: api.fixture.project.id, sha });
+    expect(builds).toHaveLength(1);
+    expect(await em.count(Capture, { build: builds[0]!.id })).toBe(16);
+  });
+});
+
 describe('bad uploads get a clear 4xx and store nothing', () => {
   const riff = (fmtTag: number, channels: number, bits = 16) => {
     const good = wav([tone(100)], 48000, { bitsPerSample: 16 });
@@ -121,7 +142,7 @@ describe('bad uploads get a clear 4xx and store nothing', () => {
     return Buffer.from(f.buffer);
   };
 
-  const cases: { name: string; status: number; send: () => Promise<{ status: number; body: any }>; detail: RegExp }[] = [
+  const cases: { name: string; status: number; send: () => Promise<{ status: number; body: any }>; detail: RegExp; code?: string }[] = [
     { name: 'a truncated WAV', status: 422, send: () => upload(wav([tone()]).subarray(0, 30)), detail: /truncat|shorter|incomplete|header/i },
     { name: 'an unsupported format code', status: 422, send: () => upload(riff(0x55, 1)), detail: /format/i },
     { name: 'zero channels', status: 422, send: () => upload(riff(1, 0)), detail: /channel/i },
@@ -133,16 +154,54 @@ describe('bad uploads get a clear 4xx and store nothing', () => {
     { name: 'an unknown target', status: 422, send: () => upload(wav([tone()]), { query: '?testCase=tone.997&target=nope' }), detail: /no target nope/ },
     { name: 'no target when the project has several', status: 422, send: () => upload(wav([tone()]), { query: '?testCase=tone.997' }), detail: /several targets/ },
     { name: 'a sample rate the target does not run at', status: 422, send: () => upload(wav([tone()], 44100), { query: '?testCase=tone.997&target=board-b' }), detail: /44100 Hz.*96000 Hz/ },
+    {
+      name: "a sample rate other than the test case's stimulus",
+      status: 422,
+      send: () => upload(wav([tone()]), { query: '?testCase=tone.44k&target=board-a' }),
+      detail: /^The capture is sampled at 48000 Hz but test case tone\.44k's stimulus is rendered at 44100 Hz\.$/,
+      code: 'sample-rate-mismatch',
+    },
+    {
+      name: 'fewer channels than the channel map reads',
+      status: 422,
+      send: () => upload(wav([tone(), tone()]), { query: '?testCase=stereo.997&target=board-a' }),
+      detail: /^The capture has 2 channels but test case stereo\.997's channel map \[0, 2\] reads channel 2 \(counting from 0\), so it needs at least 3\.$/,
+      code: 'channel-count-mismatch',
+    },
     { name: 'an unsupported media type', status: 415, send: () => upload(Buffer.from('hello'), { headers: { 'content-type': 'text/plain' } }), detail: /audio\/wav/ },
     { name: "another project's token", status: 403, send: () => upload(wav([tone()]), { as: foreignToken }), detail: /beta-dsp/ },
   ];
 
-  it.each(cases)('$name → $status', async ({ status, send, detail }) => {
+  it.each(cases)('$name → $status', async ({ status, send, detail, code }) => {
     const before = await storedState();
     const res = await send();
     expect(res.status).toBe(status);
     expect(res.body.detail).toMatch(detail);
+    if (code) expect(res.body.code).toBe(code);
     expect(await storedState()).toEqual(before);
+  });
+
+  it('accepts a capture with exactly the channels the channel map reads', async () => {
+    const res = await upload(wav([tone(), tone(), tone()]), { query: '?testCase=stereo.997&target=board-a' });
+    expect(res.status).toBe(202);
+    expect(res.body.channels).toBe(3);
+  });
+
+  it("words a malformed WAV's problem detail for the uploader, naming no internal function", async () => {
+    const notWav = await upload(Buffer.from('ID3\u0003 not a wave file at all'));
+    expect(notWav.status).toBe(422);
+    expect(notWav.body.code).toBe('not-riff');
+    expect(notWav.body.detail).toBe('The file is not a WAV file (a WAV file has the bytes "RIFF" at offset 0 and "WAVE" at offset 8).');
+    const whole = wav([tone()]);
+    const dataAt = whole.indexOf('data');
+    const declared = whole.readUInt32LE(dataAt + 4);
+    const cut = await upload(whole.subarray(0, whole.length - 1001));
+    expect(cut.status).toBe(422);
+    expect(cut.body.code).toBe('data-exceeds-file');
+    expect(cut.body.detail).toBe(
+      `The "data" chunk declares ${declared} bytes but only ${declared - 1001} follow; the file was truncated (an interrupted upload or a writer that never finalised the header).`,
+    );
+    for (const res of [notWav, cut]) expect(res.body.detail).not.toMatch(/^[a-z][A-Za-z0-9]*: |decodeWav|readRiffChunks/);
   });
 
   it('a revoked token → 401, nothing stored', async () => {

@@ -1,5 +1,5 @@
 import { DeriveMaskResponse, MaskCheck, StimulusSpec } from '@earmark/contracts';
-import { Build, Capture, MaskRevision, Target, TestCase } from '@earmark/db';
+import { Build, Capture, MaskRevision, Target, TestCase, testCaseSettings } from '@earmark/db';
 import { encodeWav, sampleLimit, stimulusAsPlayed } from '@earmark/dsp';
 import { mapChannels, scaleDb } from '@earmark/dsp/testing';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -96,7 +96,7 @@ describe('impact and re-evaluation requests', () => {
     expect((await api.request('POST', `${base}/9/impact`, { token: engineer, body: {} })).status).toBe(404);
     const em = api.orm.em.fork();
     const testCase = await em.findOneOrFail(TestCase, { key: 'eq.sweep' });
-    em.create(MaskRevision, { testCase, revision: 1, checks: [{ id: 'l', kind: 'level', metric: 'rms-dbfs', max: 0 }], author: api.fixture.users.engineer.id });
+    em.create(MaskRevision, { testCase, revision: 1, checks: [{ id: 'l', kind: 'level', metric: 'rms-dbfs', max: 0 }], settings: testCaseSettings(testCase), author: api.fixture.users.engineer.id });
     await em.flush();
     const started = await api.request('POST', `${base}/1/impact`, { token: engineer, body: { builds: 5 } });
     expect(started.status, started.text).toBe(202);

@@ -139,11 +139,12 @@ describe('four eyes', () => {
 
     const approve = await api.request('POST', `${base}/${rev}/approve`, { token: qa });
     expect(approve.status).toBe(403);
-    expect(approve.body.detail).toMatch(/approved by someone other than its author \(qa_manager@example\.test/);
+    expect(approve.body.detail).toBe(`A mask revision must be approved by someone who neither wrote nor edited it: qa_manager@example.test wrote revision ${rev}. Someone else must review it.`);
     const reject = await api.request('POST', `${base}/${rev}/reject`, { token: qa, body: { comment: 'my own' } });
     expect(reject.status).toBe(403);
-    expect(reject.body.detail).toMatch(/rejected by someone other than its author/);
+    expect(reject.body.detail).toMatch(/rejected by someone who neither wrote nor edited it: qa_manager@example\.test wrote/);
     const adminOwn = await draft(admin, [level]);
+    await api.request('POST', `${base}/${adminOwn}/submit`, { token: admin });
     expect((await api.request('POST', `${base}/${adminOwn}/approve`, { token: admin })).status).toBe(403);
 
     const other = await api.request('POST', `${base}/${rev}/reject`, { token: qa2, body: { comment: 'Second pair of eyes says no.' } });

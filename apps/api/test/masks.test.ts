@@ -26,13 +26,18 @@ describe('mask revisions', () => {
     expect(unknownKind.body.detail).toContain('body.checks.0.kind');
   });
 
-  it('lets a QA manager approve an engineer’s draft, never their own, and supersedes the revision in force', async () => {
+  it('lets a QA manager approve an engineer’s revision once its author submitted it, never their own, and supersedes the revision in force', async () => {
     const engineer = await api.login('engineer@example.test');
     const qa = await api.login('qa_manager@example.test');
     const first = await api.request('POST', base, { token: engineer, body: { checks } });
     expect(first.status).toBe(201);
     expect(first.body).toMatchObject({ revision: 1, state: 'draft', author: 'engineer@example.test', target: null });
 
+    // A draft is not approved directly: that would submit it on its author's behalf.
+    const early = await api.request('POST', `${base}/1/approve`, { token: qa });
+    expect(early.status).toBe(409);
+    expect(early.body.detail).toBe('Revision 1 is a draft; its author must submit it for review before it can be approved.');
+    expect((await api.request('POST', `${base}/1/submit`, { token: engineer })).status).toBe(200);
     expect((await api.request('POST', `${base}/1/approve`, { token: engineer })).status).toBe(403); // engineers cannot approve
     const approved = await api.request('POST', `${base}/1/approve`, { token: qa });
     expect(approved.status).toBe(200);
@@ -40,9 +45,10 @@ describe('mask revisions', () => {
 
     const own = await api.request('POST', base, { token: qa, body: { checks, note: 'tighter' } });
     expect(own.body.revision).toBe(2);
+    expect((await api.request('POST', `${base}/2/submit`, { token: qa })).status).toBe(200);
     const refused = await api.request('POST', `${base}/2/approve`, { token: qa });
     expect(refused.status).toBe(403);
-    expect(refused.body.detail).toMatch(/other than its author/);
+    expect(refused.body.detail).toMatch(/neither wrote nor edited it: qa_manager@example\.test wrote revision 2/);
 
     const admin = await api.login('admin@example.test');
     expect((await api.request('POST', `${base}/2/approve`, { token: admin })).status).toBe(200);

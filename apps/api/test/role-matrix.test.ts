@@ -35,6 +35,9 @@ const MATRIX: Record<string, Caller[] | typeof PUBLIC> = {
   'GET /api/projects/:project/members': PROJECT_READERS,
   'PUT /api/projects/:project/members': ADMIN,
   'DELETE /api/projects/:project/members/:userId': ADMIN,
+  // one's own build-mail setting: every member, viewers included
+  'GET /api/projects/:project/subscription': PROJECT_READERS,
+  'PUT /api/projects/:project/subscription': PROJECT_READERS,
   'GET /api/projects/:project/tokens': ADMIN,
   'POST /api/projects/:project/tokens': ADMIN,
   'DELETE /api/projects/:project/tokens/:tokenId': ADMIN,
@@ -84,6 +87,7 @@ const MATRIX: Record<string, Caller[] | typeof PUBLIC> = {
   'GET /api/projects/:project/waivers': PROJECT_READERS,
   'POST /api/projects/:project/waivers/:id/approve': ['qa_manager', 'admin'],
   'POST /api/projects/:project/waivers/:id/reject': ['qa_manager', 'admin'],
+  'POST /api/projects/:project/waivers/:id/revoke': ['qa_manager', 'admin'],
   // derivation, impact, drift
   'POST /api/projects/:project/test-cases/:caseKey/masks/derive': CONFIGURERS,
   'POST /api/projects/:project/test-cases/:caseKey/masks/:revision/impact': CONFIGURERS,

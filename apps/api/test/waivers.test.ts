@@ -90,10 +90,10 @@ describe('waivers', () => {
     expect(own.status).toBe(201);
     const approve = await api.request('POST', `/api/projects/alpha-dsp/waivers/${own.body.id}/approve`, { token: qa });
     expect(approve.status).toBe(403);
-    expect(approve.body.detail).toMatch(/approved by someone other than the person who requested it \(qa_manager@example\.test\)/);
+    expect(approve.body.detail).toBe('A waiver must be approved by someone who neither requested nor edited it: qa_manager@example.test requested it. Someone else must decide it.');
     const reject = await api.request('POST', `/api/projects/alpha-dsp/waivers/${own.body.id}/reject`, { token: qa, body: { comment: 'mine' } });
     expect(reject.status).toBe(403);
-    expect(reject.body.detail).toMatch(/rejected by someone other than the person who requested it/);
+    expect(reject.body.detail).toMatch(/rejected by someone who neither requested nor edited it: qa_manager@example\.test requested it/);
     expect((await api.request('POST', `/api/projects/alpha-dsp/waivers/${own.body.id}/approve`, { token: engineer })).status).toBe(403); // engineers never decide
     expect(await findingState('level')).toBe('open');
     expect((await api.request('POST', `/api/projects/alpha-dsp/waivers/${own.body.id}/approve`, { token: admin })).status).toBe(200);
@@ -123,5 +123,33 @@ describe('waivers', () => {
     expect(late.body.detail).toMatch(/has passed/);
     expect((await api.request('POST', '/api/projects/alpha-dsp/waivers/not-a-uuid/approve', { token: qa })).status).toBe(404);
     expect(await api.orm.em.fork().count(AuditEvent, { action: 'waiver.approve', subject: `waiver:${res.body.id}` })).toBe(0);
+  });
+});
+
+describe('accepted deviation only through a waiver', () => {
+  it('answers 422 when an engineer sets a finding to accepted_deviation directly, alone or in bulk, and changes nothing', async () => {
+    const em = api.orm.em.fork();
+    const capture = await em.findOneOrFail(Capture, { build: { sha: 'abc1234' } });
+    const finding = em.create(Finding, { project: api.fixture.project.id, capture, checkId: 'hum', title: 'hum: 50 Hz line over the floor' });
+    await em.flush();
+
+    const single = await api.request('PATCH', `/api/projects/alpha-dsp/findings/${finding.id}`, { token: engineer, body: { state: 'accepted_deviation' } });
+    expect(single.status, single.text).toBe(422);
+    expect(single.contentType).toContain('application/problem+json');
+    expect(single.body.detail).toMatch(/waiver/i);
+    expect(single.body.errors[0]).toMatchObject({ path: 'body.state' });
+
+    const bulk = await api.request('POST', '/api/projects/alpha-dsp/findings/bulk', { token: qa, body: { ids: [finding.id, findings.latency], state: 'accepted_deviation' } });
+    expect(bulk.status, bulk.text).toBe(422);
+    expect(bulk.body.detail).toMatch(/waiver/i);
+
+    const after = await api.orm.em.fork().find(Finding, { id: { $in: [finding.id, findings.latency!] } });
+    expect(after.map((f) => f.state)).toEqual(['open', 'open']);
+    expect(await api.orm.em.fork().count(AuditEvent, { action: 'finding.update', subject: `finding:${finding.id}` })).toBe(0);
+
+    // Other triage moves still work.
+    const investigating = await api.request('PATCH', `/api/projects/alpha-dsp/findings/${finding.id}`, { token: engineer, body: { state: 'investigating' } });
+    expect(investigating.status, investigating.text).toBe(200);
+    expect(investigating.body.state).toBe('investigating');
   });
 });

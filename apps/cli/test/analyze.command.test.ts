@@ -110,25 +110,31 @@ describe('earmark analyze', () => {
     for (const word of ['channel 0', 'level', 'noise floor', '1/3-octave bands', 'transfer (deconvolution)', 'latency', 'polarity normal', 'group delay', 'distortion vs frequency', 'steady part']) expect(table.stdout).toContain(word);
   });
 
-  it('a bad file exits 2 with one clear line on stderr and no stack unless --debug', async () => {
+  it('a bad file exits 3 with one clear line on stderr and no stack unless --debug', async () => {
     writeFileSync(join(dir, 'bad.wav'), 'this is not audio');
     const run = await earmark('analyze', join(dir, 'bad.wav'));
-    expect(run.code).toBe(2);
+    expect(run.code).toBe(3);
     expect(run.stdout).toBe('');
     const lines = run.stderr.trim().split('\n');
     expect(lines).toHaveLength(1);
     expect(lines[0]).toMatch(/^earmark: capture .*bad\.wav is not a readable WAV file/);
     const debug = await earmark('--debug', 'analyze', join(dir, 'bad.wav'));
-    expect(debug.code).toBe(2);
+    expect(debug.code).toBe(3);
     expect(debug.stderr).toMatch(/\n\s+at /);
   });
 
-  it('rejects a missing file, a channel that does not exist, and both reference kinds at once', async () => {
+  it('rejects a missing file, a channel that does not exist and both reference kinds at once: exit 3', async () => {
     const path = writeWav('short.wav', [sine(4800, 1000, 0.5)]);
     for (const args of [['missing.wav'], [path, '--channel', '3'], [path, '--reference', path, '--stimulus', 'x.json']]) {
       const run = await earmark('analyze', ...args);
-      expect(run.code).toBe(2);
+      expect(run.code).toBe(3);
       expect(run.stderr.trim().split('\n')).toHaveLength(1);
     }
+  });
+
+  it("a usage error (unknown option) exits 3: commander's line, then the help", async () => {
+    const usage = await earmark('analyze', 'any.wav', '--frobnicate');
+    expect(usage.code).toBe(3);
+    expect(usage.stderr).toMatch(/^error: unknown option '--frobnicate'\n/);
   });
 });

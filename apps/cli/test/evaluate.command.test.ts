@@ -100,23 +100,23 @@ describe('earmark evaluate', () => {
     expect(summary.checks[1]?.pass).toBe(false);
   });
 
-  it('a mask that breaks the schema exits 2 with one stderr line naming the path', async () => {
+  it('a mask that breaks the schema exits 3 (bad input, not a verdict) with one stderr line naming the path', async () => {
     const capture = wav('plain.wav', sweep);
     const bad = write('bad-mask.json', JSON.stringify({ checks: [{ id: 'flat', kind: 'magnitude-envelope', measure: 'transfer', upper: [{ hz: 1000, db: 1 }, { hz: 500, db: 1 }] }] }));
     const run = await earmark('evaluate', capture, '--mask', bad);
-    expect(run.code).toBe(2);
+    expect(run.code).toBe(3);
     expect(run.stdout).toBe('');
     const lines = run.stderr.trim().split('\n');
     expect(lines).toHaveLength(1);
     expect(lines[0]).toMatch(/^earmark: mask .*bad-mask\.json is invalid: checks\.0\.upper\.1\.hz: frequencies must strictly increase/);
   });
 
-  it('bad JSON, a missing capture and a missing --mask exit 2', async () => {
+  it('bad JSON, a missing capture and a missing --mask exit 3', async () => {
     const capture = wav('plain2.wav', sweep);
     const notJson = write('not-json.json', '{ checks: ');
     const runs = await Promise.all([[capture, '--mask', notJson], [join(dir, 'missing.wav'), '--mask', maskPath], [capture]].map((args) => earmark('evaluate', ...args)));
     for (const run of runs) {
-      expect(run.code).toBe(2);
+      expect(run.code).toBe(3);
       expect(run.stderr.trim().length).toBeGreaterThan(0);
     }
     expect(runs[0]?.stderr).toMatch(/^earmark: mask .*not-json\.json is not valid JSON/);

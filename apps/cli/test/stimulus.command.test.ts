@@ -99,9 +99,9 @@ describe.concurrent('earmark stimulus', { timeout: 30_000 }, () => {
     expect(Array.from(inv.channels[0] ?? [])).toEqual(Array.from(want, (v) => Math.fround(v)));
   });
 
-  it('exits 2 with one line naming the field for a bad spec, without a stack trace', async () => {
+  it('exits 3 with one line naming the field for a bad spec, without a stack trace', async () => {
     const r = await earmark('stimulus', '--kind', 'sine', '--frequency', '30000', '--seconds', '1', '-o', 'bad.wav');
-    expect(r.code).toBe(2);
+    expect(r.code).toBe(3);
     expect(r.stderr.trim().split('\n')).toHaveLength(1);
     expect(r.stderr).toMatch(/^earmark: invalid stimulus spec: frequency: frequency must be below half the sample rate/);
     expect(r.stderr).not.toMatch(/\n\s+at /);
@@ -109,12 +109,12 @@ describe.concurrent('earmark stimulus', { timeout: 30_000 }, () => {
 
   it('prints the stack trace of a bad spec with --debug', async () => {
     const r = await earmark('--debug', 'stimulus', '--kind', 'sine', '--frequency', 'abc', '--seconds', '1', '-o', 'bad.wav');
-    expect(r.code).toBe(2);
+    expect(r.code).toBe(3);
     expect(r.stderr).toMatch(/^earmark: invalid stimulus spec: frequency: Invalid input: expected number, received NaN/);
     expect(r.stderr).toMatch(/\n\s+at /);
   });
 
-  it('refuses levels above 0 dBFS, clipping noise, unknown spec keys and bad --bits with exit 2', async () => {
+  it('refuses levels above 0 dBFS, clipping noise, unknown spec keys and bad --bits with exit 3', async () => {
     writeFileSync(join(dir, 'typo.json'), JSON.stringify({ kind: 'sine', sampleRate: 48000, seconds: 1, frequency: 1000, levle: -3 }));
     const [loud, clip, typo, bits, none] = await Promise.all([
       earmark('stimulus', '--kind', 'sine', '--frequency', '1000', '--seconds', '1', '--level', '3', '-o', 'x.wav'),
@@ -124,7 +124,7 @@ describe.concurrent('earmark stimulus', { timeout: 30_000 }, () => {
       earmark('stimulus', '-o', 'x.wav'),
     ]);
     for (const r of [loud, clip, typo, bits, none]) {
-      expect(r?.code).toBe(2);
+      expect(r?.code).toBe(3);
       expect(r?.stderr.trim().split('\n')).toHaveLength(1);
     }
     expect(loud?.stderr).toMatch(/levelDbfs: levels above 0 dBFS are refused/);
@@ -134,9 +134,9 @@ describe.concurrent('earmark stimulus', { timeout: 30_000 }, () => {
     expect(none?.stderr).toMatch(/give --kind/);
   });
 
-  it('exits 2 when -o is missing (a usage error)', async () => {
+  it('exits 3 when -o is missing (a usage error)', async () => {
     const r = await earmark('stimulus', '--kind', 'silence', '--seconds', '1');
-    expect(r.code).toBe(2);
+    expect(r.code).toBe(3);
     expect(r.stderr).toMatch(/required option '-o, --out <file.wav>' not specified/);
   });
 });

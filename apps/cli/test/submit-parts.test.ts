@@ -6,7 +6,7 @@ import { join } from 'node:path';
 import { createServer } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { afterAll, describe, expect, it } from 'vitest';
-import type { CaptureDto, CheckResultDto } from '@earmark/contracts';
+import { BuildStatus, type CaptureDto, type CheckResultDto } from '@earmark/contracts';
 import { ApiClient } from '../src/api-client/api-client.js';
 import { BodySourceError } from '../src/api-client/api-error.js';
 import { fileBody } from '../src/submit/file-body.js';
@@ -14,7 +14,7 @@ import { describeFailedCheck, formatHz, formatValue, summaryLine } from '../src/
 import { idempotencyKey, type CaptureIdentity } from '../src/submit/idempotency-key.js';
 import { readSubmitEnv } from '../src/submit/submit-env.js';
 import { planSubmit, type SubmitFlags } from '../src/submit/submit-options.js';
-import { exitCodeFor } from '../src/submit/submit-outcome.js';
+import { EXIT, exitCodeFor, exitCodeForStatus, submittedStatus } from '../src/index.js';
 
 const dir = mkdtempSync(join(tmpdir(), 'earmark-submit-parts-'));
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
@@ -140,12 +140,40 @@ describe('summary', () => {
   });
 });
 
-describe('exitCodeFor', () => {
-  it('0 pass, 1 fail, 2 when any capture is an error or pending; always 0 without --wait', () => {
-    expect(exitCodeFor(['pass', 'pass'], true)).toBe(0);
-    expect(exitCodeFor(['pass', 'fail'], true)).toBe(1);
-    expect(exitCodeFor(['fail', 'error'], true)).toBe(2);
-    expect(exitCodeFor(['pass', 'pending'], true)).toBe(2);
-    expect(exitCodeFor(['fail', 'error', 'pending'], false)).toBe(0);
+describe('exitCodeFor (the build-status rule over the submitted captures)', () => {
+  const capture = (status: CaptureDto['status'], outcome: 'pass' | 'fail' | 'error' | null): CaptureDto =>
+    ({ status, verdict: outcome === null ? null : { outcome, checks: [] } }) as unknown as CaptureDto;
+  const passed = capture('done', 'pass');
+  const failed = capture('done', 'fail');
+  const errored = capture('error', 'error');
+
+  it('with --wait: 0 pass, 1 fail, 2 error verdict, 3 while any capture is not judged yet', () => {
+    expect(exitCodeFor([passed, passed], true)).toBe(EXIT.ok);
+    expect(exitCodeFor([passed, failed], true)).toBe(EXIT.fail);
+    expect(exitCodeFor([passed, errored], true)).toBe(EXIT.error);
+    expect(exitCodeFor([passed, capture('queued', null)], true)).toBe(EXIT.incomplete);
+    expect(exitCodeFor([passed, capture('analysing', null)], true)).toBe(EXIT.incomplete);
+    expect([EXIT.ok, EXIT.fail, EXIT.error, EXIT.incomplete]).toEqual([0, 1, 2, 3]);
+  });
+
+  it('an error outranks a failure: one failing and one erroring capture exit 2', () => {
+    expect(exitCodeFor([failed, errored], true)).toBe(2);
+    // A capture whose analysis broke without a verdict counts as an error too.
+    expect(exitCodeFor([failed, capture('error', null)], true)).toBe(2);
+  });
+
+  it('without --wait: 0 once every upload was accepted, whatever the verdicts', () => {
+    expect(exitCodeFor([failed, errored, capture('queued', null)], false)).toBe(0);
+  });
+
+  it('maps each build status to one code and agrees with the rule in contracts', () => {
+    expect(BuildStatus.options.map((s) => [s, exitCodeForStatus(s)])).toEqual([
+      ['pending', 3],
+      ['running', 3],
+      ['pass', 0],
+      ['fail', 1],
+      ['error', 2],
+    ]);
+    expect(submittedStatus([passed, failed, errored])).toBe('error');
   });
 });

@@ -104,6 +104,33 @@ describe.concurrent('earmark submit', { timeout: 30_000 }, () => {
     expect(r.stdout).toContain('1 fail, 1 error');
   });
 
+  it('an error verdict alone: exit 2 (could not judge), and --json says error with exit code 2', async () => {
+    const s = await server();
+    const r = await run([...common(s), 'pass.wav', 'broken.wav', '--wait', '--json']);
+    expect(r.code, r.stderr).toBe(2);
+    const report = JSON.parse(r.stdout) as { outcome: string; exitCode: number; timedOut: boolean };
+    expect(report).toMatchObject({ outcome: 'error', exitCode: 2, timedOut: false });
+  });
+
+  it('a 503 whose Retry-After is beyond the retry budget: exit 3 (server trouble), not 2', async () => {
+    const s = await server({ unavailable: { route: 'builds', times: 10, retryAfter: '3600' } });
+    const r = await run([...common(s), 'pass.wav', '--wait']);
+    expect(r.code, r.stderr).toBe(3);
+    expect(r.stderr).toBe('earmark: Service unavailable: Capture storage is unavailable right now; nothing was stored.\n');
+    expect(uploads(s)).toHaveLength(0);
+  });
+
+  // The retries alone take 1 + 2 + 4 + 8 s (±20 %), hence its own timeout.
+  it('a server that cannot be reached, after its retries: exit 3', { timeout: 60_000 }, async () => {
+    // A port that was just free: every connection is refused, so the CLI backs off 1+2+4+8 s and gives up.
+    const s = await server();
+    const url = s.url;
+    await s.close();
+    const r = await run(['submit', '--server', url, '--token', FAKE_TOKEN, '--project', PROJECT, '--sha', SHA, '--case', 'eq.music.sweep', 'pass.wav', '--wait']);
+    expect(r.code, r.stderr).toBe(3);
+    expect(r.stderr).toMatch(new RegExp(`^earmark: cannot reach ${url.replace(/[.]/g, '\\.')}.*\\(gave up after 5 tries over \\d+ s\\)$`, 'm'));
+  });
+
   it('retries a 503 after its Retry-After with the whole file again, then succeeds', async () => {
     const s = await server({ unavailable: { route: 'captures', times: 1, retryAfter: '1' } });
     const r = await run([...common(s), 'pass.wav', '--wait']);
@@ -116,28 +143,28 @@ describe.concurrent('earmark submit', { timeout: 30_000 }, () => {
     expect(accepted?.headers['idempotency-key']).toBe(refused?.headers['idempotency-key']);
   });
 
-  it('a 401 problem: exit 2, its title and detail on one line, no stack, no retry', async () => {
+  it('a 401 problem: exit 3, its title and detail on one line, no stack, no retry', async () => {
     const s = await server();
     const r = await run(['submit', '--server', s.url, '--token', 'em_wrong_token', '--project', PROJECT, '--sha', SHA, '--case', 'eq.music.sweep', 'pass.wav', '--wait']);
-    expect(r.code).toBe(2);
+    expect(r.code).toBe(3);
     expect(r.stderr).toBe('earmark: Unauthorized: Unknown API token.\n');
     expect(r.stdout).toBe('');
     expect(s.requests).toHaveLength(1);
   });
 
-  it('a 422 (no target named in a project with two) is not retried: exit 2 with the server detail', async () => {
+  it('a 422 (no target named in a project with two) is not retried: exit 3 with the server detail', async () => {
     const s = await server({ targets: ['evt2-48k', 'evt3-96k'] });
     const r = await run([...common(s), 'pass.wav']);
-    expect(r.code).toBe(2);
+    expect(r.code).toBe(3);
     expect(r.stderr).toMatch(/^earmark: Unprocessable content: kestrel-buds has 2 targets; name one with \?target=\.$/m);
     expect(uploads(s)).toHaveLength(1);
   });
 
-  it('--wait gives up after --timeout: exit 2 naming the capture still pending', async () => {
+  it('--wait gives up after --timeout: exit 3 (not judged yet: retry), naming the capture still pending', async () => {
     const s = await server();
     const started = Date.now();
     const r = await run([...common(s), 'pass.wav', 'slow.wav', '--wait', '--timeout', '1.5']);
-    expect(r.code).toBe(2);
+    expect(r.code).toBe(3);
     expect(r.stderr).toMatch(/earmark: timed out after 1\.5 s with 1 of 2 verdicts still pending: eq\.music\.sweep\/evt2-48k slow\.wav \(analysing, capture [0-9a-f-]{36}\)/);
     expect(r.stdout).toMatch(/^PENDING  eq\.music\.sweep  evt2-48k  slow\.wav  \(analysing\)$/m);
     expect(r.stdout).toMatch(/^PASS     eq\.music\.sweep  evt2-48k  pass\.wav$/m);
@@ -178,7 +205,7 @@ describe.concurrent('earmark submit', { timeout: 30_000 }, () => {
   });
 
   // The other argument checks run in-process in submit-parts.test.ts; these prove the binary stops before any request.
-  it('refuses bad arguments with exit 2 before any request', async () => {
+  it('refuses bad arguments with exit 3 before any request', async () => {
     const s = await server();
     const cases: Array<[string[], Record<string, string>, RegExp]> = [
       [['submit', '--server', s.url, '--project', PROJECT, '--sha', SHA, '--case', 'eq.music.sweep', 'pass.wav'], {}, /^earmark: no API token given: pass --token <token> or set EARMARK_TOKEN\n$/],
@@ -189,10 +216,30 @@ describe.concurrent('earmark submit', { timeout: 30_000 }, () => {
     ];
     const results = await Promise.all(cases.map(([args, env]) => run(args, env)));
     results.forEach((r, i) => {
-      expect(r.code, r.stderr).toBe(2);
+      expect(r.code, r.stderr).toBe(3);
       expect(r.stderr).toMatch(cases[i]?.[2] ?? /never/);
       expect(r.stderr).not.toMatch(/\n\s+at /);
     });
     expect(s.requests).toHaveLength(0);
+  });
+
+  it('usage errors (unknown option, missing required option, unknown command) exit 3, help exits 0 and lists the codes', async () => {
+    const [unknownOption, missingSha, unknownCommand, noCommand, help] = await Promise.all([
+      run(['submit', '--project', PROJECT, '--sha', SHA, '--case', 'eq.music.sweep', '--frobnicate', 'pass.wav']),
+      run(['submit', '--project', PROJECT, '--case', 'eq.music.sweep', 'pass.wav']),
+      run(['submti', '--project', PROJECT]),
+      run([]),
+      run(['submit', '--help']),
+    ]);
+    expect(unknownOption.code, unknownOption.stderr).toBe(3);
+    expect(unknownOption.stderr).toContain("unknown option '--frobnicate'");
+    expect(missingSha.code, missingSha.stderr).toBe(3);
+    expect(missingSha.stderr).toContain("required option '--sha <sha>' not specified");
+    expect(unknownCommand.code, unknownCommand.stderr).toBe(3);
+    expect(unknownCommand.stderr).toContain("unknown command 'submti'");
+    expect(noCommand.code).toBe(3);
+    expect(help.code, help.stderr).toBe(0);
+    expect(help.stdout).toMatch(/^ {2}2 {2}with --wait: at least one capture could not be judged \(an error verdict\)/m);
+    expect(help.stdout).toMatch(/^ {2}3 {2}the run could not finish/m);
   });
 });

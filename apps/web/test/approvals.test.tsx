@@ -15,7 +15,7 @@ const qa: CurrentUser = {
   memberships: [{ projectKey: 'kestrel-buds', projectName: 'Kestrel Buds', role: 'qa_manager' }],
 };
 
-const inReview = (n: number, author: string): MaskRevisionDto => ({
+const inReview = (n: number, author: string, contributors: string[] = [author]): MaskRevisionDto => ({
   id: `00000000-0000-4000-8000-00000000020${n}`,
   testCase: n === 1 ? 'eq.sweep' : 'thd.1k',
   target: null,
@@ -25,11 +25,17 @@ const inReview = (n: number, author: string): MaskRevisionDto => ({
   note: 'Tighter level window',
   author,
   reviewer: null,
+  contributors,
   createdAt: '2025-06-01T08:00:00.000Z',
   decidedAt: null,
   submittedAt: '2025-06-01T09:00:00.000Z',
   decisionComment: null,
   basedOn: null,
+  settings: {
+    stimulus: { kind: 'sine', sampleRate: 48000, channels: 1, seconds: 1, levelDbfs: -20, frequency: 997, fadeInSeconds: 0, fadeOutSeconds: 0 },
+    analysis: {},
+    channelMap: [],
+  },
 });
 
 const waiver: WaiverDto = {
@@ -91,13 +97,13 @@ const run = (state: ImpactRunDto['state'], progress: number): ImpactRunDto => ({
       : null,
 });
 
-function setup() {
+function setup(revisions: MaskRevisionDto[] = [inReview(1, 'eli@fernwick.test'), inReview(2, 'qa@fernwick.test')]) {
   seedSession();
   const polls: string[] = [];
   let pollCount = 0;
   const api = mockApi({
     'GET /api/me': () => json(qa),
-    'GET /api/projects/kestrel-buds/masks': () => json({ items: [inReview(1, 'eli@fernwick.test'), inReview(2, 'qa@fernwick.test')] }),
+    'GET /api/projects/kestrel-buds/masks': () => json({ items: revisions }),
     'GET /api/projects/kestrel-buds/waivers': () => json({ items: [waiver] }),
     'GET /api/projects/kestrel-buds/test-cases/eq.sweep/masks/1/impact': () => json({ items: [] }),
     'GET /api/projects/kestrel-buds/test-cases/thd.1k/masks/2/impact': () => json({ items: [] }),
@@ -150,6 +156,22 @@ describe('approvals queue', () => {
     const user = userEvent.setup();
     await user.click(within(waiverCard).getByRole('button', { name: 'Approve' }));
     expect(await within(waiverCard).findByText('Waiver already decided')).toBeTruthy();
+  });
+
+  it('disables the decision for someone who edited a revision they did not write, with the reason', async () => {
+    setup([inReview(1, 'eli@fernwick.test', ['eli@fernwick.test', 'qa@fernwick.test']), inReview(2, 'dana@fernwick.test')]);
+    renderApp('/projects/kestrel-buds/approvals');
+    const edited = await screen.findByRole('article', { name: 'Revision 1 of eq.sweep' });
+    const approve = within(edited).getByRole('button', { name: 'Approve' }) as HTMLButtonElement;
+    expect(approve.disabled).toBe(true);
+    expect((within(edited).getByRole('button', { name: 'Reject' }) as HTMLButtonElement).disabled).toBe(true);
+    expect(document.getElementById(approve.getAttribute('aria-describedby') ?? '')?.textContent).toBe('You edited this revision; someone else must review it.');
+    // Someone else's revision the user never touched stays open to them.
+    const untouched = screen.getByRole('article', { name: 'Revision 2 of thd.1k' });
+    const other = within(untouched).getByRole('button', { name: 'Approve' }) as HTMLButtonElement;
+    expect(other.disabled).toBe(false);
+    expect(other.getAttribute('aria-describedby')).toBeNull();
+    expect(within(untouched).queryByText(/someone else must review it|another QA manager must approve it/)).toBeNull();
   });
 
   it('starts an impact run and polls its progress until the flips are in', async () => {

@@ -34,7 +34,7 @@ function build(sha: string, overrides: Partial<BuildSummary> = {}): BuildSummary
 
 const page: BuildsPage = {
   items: [
-    build('a81d44c09e2f7b3c1d5e6f708192a3b4c5d6e7f8', { status: 'fail', label: 'nightly', counts: { pass: 2, fail: 1, error: 1, pending: 0 } }),
+    build('a81d44c09e2f7b3c1d5e6f708192a3b4c5d6e7f8', { status: 'fail', label: 'nightly', counts: { pass: 3, fail: 1, error: 0, pending: 0 } }),
     build('5c0e9b1f7a2d3c4b5a69788796a5b4c3d2e1f0a9', { branch: 'feature/anc' }),
   ],
   total: 60,
@@ -91,6 +91,25 @@ describe('builds table', () => {
     expect(screen.getByRole('columnheader', { name: /Branch/ }).getAttribute('aria-sort')).toBe('ascending');
     // Hand-edited junk is ignored rather than sent.
     expect(screen.getByLabelText('Status')).toHaveProperty('value', 'fail');
+  });
+
+  it("shows each build's status as the server sent it, never one worked out from the counts", async () => {
+    seedSession();
+    // The server's rule (an error outranks a failure) is applied once, on the server; the table only shows it.
+    const failAndError = build('e77a0c3d5b1f', { status: 'error', counts: { pass: 1, fail: 1, error: 1, pending: 0 }, captureCount: 3 });
+    const stillRunning = build('0f9e8d7c6b5a', { status: 'running', counts: { pass: 2, fail: 1, error: 0, pending: 1 } });
+    mockApi({
+      'GET /api/me': () => json(engineer),
+      'GET /api/projects/kestrel-buds/builds': () => json({ items: [failAndError, stillRunning], total: 2, page: 1, pageSize: 25 }),
+      'GET /api/projects/kestrel-buds/builds/trend': () => json({ points: [] }),
+      'GET /api/projects/kestrel-buds/targets': () => json({ items: [] }),
+    });
+    renderApp('/projects/kestrel-buds/builds');
+    const table = await screen.findByRole('table', { name: 'Builds' });
+    const column = within(table).getAllByRole('columnheader').findIndex((h) => /^Status/.test(h.textContent ?? ''));
+    const statusOf = (sha: string) => within(table.querySelector(`tr[data-sha="${sha}"]`) as HTMLElement).getAllByRole('cell')[column]!.textContent;
+    expect(statusOf('e77a0c3d5b1f')).toBe('Error');
+    expect(statusOf('0f9e8d7c6b5a')).toBe('Running');
   });
 
   it('drops invalid URL values instead of sending them', async () => {

@@ -281,6 +281,34 @@ describe('capture page', () => {
     expect(screen.queryByRole('progressbar', { name: 'Analysis progress' })).toBeNull();
   });
 
+  it('shows the stimulus, analysis settings and channel map the verdict was judged with', async () => {
+    seedSession();
+    const d = detail();
+    d.capture.verdict!.settings = {
+      stimulus: { kind: 'sweep', sampleRate: 48000, channels: 1, seconds: 5, levelDbfs: -20, from: 20, to: 20000, silenceSeconds: 0, fadeInSeconds: 0, fadeOutSeconds: 0 },
+      analysis: { transferMethod: 'h1', transferBandHz: [100, 10000] },
+      channelMap: [1],
+    };
+    mockApi(commonHandlers([() => json(d)]));
+    renderApp(pagePath);
+
+    const used = await screen.findByLabelText('Settings this verdict used');
+    const pairs = [...used.querySelectorAll('dt')].map((dt) => [dt.textContent, dt.nextElementSibling?.textContent]);
+    expect(pairs).toEqual([
+      ['Stimulus', 'sweep 20 Hz–20 kHz · 48 kHz'],
+      ['Analysis', 'H1, band 100 Hz–10 kHz'],
+      ['Channels', '1'],
+    ]);
+  });
+
+  it('says so when a verdict predates recorded settings', async () => {
+    seedSession();
+    mockApi(commonHandlers([() => json(detail())]));
+    renderApp(pagePath);
+    expect(await screen.findByText('This verdict was recorded before verdicts kept the settings they used.')).toBeTruthy();
+    expect(screen.queryByLabelText('Settings this verdict used')).toBeNull();
+  });
+
   it('explains an error verdict with its reason', async () => {
     seedSession();
     mockApi(commonHandlers([() => json(detail({ outcome: 'error', reason: 'crossover-phase needs the stimulus and none was given' }))]));

@@ -1,4 +1,4 @@
-import type { BuildMatrix, BuildsPage, CurrentUser, DeriveMaskResponse, MaskRevisionDto, TestCaseDto } from '@earmark/contracts';
+import type { BuildMatrix, BuildsPage, CurrentUser, DeriveMaskResponse, MaskDiff, MaskRevisionDto, TestCaseDto } from '@earmark/contracts';
 import { fireEvent, screen, waitFor, within } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
 import { describe, expect, it, vi } from 'vitest';
@@ -28,6 +28,7 @@ const testCase: TestCaseDto = {
   stimulus: { kind: 'sweep', sampleRate: 48000, channels: 2, seconds: 5, levelDbfs: -20, from: 20, to: 20000, silenceSeconds: 0, fadeInSeconds: 0, fadeOutSeconds: 0 },
   analysis: {},
   channelMap: [],
+  hasCaptures: true,
   createdAt: '2025-05-01T08:00:00.000Z',
   updatedAt: '2025-05-01T08:00:00.000Z',
 };
@@ -57,11 +58,13 @@ const revision = (n: number, state: MaskRevisionDto['state'], extra: Partial<Mas
   note: '',
   author: 'eli@fernwick.test',
   reviewer: null,
+  contributors: ['eli@fernwick.test'],
   createdAt: '2025-06-01T08:00:00.000Z',
   decidedAt: null,
   submittedAt: null,
   decisionComment: null,
   basedOn: null,
+  settings: { stimulus: testCase.stimulus, analysis: {}, channelMap: [] },
   ...extra,
 });
 
@@ -71,10 +74,11 @@ const sha = 'a'.repeat(40);
 
 const summary = { id: 'b-1', projectKey: 'kestrel-buds', captureCount: 2, sha, label: 'nightly', branch: 'main', pipelineUrl: null, status: 'pass', createdAt: '2025-06-02T08:00:00.000Z', counts: { pass: 2, fail: 0, error: 0, pending: 0 } };
 
-function setup(revisions: MaskRevisionDto[]) {
+function setup(revisions: MaskRevisionDto[], extra: Parameters<typeof mockApi>[0] = {}) {
   seedSession();
   let list = revisions;
   const api = mockApi({
+    ...extra,
     'GET /api/me': () => json(engineer),
     'GET /api/projects/kestrel-buds/test-cases/eq.sweep': () => json(testCase),
     'GET /api/projects/kestrel-buds/test-cases/eq.sweep/masks': () => json({ items: list }),
@@ -111,8 +115,8 @@ function setup(revisions: MaskRevisionDto[]) {
         engineVersion: 'test',
       }),
     'PATCH /api/projects/kestrel-buds/test-cases/eq.sweep/masks/2': (request) => {
-      const body = request.body as { checks: MaskRevisionDto['checks']; note: string };
-      list = list.map((r) => (r.revision === 2 ? { ...r, checks: body.checks, note: body.note } : r));
+      const body = request.body as { checks: MaskRevisionDto['checks']; note: string; settings?: Partial<MaskRevisionDto['settings']> };
+      list = list.map((r) => (r.revision === 2 ? { ...r, checks: body.checks, note: body.note, settings: { ...r.settings, ...body.settings } } : r));
       return json(list.find((r) => r.revision === 2));
     },
     'POST /api/projects/kestrel-buds/test-cases/eq.sweep/masks/2/submit': () => {
@@ -247,6 +251,23 @@ describe('masks page', () => {
     expect(await screen.findAllByText('In review')).not.toHaveLength(0);
   });
 
+  it('shows someone else’s draft read-only, without Save or Submit, and says who can change it', async () => {
+    const api = setup([revision(2, 'draft', { author: 'dana@fernwick.test', contributors: ['dana@fernwick.test'] })]);
+    renderApp('/projects/kestrel-buds/test-cases/eq.sweep/masks?rev=2');
+
+    expect(await screen.findByRole('heading', { name: 'Revision 2' })).toBeTruthy();
+    expect(screen.getByRole('note').textContent).toBe('Only its author, dana@fernwick.test, can change or submit this draft. Copy it to a draft of your own to propose other limits.');
+    expect(screen.queryByRole('button', { name: 'Save draft' })).toBeNull();
+    expect(screen.queryByRole('button', { name: 'Submit for review' })).toBeNull();
+    expect(screen.queryByRole('textbox', { name: 'Note' })).toBeNull();
+    const editor = screen.getByRole('table', { name: 'Checks editor' });
+    expect((within(editor).getByRole('textbox', { name: 'Upper limit of check 1 point 2 level (dB)' }) as HTMLInputElement).readOnly).toBe(true);
+    expect(screen.queryByRole('button', { name: 'Add check' })).toBeNull();
+    // Copying is the way to propose other limits.
+    expect(screen.getByRole('button', { name: 'Copy to new draft' })).toBeTruthy();
+    expect(api.requests.some((r) => r.method !== 'GET')).toBe(false);
+  });
+
   it('derives limits from chosen captures and puts them into the draft', async () => {
     const api = setup([revision(2, 'draft')]);
     renderApp('/projects/kestrel-buds/test-cases/eq.sweep/masks?rev=2');
@@ -284,5 +305,62 @@ describe('masks page', () => {
     const editor = screen.getByRole('table', { name: 'Checks editor' });
     expect((within(editor).getByRole('textbox', { name: 'Id of check 2' }) as HTMLInputElement).value).toBe('derived-envelope');
     expect((within(editor).getByRole('textbox', { name: 'Upper limit of check 2 point 1 level (dB)' }) as HTMLInputElement).value).toBe('1.4');
+  });
+
+  it('edits the analysis settings and channel map of a draft and saves them with it', async () => {
+    const api = setup([revision(2, 'draft')]);
+    renderApp('/projects/kestrel-buds/test-cases/eq.sweep/masks?rev=2');
+    const user = userEvent.setup();
+
+    const settings = await screen.findByRole('region', { name: 'Judging settings' });
+    expect(settings.textContent).toContain('sweep 20 Hz–20 kHz · 48 kHz');
+    const channels = within(settings).getByLabelText('Channels to analyse');
+    await user.type(channels, '9');
+    expect(within(settings).getByText('Too big: expected number to be <=7')).toBeTruthy();
+    expect((screen.getByRole('button', { name: 'Save draft' }) as HTMLButtonElement).disabled).toBe(true);
+
+    await user.clear(channels);
+    await user.type(channels, '1');
+    await user.selectOptions(within(settings).getByLabelText('Transfer estimator'), 'h1');
+    await user.click(screen.getByRole('button', { name: 'Save draft' }));
+    await waitFor(() => expect(api.requests.some((r) => r.method === 'PATCH')).toBe(true));
+    expect(api.requests.find((r) => r.method === 'PATCH')?.body).toMatchObject({ settings: { analysis: { transferMethod: 'h1' }, channelMap: [1] } });
+  });
+
+  it('shows an approved revision’s settings read-only, with the engine default named', async () => {
+    const api = setup([revision(2, 'draft'), revision(1, 'approved', { settings: { stimulus: testCase.stimulus, analysis: { transferBandHz: [100, 10000] }, channelMap: [0] } })]);
+    renderApp('/projects/kestrel-buds/test-cases/eq.sweep/masks?rev=1');
+    const summary = await screen.findByLabelText('Settings this revision judges with');
+    expect([...summary.querySelectorAll('dd')].map((d) => d.textContent)).toEqual(['sweep 20 Hz–20 kHz · 48 kHz', 'deconvolution (default), band 100 Hz–10 kHz', '0']);
+    expect(screen.queryByLabelText('Channels to analyse')).toBeNull();
+    expect(api.requests.some((r) => r.method !== 'GET')).toBe(false);
+  });
+
+  it('shows a reviewer the settings a revision changes above its check changes', async () => {
+    setup([revision(2, 'in_review', { settings: { stimulus: testCase.stimulus, analysis: {}, channelMap: [1] } }), revision(1, 'approved')], {
+      'GET /api/projects/kestrel-buds/test-cases/eq.sweep/masks/2/diff': () =>
+        json({
+          testCase: 'eq.sweep',
+          base: { revision: 1, state: 'approved', target: null },
+          head: { revision: 2, state: 'in_review', target: null },
+          checks: [],
+          summary: { added: 0, removed: 0, changed: 0, unchanged: 1 },
+          noteChanged: false,
+          targetChanged: false,
+          settingsChanges: [
+            { path: 'analysis.transferMethod', before: null, after: 'h1' },
+            { path: 'channelMap', before: [], after: [1] },
+          ],
+        } satisfies MaskDiff),
+    });
+    renderApp('/projects/kestrel-buds/test-cases/eq.sweep/masks?rev=2&compare=1');
+
+    const note = await screen.findByRole('note', { name: 'Settings changes' });
+    expect(note.textContent).toContain('Judging settings change.');
+    const rows = within(note).getAllByRole('row').slice(1).map((row) => within(row).getAllByRole('cell').map((c) => c.textContent));
+    expect(rows).toEqual([
+      ['analysis.transferMethod', 'default', 'h1'],
+      ['channelMap', '[]', '[1]'],
+    ]);
   });
 });

@@ -22,15 +22,17 @@ const sweep: TestCaseDto = {
   stimulus: { kind: 'sweep', sampleRate: 48000, channels: 2, seconds: 5, levelDbfs: -20, from: 20, to: 20000, silenceSeconds: 0, fadeInSeconds: 0, fadeOutSeconds: 0 },
   analysis: {},
   channelMap: [],
+  hasCaptures: false,
   createdAt: '2025-05-01T08:00:00.000Z',
   updatedAt: '2025-05-01T08:00:00.000Z',
 };
 
-function setup() {
+function setup(testCase: TestCaseDto = sweep) {
   seedSession();
   return mockApi({
     'GET /api/me': () => json(engineer),
-    'GET /api/projects/kestrel-buds/test-cases': () => json({ items: [sweep] }),
+    'GET /api/projects/kestrel-buds/test-cases': () => json({ items: [testCase] }),
+    'PATCH /api/projects/kestrel-buds/test-cases/eq.sweep': (request) => json({ ...testCase, ...(request.body as object) }),
     'POST /api/projects/kestrel-buds/test-cases': (request) => json({ ...sweep, ...(request.body as object) }, 201),
     'GET /api/projects/kestrel-buds/test-cases/eq.sweep/stimulus.wav': () => new Response(new Uint8Array([82, 73, 70, 70]), { headers: { 'Content-Type': 'audio/wav' } }),
   });
@@ -95,5 +97,43 @@ describe('test cases page', () => {
       }),
     );
     await waitFor(() => expect(screen.queryByRole('dialog')).toBeNull());
+  });
+
+  it('explains that settings of a test case with captures are reviewed with a mask revision, and saves only its name and description', async () => {
+    const api = setup({ ...sweep, channelMap: [0, 1], hasCaptures: true });
+    renderApp('/projects/kestrel-buds/test-cases');
+    const user = userEvent.setup();
+
+    await user.click(await screen.findByRole('button', { name: 'Edit eq.sweep' }));
+    const dialog = screen.getByRole('dialog', { name: 'Edit eq.sweep' });
+    const note = within(dialog).getByRole('note', { name: 'Settings under review' });
+    expect(note.textContent).toContain('Captures of this test case exist, so its stimulus, analysis settings and channel map are under review');
+    expect(note.textContent).toContain('Draft a mask revision with the new settings; they come into force when a QA manager approves it.');
+    expect(within(note).getByRole('link', { name: 'Open the masks of eq.sweep' }).getAttribute('href')).toBe('/projects/kestrel-buds/test-cases/eq.sweep/masks');
+    // Inside a disabled fieldset: disabled for the user, though the element's own attribute is unset.
+    expect(within(dialog).getByLabelText('Signal').matches(':disabled')).toBe(true);
+    expect(within(dialog).getByLabelText(/^Channels to analyse/).matches(':disabled')).toBe(true);
+    expect(within(dialog).getByLabelText('Name').matches(':disabled')).toBe(false);
+    // The stimulus stays downloadable.
+    expect(within(dialog).getByRole('button', { name: /Download stimulus WAV/ }).matches(':disabled')).toBe(false);
+
+    const name = within(dialog).getByLabelText('Name');
+    await user.clear(name);
+    await user.type(name, 'Music EQ sweep, both ears');
+    await user.click(within(dialog).getByRole('button', { name: 'Save test case' }));
+    await waitFor(() => expect(api.requests.find((r) => r.method === 'PATCH')?.body).toEqual({ name: 'Music EQ sweep, both ears', description: 'Full-band response' }));
+  });
+
+  it('lets the settings of a test case without captures be edited directly', async () => {
+    const api = setup();
+    renderApp('/projects/kestrel-buds/test-cases');
+    const user = userEvent.setup();
+
+    await user.click(await screen.findByRole('button', { name: 'Edit eq.sweep' }));
+    const dialog = screen.getByRole('dialog', { name: 'Edit eq.sweep' });
+    expect(within(dialog).queryByRole('note', { name: 'Settings under review' })).toBeNull();
+    await user.type(within(dialog).getByLabelText(/^Channels to analyse/), '1');
+    await user.click(within(dialog).getByRole('button', { name: 'Save test case' }));
+    await waitFor(() => expect(api.requests.find((r) => r.method === 'PATCH')?.body).toMatchObject({ channelMap: [1], analysis: {} }));
   });
 });

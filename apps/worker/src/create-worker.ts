@@ -1,6 +1,6 @@
 import { AnalyzeCaptureJob, QUEUES } from '@earmark/contracts';
 import { Capture, initOrm } from '@earmark/db';
-import { createGate, createJobProducer, createLinks, errorJudgement, findMaskInForce, recordVerdict, type Gate } from '@earmark/domain';
+import { createGate, createJobProducer, createLinks, errorJudgement, maskInForce, recordVerdict, type Gate } from '@earmark/domain';
 import { ENGINE_VERSION } from '@earmark/dsp';
 import { ObjectStore, startBoss } from '@earmark/platform';
 import type { MikroORM } from '@mikro-orm/postgresql';
@@ -67,8 +67,10 @@ export async function createWorker(env: WorkerEnv, logger: Logger): Promise<Work
         const em = orm.em.fork();
         const capture = await em.findOne(Capture, { id: captureId }, { populate: ['testCase', 'target'] });
         if (!capture) return;
-        const mask = await findMaskInForce(em, capture.testCase, capture.target);
-        await recordVerdict(em, captureId, mask, errorJudgement('Analysis abandoned: the job ran out of retries.', ENGINE_VERSION), links);
+        const mask = await maskInForce(em, capture.testCase, capture.target);
+        const recorded = await recordVerdict(em, captureId, mask, errorJudgement('Analysis abandoned: the job ran out of retries.', ENGINE_VERSION), links);
+        // This error may complete a build: its failure mail goes out now rather than at the next sweep.
+        if (recorded.notificationsQueued > 0) await jobs.sendMail('build failed');
       });
       await boss.work(QUEUES.sendNotifications, { batchSize: 1, pollingIntervalSeconds: 1 }, async () => {
         await sendNotifications({ orm, mailer, logger });

@@ -1,11 +1,22 @@
 import nodemailer, { type Transporter } from 'nodemailer';
 
+/** One message: the plain-text part always, the HTML part when the outbox row has one. */
+export interface OutgoingMail {
+  to: string;
+  subject: string;
+  text: string;
+  html: string | null;
+}
+
 export interface Mailer {
-  send(message: { to: string; subject: string; text: string }): Promise<void>;
+  send(message: OutgoingMail): Promise<void>;
   close(): void;
 }
 
-/** SMTP through nodemailer (locally the SMTP fake; in production the organisation's relay). */
+/**
+ * SMTP through nodemailer (locally the SMTP fake; in production the organisation's relay).
+ * `from` is EARMARK_MAIL_FROM, e.g. `Earmark <earmark@example.com>`.
+ */
 export function createMailer(opts: { host: string; port: number; from: string }): Mailer {
   const transport: Transporter = nodemailer.createTransport({
     host: opts.host,
@@ -17,8 +28,9 @@ export function createMailer(opts: { host: string; port: number; from: string })
     socketTimeout: 10000,
   });
   return {
-    async send({ to, subject, text }) {
-      await transport.sendMail({ from: opts.from, to, subject, text });
+    async send({ to, subject, text, html }) {
+      // With both parts nodemailer sends multipart/alternative: clients that show no HTML read the text.
+      await transport.sendMail({ from: opts.from, to, subject, text, ...(html ? { html } : {}) });
     },
     close: () => transport.close(),
   };

@@ -1,4 +1,5 @@
 import type { BuildStatus } from './builds.js';
+import type { CaptureDto, VerdictOutcome } from './captures.js';
 
 /** A capture as the build-status rule sees it: where its analysis is and its newest verdict. */
 export interface CaptureState {
@@ -29,4 +30,20 @@ export function aggregateBuildStatus(captures: readonly CaptureState[]): BuildSt
   if (captures.some((c) => c.outcome === 'error' || c.status === 'error')) return 'error';
   if (captures.some((c) => c.outcome === 'fail')) return 'fail';
   return 'pass';
+}
+
+/** How the rule sees a capture as the API sends it (its status and newest verdict): for clients such as the CLI. */
+export function captureStateOf(capture: Pick<CaptureDto, 'status' | 'verdict'>): CaptureState {
+  return { status: capture.status, outcome: capture.verdict?.outcome ?? null };
+}
+
+/**
+ * The same rule for captures that all hold a verdict (an impact run's "what would this build
+ * have been"): error, else fail, else pass.
+ * @throws Error on an empty list, which has no judged outcome
+ */
+export function aggregateVerdicts(outcomes: readonly VerdictOutcome[]): VerdictOutcome {
+  const status = aggregateBuildStatus(outcomes.map((outcome) => ({ status: outcome === 'error' ? 'error' : 'done', outcome })));
+  if (status === 'pending' || status === 'running') throw new Error('aggregateVerdicts needs at least one verdict');
+  return status;
 }

@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { BuildRow } from './builds.js';
+import { JudgingSettings } from './judging-settings.js';
 
 export const CaptureStatus = z.enum(['queued', 'analysing', 'done', 'error']);
 export type CaptureStatus = z.infer<typeof CaptureStatus>;
@@ -15,6 +16,10 @@ export const TargetKey = z.string().min(1).max(60).regex(/^[a-z0-9][a-z0-9._-]*$
 export const RAW_FLOAT32_MEDIA_TYPE = 'application/x-earmark-f32le';
 export const WAV_MEDIA_TYPES = ['audio/wav', 'audio/x-wav', 'audio/wave', 'audio/vnd.wave'] as const;
 
+/** "Passed with waiver, until <date>": the approved waiver that counts a failing check as passed, and its end. */
+export const WaiverMark = z.object({ id: z.string(), until: z.string() });
+export type WaiverMark = z.infer<typeof WaiverMark>;
+
 /** One evaluated check of a mask. Margin is positive inside the limit, negative outside. */
 export const CheckResultDto = z.object({
   id: z.string(),
@@ -28,6 +33,8 @@ export const CheckResultDto = z.object({
   worstHz: z.number().nullable(),
   /** A failing check covered by an approved waiver (the verdict counts it as passed with waiver). */
   waived: z.boolean().optional(),
+  /** The waiver covering this failing check (null when none does). Always sent by the API; optional only so older fixtures type-check. */
+  waiver: WaiverMark.nullable().optional(),
   /** Plain-word notes on what makes this check's number less reliable (from the measures it used). */
   warnings: z.array(z.string()).optional(),
   /** Why the check could not be evaluated (the verdict is then `error`). */
@@ -43,6 +50,16 @@ export const VerdictDto = z.object({
   maskRevision: z.number().int().nullable(),
   createdAt: z.string(),
   checks: z.array(CheckResultDto),
+  /**
+   * For a verdict that passes with waiver: the waiver of its checks that ends first (the verdict
+   * fails again then, unless renewed). null otherwise. Always sent by the API; optional only so older fixtures type-check.
+   */
+  waiver: WaiverMark.nullable().optional(),
+  /**
+   * The stimulus, analysis settings and channel map this verdict was judged with (its mask
+   * revision's). null for verdicts recorded before settings were recorded.
+   */
+  settings: JudgingSettings.nullable().optional(),
   /** For a re-evaluation: the outcome of the verdict this one replaced. */
   previousOutcome: VerdictOutcome.nullable().optional(),
   /** For a re-evaluation: the engine and mask revision of the verdict this one replaced (why it changed). */
@@ -81,7 +98,8 @@ export const CaptureDto = z.object({
 export type CaptureDto = z.infer<typeof CaptureDto>;
 
 export const BuildDetail = BuildRow.extend({
-  counts: z.object({ pass: z.number().int(), fail: z.number().int(), error: z.number().int(), pending: z.number().int() }),
+  /** Captures by newest verdict; `waived`: how many of the `pass` passed with waiver. */
+  counts: z.object({ pass: z.number().int(), fail: z.number().int(), error: z.number().int(), pending: z.number().int(), waived: z.number().int().optional() }),
   captures: z.array(CaptureDto),
   links: z.object({ self: z.string(), junit: z.string(), dashboard: z.string() }),
 });

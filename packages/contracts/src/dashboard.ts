@@ -1,11 +1,14 @@
 import { z } from 'zod';
 import { BuildRow, BuildStatus } from './builds.js';
-import { CaptureDto, CheckResultDto } from './captures.js';
+import { CaptureDto, CheckResultDto, WaiverMark } from './captures.js';
 import { DriftFlag } from './mask-derivation.js';
 import { MaskCheck } from './masks.js';
 
-/** Verdict counts of a build's captures. */
-export const VerdictCounts = z.object({ pass: z.number().int(), fail: z.number().int(), error: z.number().int(), pending: z.number().int() });
+/**
+ * Verdict counts of a build's captures. `waived`: how many of the `pass` passed with waiver
+ * (always sent by the API; optional only so older fixtures type-check).
+ */
+export const VerdictCounts = z.object({ pass: z.number().int(), fail: z.number().int(), error: z.number().int(), pending: z.number().int(), waived: z.number().int().optional() });
 export type VerdictCounts = z.infer<typeof VerdictCounts>;
 
 export const BuildSummary = BuildRow.extend({ counts: VerdictCounts });
@@ -52,8 +55,10 @@ export const MatrixCell = z.object({
   target: z.string(),
   captureId: z.string(),
   outcome: CellOutcome,
-  /** Failing checks, worst margin first. */
+  /** Failing checks, worst margin first (a waived one carries its `waiver`). */
   failing: z.array(CheckResultDto),
+  /** For a cell passing with waiver: the waiver ending first. Always sent by the API; optional only so older fixtures type-check. */
+  waiver: WaiverMark.nullable().optional(),
   /** Outcome of the same cell in the compared build; null when it had no capture there. */
   previous: CellOutcome.nullable(),
 });

@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { TargetKey } from './captures.js';
+import { JudgingSettings } from './judging-settings.js';
 import { MaskCheck } from './masks.js';
 
 export const MaskRevisionState = z.enum(['draft', 'in_review', 'approved', 'superseded', 'rejected']);
@@ -16,6 +17,11 @@ export const MaskRevisionDto = z.object({
   note: z.string(),
   author: z.string(),
   reviewer: z.string().nullable(),
+  /**
+   * E-mail addresses of everyone who wrote or edited the revision, the author first: none of
+   * them may approve or reject it (the four-eyes rule).
+   */
+  contributors: z.array(z.string()),
   createdAt: z.string(),
   decidedAt: z.string().nullable(),
   /** When the revision entered review; null while it is a draft that was never submitted. */
@@ -24,6 +30,8 @@ export const MaskRevisionDto = z.object({
   decisionComment: z.string().nullable(),
   /** The revision number this one was copied from, if it was. */
   basedOn: z.number().int().nullable(),
+  /** Stimulus, analysis settings and channel map that judge captures under this revision (reviewed with its checks). */
+  settings: JudgingSettings,
 });
 export type MaskRevisionDto = z.infer<typeof MaskRevisionDto>;
 

@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { TargetKey } from './captures.js';
+import { JudgingSettings } from './judging-settings.js';
 import { MaskRevisionDto, MaskRevisionState } from './mask-revisions.js';
 
 /*
@@ -19,6 +20,7 @@ import { MaskRevisionDto, MaskRevisionState } from './mask-revisions.js';
  *   GET    waivers?state                                 WaiverListQuery → WaiverList
  *   POST   waivers/:id/approve                           WaiverDecisionRequest → WaiverDto
  *   POST   waivers/:id/reject                            WaiverRejectRequest → WaiverDto
+ *   POST   waivers/:id/revoke                            WaiverRevokeRequest → WaiverDto
  */
 
 /** Only drafts can change; every field is optional, at least one must be given. */
@@ -28,8 +30,12 @@ export const UpdateMaskDraftRequest = z
     checks: z.array(z.unknown()).optional(),
     note: z.string().max(4000).optional(),
     target: TargetKey.nullable().optional(),
+    /** The settings this revision judges with; fields left out keep the draft's. */
+    settings: JudgingSettings.partial().optional(),
   })
-  .refine((b) => b.checks !== undefined || b.note !== undefined || b.target !== undefined, { message: 'give checks, note or target' });
+  .refine((b) => b.checks !== undefined || b.note !== undefined || b.target !== undefined || b.settings !== undefined, {
+    message: 'give checks, note, target or settings',
+  });
 export type UpdateMaskDraftRequest = z.infer<typeof UpdateMaskDraftRequest>;
 
 /** Approving takes an optional comment. */
@@ -87,6 +93,11 @@ export const MaskDiff = z.object({
   /** The note or target differ, besides the checks. */
   noteChanged: z.boolean(),
   targetChanged: z.boolean(),
+  /**
+   * Stimulus, analysis and channel-map fields that differ (`stimulus.frequency`, `analysis.transferMethod`,
+   * `channelMap` as a whole): they change verdicts as much as the checks do.
+   */
+  settingsChanges: z.array(CheckFieldChange),
 });
 export type MaskDiff = z.infer<typeof MaskDiff>;
 
@@ -153,6 +164,10 @@ export type WaiverDecisionRequest = z.infer<typeof WaiverDecisionRequest>;
 
 export const WaiverRejectRequest = z.strictObject({ comment: z.string().trim().min(1, 'say why the waiver is rejected').max(4000) });
 export type WaiverRejectRequest = z.infer<typeof WaiverRejectRequest>;
+
+/** Revoking an approved waiver before its date takes a reason. */
+export const WaiverRevokeRequest = z.strictObject({ reason: z.string().trim().min(1, 'say why the waiver is revoked').max(4000) });
+export type WaiverRevokeRequest = z.infer<typeof WaiverRevokeRequest>;
 
 export const WaiverListQuery = z.object({
   /** `active`: approved and not yet expired. */

@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { TargetKey, TestCaseKey } from './captures.js';
+import { AnalysisSettings, ChannelMap } from './judging-settings.js';
 import { StimulusSpec } from './stimulus.js';
 
 export const TargetDto = z.object({
@@ -22,21 +23,6 @@ export type CreateTargetRequest = z.infer<typeof CreateTargetRequest>;
 export const UpdateTargetRequest = CreateTargetRequest.omit({ key: true }).partial();
 export type UpdateTargetRequest = z.infer<typeof UpdateTargetRequest>;
 
-/** How the worker analyses captures of a test case. */
-export const AnalysisSettings = z.strictObject({
-  /** Transfer estimator; default: deconvolution for sweeps, H1 otherwise. */
-  transferMethod: z.enum(['h1', 'deconvolution']).optional(),
-  /** Band for group delay and phase linearity (default: where |H| is within 20 dB of its maximum). */
-  transferBandHz: z
-    .tuple([z.number().positive(), z.number().positive()])
-    .refine(([lo, hi]) => lo < hi, 'the lower edge must be below the upper edge')
-    .optional(),
-});
-export type AnalysisSettings = z.infer<typeof AnalysisSettings>;
-
-/** 0-based capture channels to analyse; empty means all of them. */
-export const ChannelMap = z.array(z.number().int().min(0).max(7)).max(8);
-
 export const TestCaseDto = z.object({
   key: z.string(),
   name: z.string(),
@@ -44,6 +30,11 @@ export const TestCaseDto = z.object({
   stimulus: StimulusSpec,
   analysis: AnalysisSettings,
   channelMap: ChannelMap,
+  /**
+   * Captures exist: stimulus, analysis settings and channel map then change only through a
+   * reviewed mask revision (PATCH answers 409); name and description stay editable.
+   */
+  hasCaptures: z.boolean(),
   createdAt: z.string(),
   updatedAt: z.string(),
 });

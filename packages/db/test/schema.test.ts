@@ -1,6 +1,6 @@
 import { UniqueConstraintViolationException, type MikroORM } from '@mikro-orm/postgresql';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { Build, Capture, MaskRevision, Project, Target, TestCase, Verdict, initOrm, seedRoles, type RoleFixture } from '../src/index.js';
+import { Build, Capture, MaskRevision, Project, Target, TestCase, Verdict, initOrm, seedRoles, testCaseSettings, type RoleFixture } from '../src/index.js';
 import { createTestDatabase, type TestDatabase } from '../src/testing/index.js';
 
 let db: TestDatabase;
@@ -42,12 +42,13 @@ describe('schema', () => {
 
   it('allows only one approved mask revision per test case and target (including "all targets")', async () => {
     const { em, testCase } = await caseAndTarget();
-    em.create(MaskRevision, { testCase, revision: 1, state: 'approved', author: fixture.users.qa_manager.id });
+    const settings = testCaseSettings(testCase);
+    em.create(MaskRevision, { testCase, revision: 1, state: 'approved', settings, author: fixture.users.qa_manager.id });
     await em.flush();
     const em2 = orm.em.fork();
-    em2.create(MaskRevision, { testCase: testCase.id, revision: 2, state: 'draft', author: fixture.users.engineer.id });
+    em2.create(MaskRevision, { testCase: testCase.id, revision: 2, state: 'draft', settings, author: fixture.users.engineer.id });
     await em2.flush(); // drafts may coexist with the approved one
-    em2.create(MaskRevision, { testCase: testCase.id, revision: 3, state: 'approved', author: fixture.users.qa_manager.id });
+    em2.create(MaskRevision, { testCase: testCase.id, revision: 3, state: 'approved', settings, author: fixture.users.qa_manager.id });
     await expect(em2.flush()).rejects.toBeInstanceOf(UniqueConstraintViolationException);
   });
 
@@ -61,6 +62,23 @@ describe('schema', () => {
     await em.flush();
     const em2 = orm.em.fork();
     em2.create(Verdict, { capture: capture.id, outcome: 'error', reason: 'again', engineVersion: '0.1.0' });
+    await expect(em2.flush()).rejects.toBeInstanceOf(UniqueConstraintViolationException);
+  });
+
+  it('allows a capture another verdict under the same revision and engine only with another waiver basis', async () => {
+    const { em, project, testCase, target } = await caseAndTarget();
+    const build = em.create(Build, { project, sha: 'ba51501' });
+    const capture = em.create(Capture, {
+      project, build, testCase, target, objectKey: 'k', sha256: 'b'.repeat(64), sizeBytes: 10, sampleRate: 48000, channelCount: 1, frames: 1,
+    });
+    const judged = em.create(Verdict, { capture, outcome: 'fail', reason: 'loudness', engineVersion: '1.0.0' });
+    await em.flush();
+    expect(judged.waiverBasis).toBe('');
+    em.create(Verdict, { capture, outcome: 'pass', reason: 'passed with waiver: loudness', engineVersion: '1.0.0', waiverBasis: 'w-1;approved=w-1', previous: judged });
+    em.create(Verdict, { capture, outcome: 'fail', reason: 'loudness', engineVersion: '1.0.0', waiverBasis: ';revoked=w-1' });
+    await em.flush(); // re-judged when the waiver came and when it went
+    const em2 = orm.em.fork();
+    em2.create(Verdict, { capture: capture.id, outcome: 'pass', reason: 'again', engineVersion: '1.0.0', waiverBasis: 'w-1;approved=w-1' });
     await expect(em2.flush()).rejects.toBeInstanceOf(UniqueConstraintViolationException);
   });
 

@@ -12,6 +12,7 @@ import { MaskDerivationService } from './services/mask-derivation.service.js';
 import { MaskWorkflowService } from './services/mask-workflow.service.js';
 import { MaskService } from './services/mask.service.js';
 import { ProjectService } from './services/project.service.js';
+import { SubscriptionService } from './services/subscription.service.js';
 import { TokenService } from './services/token.service.js';
 import { WaiverService } from './services/waiver.service.js';
 
@@ -29,7 +30,7 @@ export interface GateDeps {
 export function createGate(deps: GateDeps) {
   const { objectStore, jobs, links, logger } = deps;
   const catalog = new CatalogService();
-  const masks = new MaskService();
+  const masks = new MaskService(links);
   const findings = new FindingsService();
   const views = new CaptureViewService(objectStore, findings, links);
   return {
@@ -40,6 +41,7 @@ export function createGate(deps: GateDeps) {
     findings,
     views,
     projects: new ProjectService(),
+    subscriptions: new SubscriptionService(),
     tokens: new TokenService(),
     workflow: new MaskWorkflowService(masks, links),
     waivers: new WaiverService(links),

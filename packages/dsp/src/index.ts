@@ -1,5 +1,6 @@
 /** Earmark's analysis engine: pure signal processing over Float64Array, no I/O. */
 export { ENGINE_VERSION } from './engine-version.js';
+export { EngineInputError } from './util/engine-input-error.js';
 
 export * from './io/index.js';
 export * from './stimulus/index.js';

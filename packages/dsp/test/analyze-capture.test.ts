@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { analyzeCapture } from '../src/analyze/analyze-capture.js';
 import { ENGINE_VERSION } from '../src/engine-version.js';
 import { gaussian, quantise, sine } from './helpers/signals.js';
+import { refusedBy } from './helpers/refused.js';
 
 const FS = 48000;
 
@@ -62,8 +63,8 @@ describe('analyzeCapture', () => {
   });
 
   it('rejects bad input naming the function', () => {
-    expect(() => analyzeCapture({ sampleRate: FS, channels: [] })).toThrow(/^analyzeCapture: /);
-    expect(() => analyzeCapture({ sampleRate: FS, channels: [Float64Array.of(0, Number.NaN, 0)] })).toThrow(/not finite/);
+    expect(() => analyzeCapture({ sampleRate: FS, channels: [] })).toThrow(refusedBy('analyzeCapture'));
+    expect(() => analyzeCapture({ sampleRate: FS, channels: [Float64Array.of(0, Number.NaN, 0)] })).toThrow(refusedBy('analyzeCapture', /^sample 1 of capture channel 0 is NaN; only finite samples can be analysed$/));
     expect(() => analyzeCapture({ sampleRate: FS, channels: [new Float64Array(10)] }, { channels: [3] })).toThrow(/channel 3/);
   });
 });

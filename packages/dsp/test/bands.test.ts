@@ -4,6 +4,7 @@ import { bandLevels, fractionalOctaveBands, octaveBandCenter } from '../src/meas
 import { createRealFftPlan } from '../src/fft/real-fft.js';
 import { createWindow } from '../src/spectrum/windows.js';
 import { sine } from './helpers/signals.js';
+import { refusedBy } from './helpers/refused.js';
 
 describe('fractional-octave bands (IEC 61260-1:2014)', () => {
   it('nominal 1/3-octave mid-band frequencies 25 Hz … 20 kHz', () => {
@@ -28,7 +29,7 @@ describe('fractional-octave bands (IEC 61260-1:2014)', () => {
     const octaves = fractionalOctaveBands(1, 30, 17000).map((b) => b.nominalHz);
     // source: IEC 61260-1 nominal octave mid-band frequencies
     expect(octaves).toEqual([31.5, 63, 125, 250, 500, 1000, 2000, 4000, 8000, 16000]);
-    expect(() => fractionalOctaveBands(3, 0, 10)).toThrow(/^fractionalOctaveBands: /);
+    expect(() => fractionalOctaveBands(3, 0, 10)).toThrow(refusedBy('fractionalOctaveBands'));
   });
   it('a −20 dBFS tone reads −20 dBFS in its band from a Hann power spectrum', () => {
     const fs = 48000;
@@ -63,6 +64,6 @@ describe('A-weighting (IEC 61672-1:2013)', () => {
   }
   it('is exactly 0 dB at 1 kHz and rejects negative frequencies', () => {
     expect(Math.abs(aWeightingDb(1000))).toBeLessThan(1e-12);
-    expect(() => aWeightingDb(-1)).toThrow(/^aWeightingGain: /);
+    expect(() => aWeightingDb(-1)).toThrow(refusedBy('aWeightingGain'));
   });
 });

@@ -5,6 +5,7 @@ import { createRealFftPlan } from '../src/fft/real-fft.js';
 import { expectAllClose, maxAbs } from './helpers/approx.js';
 import { loadFixture } from './helpers/fixtures.js';
 import { naiveDft } from './helpers/naive-dft.js';
+import { refusedBy } from './helpers/refused.js';
 
 interface FftFixture {
   rfft: { n: number; input: number[]; re: number[]; im: number[] }[];
@@ -156,9 +157,9 @@ describe('real FFT properties (fast-check)', () => {
 
 describe('FFT preconditions', () => {
   it('rejects sizes that are not powers of two and mismatched buffers, naming the function', () => {
-    expect(() => createRealFftPlan(48)).toThrow(/^createRealFftPlan: /);
-    expect(() => createComplexFftPlan(1)).toThrow(/^createComplexFftPlan: /);
+    expect(() => createRealFftPlan(48)).toThrow(refusedBy('createRealFftPlan'));
+    expect(() => createComplexFftPlan(1)).toThrow(refusedBy('createComplexFftPlan'));
     const plan = createRealFftPlan(8);
-    expect(() => plan.forward(new Float64Array(7), new Float64Array(5), new Float64Array(5))).toThrow(/RealFftPlan.forward/);
+    expect(() => plan.forward(new Float64Array(7), new Float64Array(5), new Float64Array(5))).toThrow(refusedBy('RealFftPlan.forward', /^input must hold 8 samples \(got 7\)$/));
   });
 });

@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { filterGroupDelay, groupDelayFromPhase } from '../src/transfer/group-delay.js';
 import { expectAllClose } from './helpers/approx.js';
 import { loadFixture } from './helpers/fixtures.js';
+import { refusedBy } from './helpers/refused.js';
 
 interface GroupDelayFixture {
   groupDelay: { name: string; b: number[]; a: number[]; w: number[]; groupDelay: number[] }[];
@@ -33,6 +34,6 @@ describe('group delay of a symmetric FIR (Oppenheim & Schafer, linear-phase FIR 
     for (const v of groupDelayFromPhase(freq, phase)) expect(Math.abs(v - 4)).toBeLessThan(1e-9);
   });
   it('rejects non-increasing frequencies naming the function', () => {
-    expect(() => groupDelayFromPhase(Float64Array.of(1, 1), Float64Array.of(0, 0))).toThrow(/^groupDelayFromPhase: /);
+    expect(() => groupDelayFromPhase(Float64Array.of(1, 1), Float64Array.of(0, 0))).toThrow(refusedBy('groupDelayFromPhase'));
   });
 });

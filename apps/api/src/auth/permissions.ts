@@ -6,22 +6,26 @@ import type { ProjectRole, TokenScope } from '@earmark/contracts';
  */
 export const projectPermissions = [
   'project.read',
+  /** One's own build-mail setting in the project: every member, viewers included. */
+  'mail.subscribe',
   'build.read',
   'build.submit',
   'finding.triage',
   'mask.draft',
   'mask.approve',
   'waiver.request',
+  /** Approve, reject and revoke waivers. */
+  'waiver.decide',
   'audit.read',
   'project.configure',
   'project.administer',
 ] as const;
 export type ProjectPermission = (typeof projectPermissions)[number];
 
-const viewer: ProjectPermission[] = ['project.read', 'build.read'];
+const viewer: ProjectPermission[] = ['project.read', 'mail.subscribe', 'build.read'];
 const engineer: ProjectPermission[] = [...viewer, 'build.submit', 'finding.triage', 'mask.draft', 'waiver.request', 'project.configure'];
-// `mask.approve` also decides waivers: the same people own masks and their exceptions.
-const qaManager: ProjectPermission[] = [...engineer, 'mask.approve', 'audit.read'];
+// The same people approve masks and decide their exceptions (waivers).
+const qaManager: ProjectPermission[] = [...engineer, 'mask.approve', 'waiver.decide', 'audit.read'];
 
 export const ROLE_PERMISSIONS: Record<ProjectRole, ReadonlySet<ProjectPermission>> = {
   viewer: new Set(viewer),

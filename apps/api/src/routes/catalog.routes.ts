@@ -36,6 +36,7 @@ async function sendStimulus(ctx: RouteContext, catalog: CatalogService): Promise
 }
 
 export function catalogRoutes(catalog: CatalogService): RouteDef[] {
+  const presentOne = async (ctx: RouteContext, testCase: Parameters<typeof toTestCaseDto>[0]) => (await catalog.presentTestCases(ctx.em, [testCase]))[0]!;
   return [
     route({
       method: 'get',
@@ -81,7 +82,7 @@ export function catalogRoutes(catalog: CatalogService): RouteDef[] {
       summary: 'Test cases of a project with their stimulus specs and analysis settings',
       response: z.object({ items: z.array(TestCaseDto) }),
       async handle(ctx) {
-        ctx.res.json({ items: (await catalog.listTestCases(ctx.em, requireProject(ctx))).map(toTestCaseDto) });
+        ctx.res.json({ items: await catalog.presentTestCases(ctx.em, await catalog.listTestCases(ctx.em, requireProject(ctx))) });
       },
     }),
     route({
@@ -94,7 +95,7 @@ export function catalogRoutes(catalog: CatalogService): RouteDef[] {
       status: 201,
       async handle(ctx) {
         const body = ctx.body;
-        ctx.res.status(201).json(toTestCaseDto(await catalog.createTestCase(ctx.em, requireProject(ctx), body, ctx.principal!)));
+        ctx.res.status(201).json(toTestCaseDto(await catalog.createTestCase(ctx.em, requireProject(ctx), body, ctx.principal!), false));
       },
     }),
     route({
@@ -106,21 +107,21 @@ export function catalogRoutes(catalog: CatalogService): RouteDef[] {
       response: TestCaseDto,
       async handle(ctx) {
         const { caseKey } = ctx.params;
-        ctx.res.json(toTestCaseDto(await catalog.getTestCase(ctx.em, requireProject(ctx), caseKey)));
+        ctx.res.json(await presentOne(ctx, await catalog.getTestCase(ctx.em, requireProject(ctx), caseKey)));
       },
     }),
     route({
       method: 'patch',
       path: '/api/projects/:project/test-cases/:caseKey',
       access: { kind: 'project', permission: 'project.configure' },
-      summary: 'Change a test case (the stimulus only while it has no captures)',
+      summary: 'Change a test case; stimulus, analysis settings and channel map only while it has no captures (afterwards through a mask revision: 409)',
       params: CaseParams,
       body: UpdateTestCaseRequest,
       response: TestCaseDto,
       async handle(ctx) {
         const { caseKey } = ctx.params;
         const body = ctx.body;
-        ctx.res.json(toTestCaseDto(await catalog.updateTestCase(ctx.em, requireProject(ctx), caseKey, body, ctx.principal!)));
+        ctx.res.json(await presentOne(ctx, await catalog.updateTestCase(ctx.em, requireProject(ctx), caseKey, body, ctx.principal!)));
       },
     }),
     route({

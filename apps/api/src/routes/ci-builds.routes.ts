@@ -2,7 +2,7 @@ import { BuildDetail, BuildRow, CommitSha, UpsertBuildRequest } from '@earmark/c
 import { Build, Capture, type Project } from '@earmark/db';
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { z } from 'zod';
-import { actorName, buildDetail, type Links, recordAudit, toBuildRow } from '@earmark/domain';
+import { actorName, buildDetail, findOrCreateBuild, type Links, recordAudit, toBuildRow } from '@earmark/domain';
 import { requireProject, route, type RouteDef } from '../http/route.js';
 
 const BuildListQuery = z.object({
@@ -27,25 +27,15 @@ export function ciBuildRoutes(links: Links): RouteDef[] {
       async handle(ctx) {
         const project = requireProject(ctx);
         const body = ctx.body;
-        let build = await ctx.em.findOne(Build, { project, sha: body.sha });
-        const created = !build;
-        build ??= ctx.em.create(Build, { project, sha: body.sha });
+        // Two pipelines racing on one SHA both get the one build; only the creator answers 201.
+        const { build, created } = await findOrCreateBuild(ctx.em, project, body.sha);
         if (body.label !== undefined) build.label = body.label;
         if (body.branch !== undefined) build.branch = body.branch;
         if (body.pipelineUrl !== undefined) build.pipelineUrl = body.pipelineUrl;
         if (created && ctx.principal) {
           recordAudit(ctx.em, { actor: actorName(ctx.principal), action: 'build.create', subject: `build:${body.sha}`, project });
         }
-        // NOTE: two pipelines racing on one SHA hit the unique constraint; the loser re-reads.
-        try {
-          await ctx.em.flush();
-        } catch (error) {
-          if (!created) throw error;
-          ctx.em.clear();
-          const existing = await ctx.em.findOne(Build, { project: project.id, sha: body.sha });
-          if (!existing) throw error;
-          build = existing;
-        }
+        await ctx.em.flush();
         ctx.res.status(created ? 201 : 200).json(await rowOf(ctx.em, build, project));
       },
     }),

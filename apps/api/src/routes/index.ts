@@ -13,6 +13,7 @@ import { maskRoutes } from './masks.routes.js';
 import { maskDerivationRoutes } from './mask-derivation.routes.js';
 import { maskWorkflowRoutes } from './mask-workflow.routes.js';
 import { projectRoutes } from './projects.routes.js';
+import { subscriptionRoutes } from './subscription.routes.js';
 import { tokenRoutes } from './tokens.routes.js';
 
 export interface RouteDeps {
@@ -28,9 +29,10 @@ export function allRoutes({ gate, sessions, loginLimiter, maxCaptureBytes }: Rou
     ...healthRoutes(),
     ...authRoutes(sessions, loginLimiter),
     ...projectRoutes(gate.projects),
+    ...subscriptionRoutes(gate.subscriptions),
     ...tokenRoutes(gate.tokens),
     ...catalogRoutes(gate.catalog),
-    ...maskRoutes(gate.masks, gate.catalog),
+    ...maskRoutes(gate.masks, gate.catalog, gate.jobs),
     ...maskWorkflowRoutes(gate),
     ...maskDerivationRoutes(gate),
     ...adminRoutes(),

@@ -17,11 +17,13 @@ import {
   WaiverList,
   WaiverListQuery,
   WaiverRejectRequest,
+  WaiverRevokeRequest,
 } from '@earmark/contracts';
 
 import { z } from 'zod';
-import { type Gate, type MaskService, parseWith, toMaskRevisionDto, toWaiverDto } from '@earmark/domain';
+import { type Gate, type MaskService, parseWith, toWaiverDto } from '@earmark/domain';
 import { requireProject, requireUser, type RouteContext, route, type RouteDef } from '../http/route.js';
+import { wakeMailSender } from '../http/wake-mail-sender.js';
 
 const CaseParams = z.object({ caseKey: TestCaseKey });
 const RevisionParams = CaseParams.extend({ revision: z.coerce.number().int().min(1) });
@@ -38,15 +40,10 @@ export function maskWorkflowRoutes(gate: Gate): RouteDef[] {
   };
   /** The outbox rows are committed; the job only wakes the sender (the sweep is the safety net). */
   const sendMail = async (ctx: RouteContext, queued: number) => {
-    if (!queued) return;
-    try {
-      await gate.jobs.sendMail('review');
-    } catch (error) {
-      ctx.req.log.warn({ err: error }, 'could not queue send-notifications; the sweep will');
-    }
+    if (queued) await wakeMailSender(gate.jobs, ctx);
   };
   const revisionAnswer = async (ctx: RouteContext, testCase: Parameters<MaskService['get']>[1], revision: number, status = 200) => {
-    ctx.res.status(status).json(toMaskRevisionDto(await masks.get(ctx.em, testCase, revision)));
+    ctx.res.status(status).json(await masks.presentOne(ctx.em, await masks.get(ctx.em, testCase, revision)));
   };
 
   return [
@@ -59,7 +56,7 @@ export function maskWorkflowRoutes(gate: Gate): RouteDef[] {
       response: ProjectMaskRevisionList,
       async handle(ctx) {
         const { state } = ctx.query;
-        ctx.res.json({ items: (await workflow.listForProject(ctx.em, requireProject(ctx), state)).map(toMaskRevisionDto) });
+        ctx.res.json({ items: await masks.present(ctx.em, await workflow.listForProject(ctx.em, requireProject(ctx), state)) });
       },
     }),
     route({
@@ -77,7 +74,7 @@ export function maskWorkflowRoutes(gate: Gate): RouteDef[] {
       method: 'patch',
       path: caseBase,
       access: { kind: 'project', permission: 'mask.draft' },
-      summary: 'Change a draft (checks, note, target); a submitted revision answers 409',
+      summary: 'Change a draft (checks, note, target, judging settings); only its author may, and a submitted revision answers 409',
       body: UpdateMaskDraftRequest,
       response: MaskRevisionDto,
       async handle(ctx) {
@@ -91,7 +88,7 @@ export function maskWorkflowRoutes(gate: Gate): RouteDef[] {
       method: 'post',
       path: `${caseBase}/submit`,
       access: { kind: 'project', permission: 'mask.draft' },
-      summary: "Submit a draft for review; the project's QA managers are mailed. From here on it cannot change",
+      summary: "Submit your own draft for review; the project's QA managers are mailed. From here on it cannot change",
       response: MaskRevisionDto,
       async handle(ctx) {
         const { testCase, revision } = await revisionOf(ctx);
@@ -104,13 +101,14 @@ export function maskWorkflowRoutes(gate: Gate): RouteDef[] {
       method: 'post',
       path: `${caseBase}/reject`,
       access: { kind: 'project', permission: 'mask.approve' },
-      summary: 'Reject a revision in review (not your own), with a comment that says why',
+      summary: 'Reject a revision in review that you neither wrote nor edited, with a comment that says why',
       body: MaskRejectRequest,
       response: MaskRevisionDto,
       async handle(ctx) {
         const { testCase, revision } = await revisionOf(ctx);
         const { comment } = ctx.body;
         await workflow.reject(ctx.em, requireProject(ctx), testCase, revision, requireUser(ctx).user, comment);
+        await sendMail(ctx, 1); // the author hears the decision
         await revisionAnswer(ctx, testCase, revision);
       },
     }),
@@ -126,7 +124,7 @@ export function maskWorkflowRoutes(gate: Gate): RouteDef[] {
         const { testCase, revision } = await revisionOf(ctx);
         const body = ctx.body;
         const draft = await workflow.copy(ctx.em, requireProject(ctx), testCase, revision, body, requireUser(ctx).user);
-        ctx.res.status(201).json(toMaskRevisionDto(draft));
+        ctx.res.status(201).json(await masks.presentOne(ctx.em, draft));
       },
     }),
     route({
@@ -197,8 +195,8 @@ export function maskWorkflowRoutes(gate: Gate): RouteDef[] {
     route({
       method: 'post',
       path: '/api/projects/:project/waivers/:id/approve',
-      access: { kind: 'project', permission: 'mask.approve' },
-      summary: 'Approve a waiver (not your own request); its finding becomes an accepted deviation',
+      access: { kind: 'project', permission: 'waiver.decide' },
+      summary: 'Approve a waiver (not your own request); its finding becomes an accepted deviation and the captures it covers are judged again at once',
       params: IdParams,
       body: WaiverDecisionRequest,
       response: WaiverDto,
@@ -213,7 +211,7 @@ export function maskWorkflowRoutes(gate: Gate): RouteDef[] {
     route({
       method: 'post',
       path: '/api/projects/:project/waivers/:id/reject',
-      access: { kind: 'project', permission: 'mask.approve' },
+      access: { kind: 'project', permission: 'waiver.decide' },
       summary: 'Reject a waiver (not your own request), with a comment that says why',
       params: IdParams,
       body: WaiverRejectRequest,
@@ -223,6 +221,21 @@ export function maskWorkflowRoutes(gate: Gate): RouteDef[] {
         const { comment } = ctx.body;
         const waiver = await waivers.reject(ctx.em, requireProject(ctx), id, requireUser(ctx).user, comment);
         await sendMail(ctx, 1);
+        ctx.res.json(toWaiverDto(waiver));
+      },
+    }),
+    route({
+      method: 'post',
+      path: '/api/projects/:project/waivers/:id/revoke',
+      access: { kind: 'project', permission: 'waiver.decide' },
+      summary: 'Revoke an approved waiver before its date, with a reason: the captures it covered are judged again at once and fail where they fail',
+      params: IdParams,
+      body: WaiverRevokeRequest,
+      response: WaiverDto,
+      async handle(ctx) {
+        const { id } = ctx.params;
+        const { reason } = ctx.body;
+        const waiver = await waivers.revoke(ctx.em, requireProject(ctx), id, requireUser(ctx).user, reason);
         ctx.res.json(toWaiverDto(waiver));
       },
     }),

@@ -1,12 +1,13 @@
 import { CreateMaskRevisionRequest, MaskDecisionRequest, MaskRevisionDto, TestCaseKey } from '@earmark/contracts';
 import { z } from 'zod';
-import { type CatalogService, type MaskService, parseWith, toMaskRevisionDto } from '@earmark/domain';
+import { type CatalogService, type JobProducer, type MaskService, parseWith } from '@earmark/domain';
 import { requireProject, requireUser, type RouteContext, route, type RouteDef } from '../http/route.js';
+import { wakeMailSender } from '../http/wake-mail-sender.js';
 
 const CaseParams = z.object({ caseKey: TestCaseKey });
 const RevisionParams = CaseParams.extend({ revision: z.coerce.number().int().min(1) });
 
-export function maskRoutes(masks: MaskService, catalog: CatalogService): RouteDef[] {
+export function maskRoutes(masks: MaskService, catalog: CatalogService, jobs: JobProducer): RouteDef[] {
   const testCaseOf = async (ctx: RouteContext) => {
     const { caseKey } = parseWith(CaseParams, ctx.req.params, 'params');
     return catalog.getTestCase(ctx.em, requireProject(ctx), caseKey);
@@ -19,7 +20,7 @@ export function maskRoutes(masks: MaskService, catalog: CatalogService): RouteDe
       summary: "A test case's mask revisions, newest first",
       response: z.object({ items: z.array(MaskRevisionDto) }),
       async handle(ctx) {
-        ctx.res.json({ items: (await masks.list(ctx.em, await testCaseOf(ctx))).map(toMaskRevisionDto) });
+        ctx.res.json({ items: await masks.present(ctx.em, await masks.list(ctx.em, await testCaseOf(ctx))) });
       },
     }),
     route({
@@ -33,14 +34,14 @@ export function maskRoutes(masks: MaskService, catalog: CatalogService): RouteDe
       async handle(ctx) {
         const body = ctx.body;
         const draft = await masks.createDraft(ctx.em, requireProject(ctx), await testCaseOf(ctx), body, requireUser(ctx).user);
-        ctx.res.status(201).json(toMaskRevisionDto(await masks.get(ctx.em, draft.testCase, draft.revision)));
+        ctx.res.status(201).json(await masks.presentOne(ctx.em, await masks.get(ctx.em, draft.testCase, draft.revision)));
       },
     }),
     route({
       method: 'post',
       path: '/api/projects/:project/test-cases/:caseKey/masks/:revision/approve',
       access: { kind: 'project', permission: 'mask.approve' },
-      summary: 'Approve a revision in review or a draft (not your own), with an optional comment; it replaces the revision in force',
+      summary: 'Approve a revision in review that you neither wrote nor edited, with an optional comment; it replaces the revision in force',
       params: RevisionParams,
       body: MaskDecisionRequest,
       response: MaskRevisionDto,
@@ -49,7 +50,8 @@ export function maskRoutes(masks: MaskService, catalog: CatalogService): RouteDe
         const { comment } = ctx.body;
         const testCase = await testCaseOf(ctx);
         await masks.approve(ctx.em, requireProject(ctx), testCase, revision, requireUser(ctx).user, comment);
-        ctx.res.json(toMaskRevisionDto(await masks.get(ctx.em, testCase, revision)));
+        await wakeMailSender(jobs, ctx); // the author hears the decision
+        ctx.res.json(await masks.presentOne(ctx.em, await masks.get(ctx.em, testCase, revision)));
       },
     }),
   ];

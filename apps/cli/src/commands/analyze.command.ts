@@ -1,7 +1,7 @@
 import { Option, type Command } from 'commander';
 import { AnalysisReport } from '@earmark/contracts';
 import { analyzeCapture } from '@earmark/dsp';
-import { EXIT, exitWithError } from '../cli-error.js';
+import { exitWithError, usageExitCode } from '../cli-error.js';
 import { formatReport } from '../analyze/format-report.js';
 import { loadAnalysisInputs, type InputFlags } from '../analyze/load-inputs.js';
 
@@ -20,7 +20,7 @@ async function runAnalyze(capturePath: string, flags: AnalyzeFlags): Promise<voi
 /**
  * `earmark analyze <capture.wav>`: runs the analysis engine on a capture, optionally against
  * its stimulus (a WAV file or a stimulus spec), and prints the report (docs/analysis.md).
- * Unreadable input exits 2 with one line on stderr.
+ * Unreadable input exits 3 with one line on stderr.
  */
 export function registerAnalyzeCommand(program: Command): void {
   const command = program
@@ -32,10 +32,7 @@ export function registerAnalyzeCommand(program: Command): void {
     .option('--channel <n>', 'analyse only this channel (0 = first)')
     .addOption(new Option('--transfer-method <method>', 'transfer estimator (default: deconvolution for sweep specs, else h1)').choices(['h1', 'deconvolution']))
     .option('--json', 'print the report as one JSON object');
-  command.exitOverride((err) => {
-    // Usage errors are errors in Earmark's exit-code scheme: 2.
-    process.exit(err.exitCode === 0 ? EXIT.ok : EXIT.error);
-  });
+  command.exitOverride((err) => process.exit(usageExitCode(err.exitCode)));
   command.action(async (capturePath: string, flags: AnalyzeFlags, cmd: Command) => {
     const debug = cmd.optsWithGlobals<{ debug?: boolean }>().debug === true;
     try {

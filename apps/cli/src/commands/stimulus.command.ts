@@ -2,7 +2,7 @@ import { readFile, writeFile } from 'node:fs/promises';
 import { Option, type Command } from 'commander';
 import { encodeWav, generateStimulus, sweepInverseFilter } from '@earmark/dsp';
 import { STIMULUS_KINDS } from '@earmark/contracts';
-import { EXIT, exitWithError } from '../cli-error.js';
+import { exitWithError, usageExitCode } from '../cli-error.js';
 import { buildStimulusSpec } from '../stimulus/build-stimulus-spec.js';
 import { LOUDNESS_CAUTION, describeSignal, peakDbfs } from '../stimulus/describe-stimulus.js';
 import type { StimulusFlags } from '../stimulus/stimulus-options.js';
@@ -48,7 +48,7 @@ async function runStimulus(flags: StimulusFlags, command: Command): Promise<void
 
 /**
  * `earmark stimulus`: writes a deterministic test signal as WAV, from flags or a JSON spec
- * (docs/stimuli.md). Flags override the spec file's fields. Bad specs exit 2 with one line.
+ * (docs/stimuli.md). Flags override the spec file's fields. Bad specs exit 3 with one line.
  */
 export function registerStimulusCommand(program: Command): void {
   const command = program
@@ -79,10 +79,7 @@ export function registerStimulusCommand(program: Command): void {
     .option('--ratio <r>', 'imd-smpte: amplitude ratio low:high (default 4, i.e. 4:1)')
     .option('--bits <depth>', 'WAV sample format: 16, 24, 32, float32 or float64', '24')
     .option('--inverse <file.wav>', "sweep: also write Farina's inverse filter (32-bit float WAV)");
-  command.exitOverride((err) => {
-    // Usage errors (unknown option, missing -o) are errors in Earmark's exit-code scheme: 2.
-    process.exit(err.exitCode === 0 ? EXIT.ok : EXIT.error);
-  });
+  command.exitOverride((err) => process.exit(usageExitCode(err.exitCode)));
   command.action(async (flags: StimulusFlags, cmd: Command) => {
     const debug = cmd.optsWithGlobals<{ debug?: boolean }>().debug === true;
     try {

@@ -1,5 +1,5 @@
 import type { Command } from 'commander';
-import { EXIT, exitWithError } from '../cli-error.js';
+import { exitWithError, usageExitCode } from '../cli-error.js';
 import { runSubmit } from '../submit/run-submit.js';
 import { readSubmitEnv } from '../submit/submit-env.js';
 import { DEFAULT_TIMEOUT_SECONDS, planSubmit, type SubmitFlags } from '../submit/submit-options.js';
@@ -14,11 +14,13 @@ Formats:
   *.wav                WAV as recorded (PCM 8/16/24/32-bit or float 32/64, 1-8 channels)
   *.f32, *.raw         raw little-endian float32, interleaved; needs --rate and --channels
 
-Exit codes:
+Exit codes (with --wait, the build-status rule over these captures: an error outranks a failure):
   0  without --wait: every capture was accepted; with --wait: every capture passed
-  1  with --wait: at least one capture failed its mask, none is an error
-  2  an error: bad arguments, unreadable file, server or network trouble, an error
-     verdict (the capture could not be judged), or --timeout passed first
+  1  with --wait: at least one capture failed its mask, none is an error (block the build)
+  2  with --wait: at least one capture could not be judged (an error verdict); look at it
+  3  the run could not finish: bad arguments, unreadable file, network trouble or the
+     server unreachable after retries, a problem answer from the server, or --timeout
+     passed with verdicts pending (retry, or fix the invocation)
 
 Uploads carry an Idempotency-Key made from the project, SHA, test case, target, format
 and the file's SHA-256, so running the same step again never stores a capture twice.
@@ -43,17 +45,14 @@ export function registerSubmitCommand(program: Command): void {
     .option('--pipeline-url <url>', 'link back to the pipeline run')
     .requiredOption('--case <key>', 'test case the captures belong to, e.g. eq.music.sweep')
     .option('--target <key>', "target (hardware variant); omit when the project has only one")
-    .option('--wait', 'wait for the verdicts and exit 0 pass / 1 fail / 2 error')
+    .option('--wait', 'wait for the verdicts and exit 0 pass / 1 fail / 2 error (3: could not finish)')
     .option('--timeout <seconds>', `with --wait: how long to wait for all verdicts after the last upload (default ${DEFAULT_TIMEOUT_SECONDS})`)
     .option('--junit <report.xml>', "with --wait: write the build's JUnit XML report here")
     .option('--rate <hz>', 'sample rate of raw float32 captures')
     .option('--channels <n>', 'channel count of raw float32 captures')
     .option('--json', 'print one JSON object (build and captures) instead of the summary')
     .addHelpText('after', HELP_AFTER);
-  command.exitOverride((err) => {
-    // Usage errors (unknown option, missing --sha) are errors in Earmark's exit-code scheme: 2.
-    process.exit(err.exitCode === 0 ? EXIT.ok : EXIT.error);
-  });
+  command.exitOverride((err) => process.exit(usageExitCode(err.exitCode)));
   command.action(async (files: string[], flags: SubmitFlags, cmd: Command) => {
     const debug = cmd.optsWithGlobals<{ debug?: boolean }>().debug === true;
     try {

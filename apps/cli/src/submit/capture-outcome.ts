@@ -1,4 +1,4 @@
-import type { CaptureDto, VerdictOutcome } from '@earmark/contracts';
+import { aggregateBuildStatus, captureStateOf, type CaptureDto, type VerdictOutcome } from '@earmark/contracts';
 
 export type CaptureOutcome = VerdictOutcome | 'pending';
 
@@ -11,4 +11,8 @@ export function captureOutcome(capture: CaptureDto): CaptureOutcome {
   return capture.status === 'error' ? 'error' : 'pending';
 }
 
-export const isSettled = (capture: CaptureDto): boolean => captureOutcome(capture) !== 'pending';
+/** Judged by the build-status rule: a capture analysed again (re-evaluation) is waited for like a new one. */
+export function isSettled(capture: CaptureDto): boolean {
+  const status = aggregateBuildStatus([captureStateOf(capture)]);
+  return status !== 'pending' && status !== 'running';
+}

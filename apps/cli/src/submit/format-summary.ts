@@ -1,4 +1,4 @@
-import type { BuildDetail, BuildRow, CaptureDto, CheckResultDto } from '@earmark/contracts';
+import type { BuildDetail, BuildRow, BuildStatus, CaptureDto, CheckResultDto } from '@earmark/contracts';
 import type { CaptureFile } from './capture-file.js';
 import { captureOutcome, type CaptureOutcome } from './capture-outcome.js';
 
@@ -69,7 +69,8 @@ export function formatSummary(submitted: SubmittedCapture[], dashboard: string):
 }
 
 export interface JsonReport {
-  outcome: CaptureOutcome;
+  /** The build-status rule over this run's captures (pending or running when not waited for or timed out). */
+  outcome: BuildStatus;
   exitCode: number;
   timedOut: boolean;
   dashboard: string;

@@ -8,7 +8,7 @@ import { captureOutcome } from './capture-outcome.js';
 import { fileBody } from './file-body.js';
 import { formatJson, formatSummary, type SubmittedCapture } from './format-summary.js';
 import { idempotencyKey } from './idempotency-key.js';
-import { exitCodeFor, overallOutcome } from './submit-outcome.js';
+import { exitCodeFor, submittedStatus } from './submit-outcome.js';
 import type { SubmitPlan } from './submit-options.js';
 import type { SubmitProgress } from './submit-progress.js';
 import { waitForVerdicts } from './wait-for-verdicts.js';
@@ -18,7 +18,7 @@ export interface SubmitIo {
   progress: SubmitProgress;
 }
 
-/** Raised after the report is printed when --wait ran out of time; the command exits 2 with it. */
+/** Raised after the report is printed when --wait ran out of time; the command exits 3 with it (not judged yet). */
 export class WaitTimeoutError extends Error {
   override readonly name = 'WaitTimeoutError';
 }
@@ -71,7 +71,7 @@ function pendingList(submitted: SubmittedCapture[]): string {
 /**
  * `earmark submit` once the plan is checked: create the build, upload each capture under
  * its Idempotency-Key, optionally wait for the verdicts and fetch the JUnit report, print
- * the report. Returns the exit code; throws for errors that end the run with exit 2.
+ * the report. Returns the exit code; throws for errors that end the run with exit 3.
  */
 export async function runSubmit(plan: SubmitPlan, io: SubmitIo): Promise<number> {
   const { progress } = io;
@@ -102,8 +102,8 @@ export async function runSubmit(plan: SubmitPlan, io: SubmitIo): Promise<number>
       }
     }
 
-    const outcomes = submitted.map((s) => captureOutcome(s.capture));
-    const exitCode = timedOut ? EXIT.error : exitCodeFor(outcomes, plan.waitTimeoutMs !== undefined);
+    const captures = submitted.map((s) => s.capture);
+    const exitCode = timedOut ? EXIT.incomplete : exitCodeFor(captures, plan.waitTimeoutMs !== undefined);
     if (plan.junitPath !== undefined && !timedOut) {
       const xml = await api.getJunit(plan.project, plan.build.sha);
       await writeFile(plan.junitPath, xml);
@@ -111,7 +111,7 @@ export async function runSubmit(plan: SubmitPlan, io: SubmitIo): Promise<number>
     }
     io.stdout.write(
       plan.json
-        ? formatJson({ outcome: overallOutcome(outcomes), exitCode, timedOut, dashboard, build }, submitted)
+        ? formatJson({ outcome: submittedStatus(captures), exitCode, timedOut, dashboard, build }, submitted)
         : formatSummary(submitted, dashboard),
     );
     if (timedOut) {

@@ -1,21 +1,30 @@
-import { EXIT } from '../cli-error.js';
-import type { CaptureOutcome } from './capture-outcome.js';
+import { aggregateBuildStatus, captureStateOf, type BuildStatus, type CaptureDto } from '@earmark/contracts';
+import { EXIT, type ExitCode } from '../cli-error.js';
 
-/** The build's word from its captures' outcomes: any error, else any fail, else any pending, else pass. */
-export function overallOutcome(outcomes: CaptureOutcome[]): CaptureOutcome {
-  for (const word of ['error', 'fail', 'pending'] as const) if (outcomes.includes(word)) return word;
-  return 'pass';
+/** The build-status rule (the same one the server stores and the dashboard shows) over the captures of this run. */
+export function submittedStatus(captures: readonly Pick<CaptureDto, 'status' | 'verdict'>[]): BuildStatus {
+  return aggregateBuildStatus(captures.map(captureStateOf));
+}
+
+const EXIT_BY_STATUS: Record<BuildStatus, ExitCode> = {
+  pass: EXIT.ok,
+  fail: EXIT.fail,
+  error: EXIT.error,
+  // Not judged yet (only after --timeout): nothing to block on, worth a retry.
+  pending: EXIT.incomplete,
+  running: EXIT.incomplete,
+};
+
+/** The exit code a status gates on: pass 0, fail 1, error 2, not judged yet 3. */
+export function exitCodeForStatus(status: BuildStatus): ExitCode {
+  return EXIT_BY_STATUS[status];
 }
 
 /**
  * The exit code a pipeline gates on (docs/ci.md): without --wait, 0 once every upload was
- * accepted (the verdicts come later); with it, 2 if any capture is an error or still
- * pending, else 1 if any failed, else 0. An error outranks a failure because the build was
- * not fully judged, which is a different thing to act on than a judged failure.
+ * accepted (the verdicts come later); with it, the code of the build-status rule over the
+ * submitted captures, so an error outranks a failure exactly as on the dashboard.
  */
-export function exitCodeFor(outcomes: CaptureOutcome[], waited: boolean): number {
-  if (!waited) return EXIT.ok;
-  const overall = overallOutcome(outcomes);
-  if (overall === 'error' || overall === 'pending') return EXIT.error;
-  return overall === 'fail' ? EXIT.fail : EXIT.ok;
+export function exitCodeFor(captures: readonly Pick<CaptureDto, 'status' | 'verdict'>[], waited: boolean): ExitCode {
+  return waited ? exitCodeForStatus(submittedStatus(captures)) : EXIT.ok;
 }

@@ -5,7 +5,7 @@ import { ENGINE_VERSION } from '@earmark/dsp';
 import { LockMode, type MikroORM } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
 import type { Logger } from 'pino';
-import { computeBuildStatus, errorJudgement, findMaskInForce, judgeCapture, noteDrift, recordVerdict, type JobProducer, type RecordDeps } from '@earmark/domain';
+import { computeBuildStatus, errorJudgement, maskInForce, judgeCapture, noteDrift, recordVerdict, type JobProducer, type RecordDeps, type RecordResult } from '@earmark/domain';
 
 export interface AnalyzeDeps {
   orm: MikroORM;
@@ -32,14 +32,14 @@ export async function analyzeCapture(job: PgBoss.JobWithMetadata<unknown>, deps:
     return;
   }
   // A re-evaluation names its (approved) revision; otherwise the revision in force judges.
-  const mask = maskRevisionId ? await em.findOne(MaskRevision, { id: maskRevisionId }) : await findMaskInForce(em, capture.testCase, capture.target);
+  const mask = maskRevisionId ? await em.findOne(MaskRevision, { id: maskRevisionId }) : await maskInForce(em, capture.testCase, capture.target);
   const attempt = job.retryCount + 1;
   const log = deps.logger.child({ captureId, attempt, mask: mask?.id ?? null });
 
   if (attempt >= deps.maxAttempts && job.retryCount > 0) {
     // Earlier attempts crashed or timed out: stop trying rather than loop forever.
     const judgement = errorJudgement(`Analysis abandoned after ${job.retryCount} failed attempt${job.retryCount === 1 ? "" : "s"} (worker crash, timeout or storage outage).`, ENGINE_VERSION);
-    await recordVerdict(em, captureId, mask, judgement, deps.links);
+    await wakeMailSender(deps, await recordVerdict(em, captureId, mask, judgement, deps.links));
     log.error('capture judged error after repeated failures');
     return;
   }
@@ -55,7 +55,7 @@ export async function analyzeCapture(job: PgBoss.JobWithMetadata<unknown>, deps:
       log.warn({ err: error }, 'object store unavailable; the job will retry');
       throw error;
     }
-    await recordVerdict(em, captureId, mask, errorJudgement(`The stored capture cannot be read: ${(error as Error).message}`, ENGINE_VERSION), deps.links);
+    await wakeMailSender(deps, await recordVerdict(em, captureId, mask, errorJudgement(`The stored capture cannot be read: ${(error as Error).message}`, ENGINE_VERSION), deps.links));
     return;
   }
   const started = performance.now();
@@ -68,6 +68,11 @@ export async function analyzeCapture(job: PgBoss.JobWithMetadata<unknown>, deps:
     return 0;
   }) : 0;
   if (result.notificationsQueued > 0 || driftMails > 0) await deps.jobs.sendMail(result.notificationsQueued > 0 ? 'build failed' : 'drift');
+}
+
+/** An error verdict can complete a failing build: its mail goes out now rather than at the next sweep. */
+async function wakeMailSender(deps: AnalyzeDeps, result: RecordResult): Promise<void> {
+  if (result.notificationsQueued > 0) await deps.jobs.sendMail('build failed');
 }
 
 /** Shows the capture (and so its build) as running while the engine works. */

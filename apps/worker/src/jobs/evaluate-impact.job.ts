@@ -1,10 +1,10 @@
-import { EvaluateImpactJob, type ImpactBuildRow, type ImpactCaptureRow, type ImpactCheckRow, type ImpactResult, type VerdictFlip, type VerdictOutcome } from '@earmark/contracts';
-import { Capture, CheckResult, ImpactRun, Verdict, type MaskRevision } from '@earmark/db';
+import { EvaluateImpactJob, aggregateVerdicts, type ImpactBuildRow, type ImpactCaptureRow, type ImpactCheckRow, type ImpactResult, type VerdictFlip, type VerdictOutcome } from '@earmark/contracts';
+import { Capture, CheckResult, ImpactRun, type MaskRevision } from '@earmark/db';
 import { ObjectStoreUnavailableError, type ObjectStore } from '@earmark/platform';
 import type { EntityManager, MikroORM } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
 import type { Logger } from 'pino';
-import { errorJudgement, judgeCapture, type Judgement } from '@earmark/domain';
+import { capturesGovernedBy, errorJudgement, judgeCapture, type Judgement, newestVerdict, recentBuilds } from '@earmark/domain';
 
 export interface ImpactDeps {
   orm: MikroORM;
@@ -34,9 +34,6 @@ const flipOf = (current: VerdictOutcome | boolean | null | undefined, draft: Ver
   if (fail(current) && pass(draft)) return 'fail-to-pass';
   return null;
 };
-
-/** fail if any failed, else error if any errored, else pass (the build aggregate's ranking). */
-const aggregate = (outcomes: VerdictOutcome[]): VerdictOutcome => (outcomes.includes('fail') ? 'fail' : outcomes.includes('error') ? 'error' : 'pass');
 
 /** Worst (smallest) margin of a check over captures; pass only if every capture passed it. */
 function combine(list: CheckOutcome[]): CheckOutcome | null {
@@ -81,8 +78,8 @@ export function summarizeImpact(builds: { id: string; sha: string; branch: strin
       };
     });
     const currentOutcomes = mine.flatMap((e) => (e.current ? [e.current.outcome] : []));
-    const current = currentOutcomes.length ? aggregate(currentOutcomes) : null;
-    const draft = aggregate(mine.map((e) => e.draft.outcome));
+    const current = currentOutcomes.length ? aggregateVerdicts(currentOutcomes) : null;
+    const draft = aggregateVerdicts(mine.map((e) => e.draft.outcome));
     rows.push({ sha: b.sha, branch: b.branch, label: b.label, createdAt: b.createdAt.toISOString(), current, draft, flip: flipOf(current, draft), checks, captures });
   }
   return {
@@ -101,7 +98,7 @@ export function summarizeImpact(builds: { id: string; sha: string; branch: strin
 
 /** The newest stored verdict of a capture with its check results (what the build page shows today). */
 async function currentVerdict(em: EntityManager, capture: Capture): Promise<Evaluated['current']> {
-  const verdict = await em.findOne(Verdict, { capture }, { populate: ['maskRevision'], orderBy: { createdAt: 'desc' } });
+  const verdict = await newestVerdict(em, capture, ['maskRevision']);
   if (!verdict) return null;
   const results = await em.find(CheckResult, { verdict });
   return {
@@ -131,24 +128,8 @@ export async function evaluateImpact(job: PgBoss.Job<unknown>, deps: ImpactDeps)
   const mask: MaskRevision = run.maskRevision;
   const testCase = mask.testCase;
   try {
-    const builds = await em.getConnection().execute<{ id: string; sha: string; branch: string | null; label: string | null; created_at: Date }[]>(
-      `select b.id, b.sha, b.branch, b.label, b.created_at from build b
-        where b.project_id = ? and exists (select 1 from capture c where c.build_id = b.id and c.test_case_id = ?)
-        order by b.created_at desc limit ?`,
-      [testCase.project.id, testCase.id, run.builds],
-    );
-    const cells = builds.length
-      ? await em.getConnection().execute<{ id: string }[]>(
-          // The newest capture per build and target that this revision governs (as the API's re-evaluation selects them).
-          `select distinct on (c.build_id, c.target_id) c.id from capture c
-            where c.test_case_id = ? and c.build_id = any(?::uuid[]) and c.status in ('done', 'error')
-              and (?::uuid is not null and c.target_id = ?::uuid
-                   or ?::uuid is null and not exists (select 1 from mask_revision m where m.test_case_id = c.test_case_id
-                                                        and m.target_id = c.target_id and m.state = 'approved'))
-            order by c.build_id, c.target_id, c.created_at desc`,
-          [testCase.id, `{${builds.map((b) => b.id).join(',')}}`, mask.target?.id ?? null, mask.target?.id ?? null, mask.target?.id ?? null],
-        )
-      : [];
+    const builds = await recentBuilds(em, testCase.project, testCase, 'last-n', run.builds);
+    const cells = await capturesGovernedBy(em, mask, builds.map((b) => b.id));
     await update(deps.orm, run.id, { state: 'running', progress: 0, total: cells.length });
     const captures = await em.find(Capture, { id: { $in: cells.map((c) => c.id) } }, { populate: ['build', 'testCase', 'target'] });
     const evaluated: Evaluated[] = [];

@@ -28,7 +28,7 @@ export async function sendNotifications(deps: NotifyDeps): Promise<void> {
       let sent = 0;
       for (const n of batch) {
         try {
-          await deps.mailer.send({ to: n.recipient, subject: n.subject, text: n.body });
+          await deps.mailer.send({ to: n.recipient, subject: n.subject, text: n.body, html: n.html });
           n.state = 'sent';
           n.sentAt = new Date();
           sent += 1;

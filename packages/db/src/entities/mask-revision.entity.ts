@@ -1,7 +1,7 @@
 import { EntitySchema } from '@mikro-orm/core';
 import { BaseEntity, baseProperties } from './base.js';
 import { Target } from './target.entity.js';
-import { TestCase } from './test-case.entity.js';
+import { TestCase, type StoredJudgingSettings } from './test-case.entity.js';
 import { User } from './user.entity.js';
 
 export const maskRevisionStates = ['draft', 'in_review', 'approved', 'superseded', 'rejected'] as const;
@@ -12,7 +12,7 @@ export type MaskRevisionState = (typeof maskRevisionStates)[number];
  * Exactly one approved revision is in force per (test case, target): a partial unique
  * index in the migration enforces it.
  */
-export class MaskRevision extends BaseEntity<'target' | 'state' | 'checks' | 'note' | 'reviewer' | 'submittedAt' | 'decidedAt' | 'decisionComment' | 'basedOn' | 'derivation'> {
+export class MaskRevision extends BaseEntity<'target' | 'state' | 'checks' | 'note' | 'reviewer' | 'submittedAt' | 'decidedAt' | 'decisionComment' | 'basedOn' | 'derivation' | 'contributors'> {
   testCase!: TestCase;
   target: Target | null = null;
   revision!: number;
@@ -28,6 +28,17 @@ export class MaskRevision extends BaseEntity<'target' | 'state' | 'checks' | 'no
   basedOn: MaskRevision | null = null;
   /** How the limits were derived from golden captures (captures, k, guard, segments), if they were. */
   derivation: Record<string, unknown> | null = null;
+  /**
+   * User ids of everyone who wrote or edited this revision, the author first: none of them
+   * may approve or reject it (the four-eyes rule, packages/domain/src/rules/four-eyes.ts).
+   */
+  contributors: string[] = [];
+  /**
+   * Stimulus, analysis settings and channel map captures are judged with under this revision:
+   * snapshotted from the test case (or the copied revision) when drafted, editable while a
+   * draft, reviewed and approved with the checks.
+   */
+  settings!: StoredJudgingSettings;
 }
 
 export const MaskRevisionSchema = new EntitySchema<MaskRevision, BaseEntity>({
@@ -47,6 +58,8 @@ export const MaskRevisionSchema = new EntitySchema<MaskRevision, BaseEntity>({
     decisionComment: { type: 'text', nullable: true },
     basedOn: { kind: 'm:1', entity: () => MaskRevision, nullable: true, deleteRule: 'set null' },
     derivation: { type: 'json', nullable: true },
+    contributors: { type: 'json' },
+    settings: { type: 'json' },
   },
   uniques: [{ properties: ['testCase', 'revision'] }],
   indexes: [

@@ -9,7 +9,10 @@ export class Membership extends BaseEntity<'subscribed'> {
   user!: User;
   project!: Project;
   role!: ProjectRole;
-  /** E-mail me when a build of this project turns failed. */
+  /**
+   * The member's own setting: mail me when a build of this project fails or errors (and when a
+   * check drifts). Set from the role on creation and role change (`subscribesToBuildMailByDefault`).
+   */
   subscribed = false;
 }
 

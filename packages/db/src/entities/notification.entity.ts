@@ -5,11 +5,14 @@ export const notificationStates = ['pending', 'sent', 'failed'] as const;
 export type NotificationState = (typeof notificationStates)[number];
 
 /** The mail outbox: written in the same transaction as its cause, sent later with retries. */
-export class Notification extends BaseEntity<'payload' | 'state' | 'attempts' | 'lastError' | 'sentAt'> {
+export class Notification extends BaseEntity<'html' | 'payload' | 'state' | 'attempts' | 'lastError' | 'sentAt'> {
   kind!: string;
   recipient!: string;
   subject!: string;
+  /** The plain-text part. */
   body!: string;
+  /** The HTML part (same content); null for mail written before it existed. */
+  html: string | null = null;
   payload: Record<string, unknown> = {};
   state: NotificationState = 'pending';
   attempts = 0;
@@ -25,6 +28,7 @@ export const NotificationSchema = new EntitySchema<Notification, BaseEntity>({
     recipient: { type: 'string', length: 254 },
     subject: { type: 'string', length: 300 },
     body: { type: 'text' },
+    html: { type: 'text', nullable: true },
     payload: { type: 'json' },
     state: { enum: true, items: () => [...notificationStates], type: 'string', default: 'pending', index: 'notification_state_idx' },
     attempts: { type: 'integer', default: 0 },

@@ -17,6 +17,23 @@ export class TestCase extends BaseEntity<'description' | 'analysis' | 'channelMa
   updatedAt: Date = new Date();
 }
 
+/**
+ * Stimulus, analysis settings and channel map as stored JSON: what decides a verdict besides
+ * the mask. Mask revisions and verdicts keep their own copy (see MaskRevision.settings).
+ */
+export interface StoredJudgingSettings {
+  stimulus: Record<string, unknown>;
+  analysis: Record<string, unknown>;
+  channelMap: number[];
+}
+
+/** The test case's own settings, as a new draft snapshots them. */
+export const testCaseSettings = (testCase: Pick<TestCase, 'stimulus' | 'analysis' | 'channelMap'>): StoredJudgingSettings => ({
+  stimulus: testCase.stimulus,
+  analysis: testCase.analysis,
+  channelMap: testCase.channelMap,
+});
+
 export const TestCaseSchema = new EntitySchema<TestCase, BaseEntity>({
   class: TestCase,
   properties: {

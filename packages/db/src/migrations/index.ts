@@ -4,6 +4,11 @@ import { Migration20261202054642 } from './migration-20261202054642.js';
 import { Migration20261202061204 } from './migration-20261202061204.js';
 import { Migration20261202062736 } from './migration-20261202062736.js';
 import { Migration20261202143502 } from './migration-20261202143502.js';
+import { Migration20261202180000 } from './migration-20261202180000.js';
+import { Migration20261202180100 } from './migration-20261202180100.js';
+import { Migration20261202180200 } from './migration-20261202180200.js';
+import { Migration20261202180300 } from './migration-20261202180300.js';
+import { Migration20261202180400 } from './migration-20261202180400.js';
 
 /** Every migration, oldest first. Add each new file here (see DEVELOPERS.md). */
 export const migrationsList: MigrationObject[] = [
@@ -12,4 +17,9 @@ export const migrationsList: MigrationObject[] = [
   { name: 'migration-20261202061204', class: Migration20261202061204 },
   { name: 'migration-20261202062736', class: Migration20261202062736 },
   { name: 'migration-20261202143502', class: Migration20261202143502 },
+  { name: 'migration-20261202180000', class: Migration20261202180000 },
+  { name: 'migration-20261202180100', class: Migration20261202180100 },
+  { name: 'migration-20261202180200', class: Migration20261202180200 },
+  { name: 'migration-20261202180300', class: Migration20261202180300 },
+  { name: 'migration-20261202180400', class: Migration20261202180400 },
 ];

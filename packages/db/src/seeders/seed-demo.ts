@@ -1,6 +1,6 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { MaskDocument, StimulusSpec } from '@earmark/contracts';
-import { ApiToken, MaskRevision, Membership, Project, Target, TestCase, User } from '../entities/index.js';
+import { MaskDocument, StimulusSpec, subscribesToBuildMailByDefault } from '@earmark/contracts';
+import { ApiToken, MaskRevision, Membership, Project, Target, TestCase, User, testCaseSettings } from '../entities/index.js';
 import { hashPassword } from '../users/passwords.js';
 import { DEMO_PASSWORD, demoProjects, demoUsers } from './demo-scenario.js';
 
@@ -41,6 +41,7 @@ export async function seedDemo(em: EntityManager, ciToken: DemoCiToken): Promise
           state: 'approved',
           checks: MaskDocument.parse({ checks: c.mask }).checks,
           note: 'Initial limits agreed for the demo.',
+          settings: testCaseSettings(testCase),
           author: engineer,
           reviewer: qa,
           submittedAt: new Date(),
@@ -48,7 +49,7 @@ export async function seedDemo(em: EntityManager, ciToken: DemoCiToken): Promise
         });
       }
       demoUsers.forEach((u, i) => {
-        if (u.role) tx.create(Membership, { project, user: users[i]!, role: u.role, subscribed: u.role !== 'viewer' });
+        if (u.role) tx.create(Membership, { project, user: users[i]!, role: u.role, subscribed: subscribesToBuildMailByDefault(u.role) });
       });
       if (p.key === 'kestrel-buds') {
         tx.create(ApiToken, {

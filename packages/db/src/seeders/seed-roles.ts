@@ -1,5 +1,5 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
-import type { ProjectRole } from '@earmark/contracts';
+import { subscribesToBuildMailByDefault, type ProjectRole } from '@earmark/contracts';
 import { Membership, Project, User } from '../entities/index.js';
 import { hashPassword } from '../users/passwords.js';
 
@@ -28,8 +28,8 @@ export async function seedRoles(em: EntityManager): Promise<RoleFixture> {
     viewer: mk('viewer'),
     outsider: mk('outsider'),
   };
-  for (const role of ['qa_manager', 'engineer', 'viewer'] as const) em.create(Membership, { project, user: users[role], role, subscribed: role === 'engineer' });
-  em.create(Membership, { project: otherProject, user: users.outsider, role: 'engineer' });
+  for (const role of ['qa_manager', 'engineer', 'viewer'] as const) em.create(Membership, { project, user: users[role], role, subscribed: subscribesToBuildMailByDefault(role) });
+  em.create(Membership, { project: otherProject, user: users.outsider, role: 'engineer', subscribed: subscribesToBuildMailByDefault('engineer') });
   await em.flush();
   return { project, otherProject, users };
 }

@@ -1,7 +1,8 @@
-import { AnalysisSettings, MaskDocument, StimulusSpec } from '@earmark/contracts';
+import { MaskDocument } from '@earmark/contracts';
 import { ENGINE_VERSION, decodeCapture, evaluateMask, stimulusAsPlayed, type DecodedAudio } from '@earmark/dsp';
 import type { Capture, MaskRevision } from '@earmark/db';
 import { errorJudgement, type Judgement } from './judgement.js';
+import { judgingSettingsFor } from './judging-settings.js';
 
 /** Decodes the stored bytes the way the API validated them. */
 export function decodeStoredCapture(bytes: Uint8Array, capture: Pick<Capture, 'format' | 'sampleRate' | 'channelCount'>): DecodedAudio {
@@ -10,8 +11,10 @@ export function decodeStoredCapture(bytes: Uint8Array, capture: Pick<Capture, 'f
 }
 
 /**
- * Analyses one capture against its test case's stimulus and the mask in force. Pure:
- * bytes in, judgement out. Any error of the analysis itself becomes an `error` verdict.
+ * Analyses one capture against a mask revision with that revision's settings (stimulus,
+ * analysis settings, channel map), never the test case's current ones: what a reviewer
+ * approved is what judges. Pure: bytes in, judgement out. Any error of the analysis itself
+ * becomes an `error` verdict.
  */
 export function judgeCapture(bytes: Uint8Array, capture: Capture, mask: MaskRevision | null): Judgement {
   if (!mask) {
@@ -19,8 +22,7 @@ export function judgeCapture(bytes: Uint8Array, capture: Capture, mask: MaskRevi
   }
   try {
     const audio = decodeStoredCapture(bytes, capture);
-    const spec = StimulusSpec.parse(capture.testCase.stimulus);
-    const settings = AnalysisSettings.parse(capture.testCase.analysis);
+    const { stimulus: spec, analysis: settings, channelMap } = judgingSettingsFor(capture.testCase, mask);
     const reference = stimulusAsPlayed(spec);
     const document = MaskDocument.parse({ checks: mask.checks });
     const evaluation = evaluateMask(
@@ -28,7 +30,7 @@ export function judgeCapture(bytes: Uint8Array, capture: Capture, mask: MaskRevi
         capture: audio,
         reference,
         transferMethod: settings.transferMethod ?? (spec.kind === 'sweep' ? 'deconvolution' : 'h1'),
-        ...(capture.testCase.channelMap.length ? { channels: capture.testCase.channelMap } : {}),
+        ...(channelMap.length ? { channels: channelMap } : {}),
         ...(settings.transferBandHz ? { transferBandHz: settings.transferBandHz } : {}),
       },
       document,

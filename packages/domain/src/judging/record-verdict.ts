@@ -1,8 +1,12 @@
 import { LockMode, UniqueConstraintViolationException, type EntityManager } from '@mikro-orm/postgresql';
-import { Build, Capture, CheckResult, Finding, Membership, Notification, Verdict, type MaskRevision } from '@earmark/db';
+import { Build, Capture, CheckResult, Finding, Verdict, type MaskRevision } from '@earmark/db';
 import { computeBuildStatus } from './build-aggregate.js';
+import { noteBuildFailure } from './build-failure-notice.js';
 import { describeFailure, type Judgement } from './judgement.js';
+import { settingsToRecord } from './judging-settings.js';
 import { applyWaivers } from './waivers.js';
+import { waiverBasis } from './waiver-coverage.js';
+import { newestVerdict } from '../repositories/verdicts.js';
 
 export interface RecordResult {
   /** False when this capture already had a verdict under this revision and engine (a re-run job). */
@@ -14,11 +18,14 @@ export interface RecordDeps {
   /** Link to a capture's page in the dashboard. */
   capturePage(project: string, sha: string, captureId: string): string;
   buildPage(project: string, sha: string): string;
+  /** Where a member switches build mail on or off (the mail's footer links there). */
+  settingsPage(project: string): string;
 }
 
 /**
  * Writes a verdict with its check results, the capture's status, the build's aggregate,
- * findings for failing checks and e-mail for a build that just turned failed — all in one
+ * findings for failing checks and, once the build's status is final and failing, its one
+ * build-failure mail (judging/build-failure-notice.ts) — all in one
  * transaction. Idempotent: a second call for the same capture, revision and engine version writes nothing.
  */
 export async function recordVerdict(
@@ -38,7 +45,7 @@ export async function recordVerdict(
       const { judgement, waivers } = await applyWaivers(tx, capture, analysed);
 
       // A capture judged again (re-evaluation under a newer revision or engine) links to the verdict it replaces as the newest.
-      const replaced = await tx.findOne(Verdict, { capture }, { orderBy: { createdAt: 'desc' } });
+      const replaced = await newestVerdict(tx, capture);
       const verdict = tx.create(Verdict, {
         capture,
         maskRevision: mask ? mask.id : null,
@@ -46,6 +53,10 @@ export async function recordVerdict(
         reason: judgement.reason,
         engineVersion: judgement.engineVersion,
         previous: replaced,
+        // Which waivers judged it: a waiver approved, revoked or expired later re-judges it under another basis (rejudge-waivers).
+        waiverBasis: waiverBasis(waivers),
+        // The settings judging read (the revision's), so the verdict stays explainable after they change.
+        settings: settingsToRecord(capture.testCase, mask),
       });
       const results = judgement.checks.map((c) =>
         tx.create(CheckResult, {
@@ -63,36 +74,13 @@ export async function recordVerdict(
       capture.status = judgement.outcome === 'error' ? 'error' : 'done';
       await tx.flush();
 
-      const previous = build.status;
       build.status = await computeBuildStatus(tx, build.id);
 
       const failing = judgement.checks.map((c, i) => ({ check: c, result: results[i]! })).filter(({ check }) => !check.pass);
       for (const { check, result } of failing) await openOrUpdateFinding(tx, capture, check.id, describeFailure(check), result, waivers.get(check.id)?.finding ?? null, waivers.has(check.id));
 
-      let notificationsQueued = 0;
-      if (previous !== 'fail' && build.status === 'fail' && !(await alreadyNotified(tx, capture.project.key, build.sha))) {
-        const subscribers = await tx.find(Membership, { project: capture.project, subscribed: true }, { populate: ['user'] });
-        const link = deps.buildPage(capture.project.key, build.sha);
-        const lines = failing.filter(({ check }) => !waivers.has(check.id)).map(({ check }) => `- ${capture.testCase.key} on ${capture.target.key}: ${describeFailure(check)}`);
-        for (const m of subscribers.filter((s) => !s.user.disabled)) {
-          tx.create(Notification, {
-            kind: 'build-failed',
-            recipient: m.user.email,
-            subject: `[Earmark] ${capture.project.key} build ${build.sha.slice(0, 10)} failed`,
-            body: [
-              `Build ${build.sha}${build.branch ? ` on ${build.branch}` : ''}${build.label ? ` (${build.label})` : ''} of ${capture.project.name} failed.`,
-              '',
-              ...(lines.length ? lines : [`- ${capture.testCase.key} on ${capture.target.key}: ${judgement.reason ?? 'failed'}`]),
-              '',
-              `Open the build: ${link}`,
-              '',
-              'You get this because you subscribed to failed builds of this project in Earmark.',
-            ].join('\n'),
-            payload: { project: capture.project.key, sha: build.sha, captureId: capture.id },
-          });
-          notificationsQueued += 1;
-        }
-      }
+      // After the verdict, status and findings are written: the mail reads the build as it now stands.
+      const notificationsQueued = await noteBuildFailure(tx, build, capture.project, deps);
       await tx.flush();
       return { written: true, notificationsQueued };
     });
@@ -137,17 +125,4 @@ async function openOrUpdateFinding(
     return;
   }
   tx.create(Finding, { project: capture.project, capture, checkResult: result, checkId, title, state: waived ? 'accepted_deviation' : 'open' });
-}
-
-/** A build is announced as failed once, even when later captures send it back to pending and it fails again. */
-async function alreadyNotified(tx: EntityManager, project: string, sha: string): Promise<boolean> {
-  const rows = await tx
-    .getConnection()
-    .execute<{ n: string }[]>(
-      `select count(*) as n from notification where kind = 'build-failed' and payload->>'project' = ? and payload->>'sha' = ?`,
-      [project, sha],
-      'all',
-      tx.getTransactionContext(),
-    );
-  return Number(rows[0]?.n ?? 0) > 0;
 }

@@ -1,6 +1,11 @@
 import { LockMode, type EntityManager } from '@mikro-orm/postgresql';
-import { AuditEvent, Finding, Notification, Waiver, type Capture } from '@earmark/db';
+import { Finding, Waiver, type Capture } from '@earmark/db';
 import type { Judgement } from './judgement.js';
+import { rejudgeWaiverScope, type RejudgeResult } from './rejudge-waivers.js';
+import { coveredChecks, waivedOutcome, withWaiverMark, type WaiverEvent } from './waiver-coverage.js';
+import { recordAudit } from '../services/audit.service.js';
+import { composeWaiverExpiredMail } from '../mail/waiver-expired.mail.js';
+import { writeToOutbox } from '../mail/outbox.js';
 
 export interface WaivedJudgement {
   judgement: Judgement;
@@ -28,29 +33,22 @@ export async function applyWaivers(em: EntityManager, capture: Capture, judgemen
       expiresAt: { $gt: now },
       $or: [{ target: null }, { target: capture.target }],
     },
-    // The waiver running longest wins, so the reported date is the one that matters.
-    { orderBy: { expiresAt: 'desc' }, populate: ['finding'] },
+    { populate: ['finding'] },
   );
+  const covered = coveredChecks(judgement.checks, active.map((w) => ({ id: w.id, checkId: w.checkId, targetId: w.target?.id ?? null, expiresAt: w.expiresAt })), capture.target.id);
   const waivers = new Map<string, Waiver>();
-  for (const w of active) if (!waivers.has(w.checkId)) waivers.set(w.checkId, w);
+  for (const [checkId, cover] of covered) waivers.set(checkId, active.find((w) => w.id === cover.id)!);
   if (waivers.size === 0) return { judgement, waivers };
 
-  const checks = judgement.checks.map((c) => {
-    const w = !c.pass ? waivers.get(c.id) : undefined;
-    return w ? { ...c, details: { ...c.details, waived: { waiverId: w.id, until: w.expiresAt.toISOString() } } } : c;
-  });
-  const unwaived = failing.filter((c) => !waivers.has(c.id));
-  if (unwaived.length > 0) return { judgement: { ...judgement, checks }, waivers };
-  return {
-    judgement: { ...judgement, checks, outcome: 'pass', reason: `passed with waiver: ${failing.map((c) => c.id).join(', ')}` },
-    waivers,
-  };
+  const checks = judgement.checks.map((c) => (covered.has(c.id) ? { ...c, details: withWaiverMark(c.details, c.id, covered) } : c));
+  return { judgement: { ...judgement, checks, ...waivedOutcome(judgement, judgement.checks, covered) }, waivers };
 }
 
 /**
  * Approved waivers past their date become `expired`: their finding (and any accepted
  * deviation of the same check that no other active waiver covers) is re-opened, the
- * transition is audited, and the finding's assignee — or the requester when nobody is
+ * captures they governed are judged again (failing again unless another waiver covers them)
+ * with their builds' statuses, the transition is audited, and the finding's assignee — or the requester when nobody is
  * assigned — gets mail through the outbox. One transaction per run; rows are claimed with
  * SKIP LOCKED so two workers never expire one waiver twice.
  * @returns how many waivers expired
@@ -66,33 +64,7 @@ export async function expireWaivers(em: EntityManager, now = new Date()): Promis
     await tx.populate(due, ['project', 'testCase', 'target', 'requestedBy', 'finding.assignee', 'finding.capture.target']);
     for (const waiver of due) {
       waiver.state = 'expired';
-      const reopened: Finding[] = [];
-      const candidates = await tx.find(
-        Finding,
-        {
-          project: waiver.project,
-          checkId: waiver.checkId,
-          state: 'accepted_deviation',
-          capture: { testCase: waiver.testCase, ...(waiver.target ? { target: waiver.target } : {}) },
-        },
-        { populate: ['assignee', 'capture.target'] },
-      );
-      if (waiver.finding && waiver.finding.state === 'accepted_deviation' && !candidates.includes(waiver.finding)) candidates.push(waiver.finding);
-      for (const finding of candidates) {
-        const stillCovered = await tx.count(Waiver, {
-          id: { $ne: waiver.id },
-          project: waiver.project,
-          testCase: waiver.testCase,
-          checkId: waiver.checkId,
-          state: 'approved',
-          expiresAt: { $gt: now },
-          $or: [{ target: null }, { target: finding.capture.target }],
-        });
-        if (stillCovered > 0) continue;
-        finding.state = 'open';
-        reopened.push(finding);
-        audit(tx, waiver, 'finding.reopen', `finding:${finding.id}`, { from: 'accepted_deviation', to: 'open', waiverId: waiver.id });
-      }
+      const { reopened, rejudged } = await endWaiver(tx, waiver, { kind: 'expired', waiverId: waiver.id }, EXPIRY_ACTOR, now);
       audit(tx, waiver, 'waiver.expire', `waiver:${waiver.id}`, {
         from: 'approved',
         to: 'expired',
@@ -100,40 +72,69 @@ export async function expireWaivers(em: EntityManager, now = new Date()): Promis
         checkId: waiver.checkId,
         testCase: waiver.testCase.key,
         reopenedFindings: reopened.map((f) => f.id),
+        rejudgedCaptures: rejudged.captures,
       });
       const recipient = waiver.finding?.assignee ?? waiver.requestedBy;
-      if (!recipient.disabled) {
-        const scope = `${waiver.testCase.key} / ${waiver.checkId}${waiver.target ? ` on ${waiver.target.key}` : ''}`;
-        tx.create(Notification, {
-          kind: 'waiver-expired',
-          recipient: recipient.email,
-          subject: `[Earmark] ${waiver.project.key}: waiver for ${scope} expired`,
-          body: [
-            `The waiver for ${scope} in ${waiver.project.name} ran until ${waiver.expiresAt.toISOString().slice(0, 10)} and has expired.`,
-            `Reason it was granted: ${waiver.reason}`,
-            '',
-            reopened.length
-              ? `${reopened.length === 1 ? 'Its finding is' : `${reopened.length} findings are`} open again: ${reopened.map((f) => f.title).join('; ')}`
-              : 'No finding needed re-opening.',
-            'From now on the check fails builds again until it is fixed or a new waiver is approved.',
-            '',
-            `You get this because you ${waiver.finding?.assignee ? 'are assigned the finding' : 'requested the waiver'} in Earmark.`,
-          ].join('\n'),
-          payload: { project: waiver.project.key, waiverId: waiver.id, findingIds: reopened.map((f) => f.id) },
-        });
-      }
+      const mail = composeWaiverExpiredMail({
+        project: waiver.project,
+        waiverId: waiver.id,
+        testCase: waiver.testCase.key,
+        checkId: waiver.checkId,
+        target: waiver.target?.key ?? null,
+        expiredAt: waiver.expiresAt,
+        reason: waiver.reason,
+        reopened,
+        recipientIs: waiver.finding?.assignee ? 'assignee' : 'requester',
+      });
+      writeToOutbox(tx, mail, [recipient]);
     }
     await tx.flush();
     return due.length;
   });
 }
 
+const EXPIRY_ACTOR = 'system:waiver-expiry';
+
 function audit(em: EntityManager, waiver: Waiver, action: string, subject: string, details: Record<string, unknown>) {
-  const event = new AuditEvent();
-  event.actor = 'system:waiver-expiry';
-  event.action = action;
-  event.subject = subject;
-  event.project = waiver.project;
-  event.details = details;
-  em.persist(event);
+  recordAudit(em, { actor: EXPIRY_ACTOR, action, subject, project: waiver.project, details });
+}
+
+/**
+ * What ending a waiver (expiry or revocation; its state already set) does besides mail: the
+ * accepted deviations of its check that no other active waiver covers open again, and the
+ * captures it governed are judged again at once (rejudge-waivers), so they fail where they
+ * fail. Needs the waiver's project, test case, target and finding loaded.
+ */
+export async function endWaiver(tx: EntityManager, waiver: Waiver, event: WaiverEvent, actor: string, now = new Date()): Promise<{ reopened: Finding[]; rejudged: RejudgeResult }> {
+  // Re-judging first: it takes the build locks before this transaction writes a finding.
+  const rejudged = await rejudgeWaiverScope(tx, waiver, event, actor, now);
+  const reopened: Finding[] = [...rejudged.reopened];
+  const candidates = await tx.find(
+    Finding,
+    {
+      project: waiver.project,
+      checkId: waiver.checkId,
+      state: 'accepted_deviation',
+      capture: { testCase: waiver.testCase, ...(waiver.target ? { target: waiver.target } : {}) },
+    },
+    { populate: ['assignee', 'capture.target'] },
+  );
+  if (waiver.finding && waiver.finding.state === 'accepted_deviation' && !candidates.includes(waiver.finding)) candidates.push(waiver.finding);
+  for (const finding of candidates) {
+    await tx.populate(finding, ['capture.target']);
+    const stillCovered = await tx.count(Waiver, {
+      id: { $ne: waiver.id },
+      project: waiver.project,
+      testCase: waiver.testCase,
+      checkId: waiver.checkId,
+      state: 'approved',
+      expiresAt: { $gt: now },
+      $or: [{ target: null }, { target: finding.capture.target }],
+    });
+    if (stillCovered > 0) continue;
+    finding.state = 'open';
+    reopened.push(finding);
+    recordAudit(tx, { actor, action: 'finding.reopen', subject: `finding:${finding.id}`, project: waiver.project, details: { from: 'accepted_deviation', to: 'open', waiverId: waiver.id } });
+  }
+  return { reopened, rejudged };
 }

@@ -26,8 +26,11 @@ export async function buildDetail(em: EntityManager, project: Project, sha: stri
   if (!build) throw new NotFoundError(`There is no build ${sha} in ${project.key}.`);
   const captures = await em.find(Capture, { build }, { populate: ['project', 'build', 'testCase', 'target'], orderBy: { createdAt: 'asc' } });
   const dtos = await presentCaptures(em, captures, links);
-  const counts = { pass: 0, fail: 0, error: 0, pending: 0 };
-  for (const c of dtos) counts[c.verdict?.outcome ?? 'pending'] += 1;
+  const counts = { pass: 0, fail: 0, error: 0, pending: 0, waived: 0 };
+  for (const c of dtos) {
+    counts[c.verdict?.outcome ?? 'pending'] += 1;
+    if (c.verdict?.waiver) counts.waived += 1;
+  }
   return {
     ...toBuildRow(build, project, dtos.length),
     counts,

@@ -39,6 +39,7 @@ export async function buildMatrix(em: EntityManager, project: Project, sha: stri
       outcome: outcomeOf(verdict),
       failing: (verdict?.checks ?? []).filter((c) => !c.pass).sort((a, b) => (a.margin ?? 0) - (b.margin ?? 0)),
       previous: prior ? outcomeOf(before!.verdicts.get(prior.id)) : null,
+      waiver: verdict?.waiver ?? null,
     };
   });
   const testCases = await em.find(TestCase, { project }, { orderBy: { key: 'asc' } });

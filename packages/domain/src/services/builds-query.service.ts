@@ -1,6 +1,7 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type { BuildSummary, BuildsPage, BuildsQuery, BuildTrend } from '@earmark/contracts';
 import type { Project } from '@earmark/db';
+import { newestVerdictSql } from '../repositories/verdicts.js';
 
 interface BuildRowSql {
   id: string;
@@ -14,6 +15,7 @@ interface BuildRowSql {
   fail: string;
   error: string;
   pending: string;
+  waived: string;
   captures: string;
 }
 
@@ -39,21 +41,23 @@ export function toBuildSummary(row: BuildRowSql, projectKey: string): BuildSumma
     status: row.status,
     createdAt: new Date(row.created_at).toISOString(),
     captureCount: Number(row.captures),
-    counts: { pass: Number(row.pass), fail: Number(row.fail), error: Number(row.error), pending: Number(row.pending) },
+    counts: { pass: Number(row.pass), fail: Number(row.fail), error: Number(row.error), pending: Number(row.pending), waived: Number(row.waived) },
   };
 }
 
-// Verdict counts of each build on the page: one lateral look-up of each capture's newest verdict.
+// Verdict counts of each build on the page: one lateral look-up of each capture's newest verdict
+// (`waived`: passes with a waived check, i.e. passed with waiver).
 const WITH_COUNTS = `
   select p.id, p.sha, p.label, p.branch, p.pipeline_url, p.status, p.created_at,
          count(c.id) as captures,
          count(c.id) filter (where lv.outcome = 'pass') as pass,
          count(c.id) filter (where lv.outcome = 'fail') as fail,
          count(c.id) filter (where lv.outcome = 'error') as error,
-         count(c.id) filter (where lv.outcome is null) as pending
+         count(c.id) filter (where lv.outcome is null) as pending,
+         count(c.id) filter (where lv.outcome = 'pass' and exists (select 1 from check_result cr where cr.verdict_id = lv.id and cr.details->'waived' is not null)) as waived
     from page p
     left join capture c on c.build_id = p.id
-    left join lateral (select v.outcome from verdict v where v.capture_id = c.id order by v.created_at desc limit 1) lv on true
+    left join lateral (select ${newestVerdictSql('c.id')} as outcome, ${newestVerdictSql('c.id', 'id')} as id) lv on true
    group by p.id, p.sha, p.label, p.branch, p.pipeline_url, p.status, p.created_at`;
 
 /**

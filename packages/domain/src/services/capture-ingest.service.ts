@@ -1,16 +1,20 @@
 import { createHash, randomUUID } from 'node:crypto';
 import { UniqueConstraintViolationException, type EntityManager } from '@mikro-orm/postgresql';
 import { RAW_FLOAT32_MEDIA_TYPE, aggregateBuildStatus, type CaptureDto } from '@earmark/contracts';
-import { Build, Capture, Target, TestCase, type Project } from '@earmark/db';
+import { Capture, Target, TestCase, type Project } from '@earmark/db';
 import { ObjectStoreUnavailableError, type ObjectStore } from '@earmark/platform';
 import { AudioDecodeError, decodeRawFloat32, decodeWav, type DecodedAudio } from '@earmark/dsp';
 import type { JobProducer } from '../jobs/job-producer.js';
 import type { Logger } from 'pino';
 import { ConflictError, ServiceUnavailableError, UnsupportedCaptureError, ValidationError } from '../errors.js';
 import { presentCaptures } from './capture-presenter.js';
+import { assertCaptureFitsTestCase } from './capture-requirements.js';
+import { findOrCreateBuild } from '../repositories/builds.js';
 import type { Links } from './links.js';
 import { recordAudit } from './audit.service.js';
 import { actorName, type Principal } from '../actor.js';
+import { storedSettingsFor } from '../judging/judging-settings.js';
+import { maskInForce } from '../repositories/masks.js';
 
 /** A capture upload as the HTTP edge parsed it: bytes, how to read them, and where they go. */
 export interface CaptureUpload {
@@ -58,6 +62,8 @@ export class CaptureIngestService {
         'sample-rate-mismatch',
       );
     }
+    const settings = storedSettingsFor(testCase, await maskInForce(em, testCase, target));
+    assertCaptureFitsTestCase({ sampleRate: audio.sampleRate, channelCount: audio.channels.length }, testCase, settings);
     const sha256 = createHash('sha256').update(upload.bytes).digest('hex');
     const captureId = randomUUID();
     const extension = audio.format.container === 'wav' ? 'wav' : 'f32';
@@ -75,8 +81,7 @@ export class CaptureIngestService {
     let capture: Capture;
     try {
       capture = await em.transactional(async (tx) => {
-        let build = await tx.findOne(Build, { project, sha });
-        build ??= tx.create(Build, { project, sha });
+        const { build } = await findOrCreateBuild(tx, project, sha);
         const row = tx.create(Capture, {
           id: captureId,
           project,

@@ -1,18 +1,14 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
-import type { CaptureDto, CheckResultDto, VerdictDto } from '@earmark/contracts';
-import { CheckResult, Verdict, type Capture } from '@earmark/db';
+import { JudgingSettings, type CaptureDto, type CheckResultDto, type VerdictDto } from '@earmark/contracts';
+import { CheckResult, type Capture, type Verdict } from '@earmark/db';
 import type { Links } from './links.js';
+import { newestVerdicts } from '../repositories/verdicts.js';
+import { verdictWaiver, waiverMarkOf } from '../judging/waiver-coverage.js';
 
 /** The newest verdict of each capture with its check results, in two queries. */
 export async function latestVerdicts(em: EntityManager, captures: Capture[]): Promise<Map<string, VerdictDto>> {
   if (captures.length === 0) return new Map();
-  const verdicts = await em.find(
-    Verdict,
-    { capture: { $in: captures.map((c) => c.id) } },
-    { populate: ['maskRevision', 'previous', 'previous.maskRevision'], orderBy: { createdAt: 'desc' } },
-  );
-  const newest = new Map<string, Verdict>();
-  for (const v of verdicts) if (!newest.has(v.capture.id)) newest.set(v.capture.id, v);
+  const newest = await newestVerdicts(em, captures.map((c) => c.id), ['maskRevision', 'previous', 'previous.maskRevision']);
   const previousIds = [...newest.values()].flatMap((v) => (v.previous ? [v.previous.id] : []));
   const checks = await em.find(CheckResult, { verdict: { $in: [...newest.values()].map((v) => v.id) } }, { orderBy: { checkId: 'asc' } });
   const previousChecks = previousIds.length ? await em.find(CheckResult, { verdict: { $in: previousIds } }) : [];
@@ -30,6 +26,7 @@ export async function latestVerdicts(em: EntityManager, captures: Capture[]): Pr
       unit: typeof c.details.unit === 'string' ? c.details.unit : null,
       worstHz: c.worstHz,
       ...(c.details.waived ? { waived: true } : {}),
+      waiver: waiverMarkOf(c.details),
       ...(Array.isArray(c.details.warnings) && c.details.warnings.length ? { warnings: c.details.warnings.filter((w): w is string => typeof w === 'string') } : {}),
       ...(typeof c.details.error === 'string' ? { error: c.details.error } : {}),
     });
@@ -45,6 +42,7 @@ export async function latestVerdicts(em: EntityManager, captures: Capture[]): Pr
         maskRevisionId: v.maskRevision?.id ?? null,
         maskRevision: v.maskRevision?.revision ?? null,
         createdAt: v.createdAt.toISOString(),
+        settings: recordedSettings(v.settings),
         ...(v.previous
           ? {
               previousOutcome: v.previous.outcome,
@@ -54,9 +52,17 @@ export async function latestVerdicts(em: EntityManager, captures: Capture[]): Pr
             }
           : {}),
         checks: byVerdict.get(v.id) ?? [],
+        waiver: verdictWaiver(v.outcome, (byVerdict.get(v.id) ?? []).map((c) => c.waiver ?? null)),
       },
     ]),
   );
+}
+
+/** The settings a verdict recorded, as the contracts read them; null when not recorded (or no longer readable). */
+function recordedSettings(stored: Verdict['settings']): VerdictDto['settings'] {
+  if (!stored) return null;
+  const parsed = JudgingSettings.safeParse(stored);
+  return parsed.success ? parsed.data : null;
 }
 
 /** A measured value changes when it moves by more than this fraction (or the result flips). */

@@ -1,14 +1,16 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { AnalysisSettings, CapturePlot, MaskCheck, StimulusSpec, type AudioKind, type CaptureDetail, type MagnitudeEnvelopeCheck, type PlotQuery } from '@earmark/contracts';
-import { Capture, Verdict, type MaskRevision, type Project } from '@earmark/db';
+import { CapturePlot, JudgingSettings, MaskCheck, type AudioKind, type CaptureDetail, type MagnitudeEnvelopeCheck, type PlotQuery } from '@earmark/contracts';
+import { Capture, type MaskRevision, type Project } from '@earmark/db';
 import { type ObjectStore } from '@earmark/platform';
 import { ENGINE_VERSION, MaskCheckError, captureCurves, encodeWav, listeningResidual, maskPlotData, stimulusAsPlayed, type DecodedAudio } from '@earmark/dsp';
 import { NotFoundError } from '../errors.js';
+import { storedSettingsFor } from '../judging/judging-settings.js';
 import { CaptureAudioLoader } from './capture-audio.js';
 import { buildSummary } from './builds-query.service.js';
 import { presentCaptures } from './capture-presenter.js';
 import type { FindingsService } from './findings.service.js';
 import type { Links } from './links.js';
+import { newestVerdict, newestVerdictSql } from '../repositories/verdicts.js';
 
 type LoadedCapture = Capture;
 
@@ -33,15 +35,24 @@ export class CaptureViewService {
 
   /** The mask the capture was judged against (its newest verdict's revision). */
   private async judgedMask(em: EntityManager, capture: Capture): Promise<MaskRevision | null> {
-    const verdict = await em.findOne(Verdict, { capture }, { populate: ['maskRevision'], orderBy: { createdAt: 'desc' } });
+    const verdict = await newestVerdict(em, capture, ['maskRevision']);
     return verdict?.maskRevision ?? null;
+  }
+
+  /**
+   * The settings the capture was judged with (its newest verdict's record, else its revision's;
+   * the test case's own before any verdict), so the page draws what the verdict measured.
+   */
+  private async judgedSettings(em: EntityManager, capture: Capture): Promise<JudgingSettings> {
+    const verdict = await newestVerdict(em, capture, ['maskRevision']);
+    return JudgingSettings.parse(verdict?.settings ?? storedSettingsFor(capture.testCase, verdict?.maskRevision ?? null));
   }
 
   private async lastPassing(em: EntityManager, capture: Capture): Promise<CaptureDetail['lastPassing']> {
     const rows = await em.getConnection().execute<{ id: string; sha: string; created_at: Date }[]>(
       `select c.id, b.sha, c.created_at from capture c join build b on b.id = c.build_id
         where c.test_case_id = ? and c.target_id = ? and b.created_at < ? and c.status = 'done'
-          and (select v.outcome from verdict v where v.capture_id = c.id order by v.created_at desc limit 1) = 'pass'
+          and ${newestVerdictSql('c.id')} = 'pass'
         order by b.created_at desc limit 1`,
       [capture.testCase.id, capture.target.id, capture.build.createdAt],
     );
@@ -94,11 +105,10 @@ export class CaptureViewService {
   private async computePlot(em: EntityManager, project: Project, id: string, q: PlotQuery): Promise<CapturePlot> {
     const capture = await this.load(em, project, id);
     const audio = await this.audioOf(capture);
-    const spec = StimulusSpec.parse(capture.testCase.stimulus);
-    const settings = AnalysisSettings.parse(capture.testCase.analysis);
+    const { stimulus: spec, analysis: settings, channelMap } = await this.judgedSettings(em, capture);
     const hasSignal = spec.kind !== 'silence';
     const reference = hasSignal ? stimulusAsPlayed(spec) : undefined;
-    const channel = Math.min(q.channel ?? capture.testCase.channelMap[0] ?? 0, audio.channels.length - 1);
+    const channel = Math.min(q.channel ?? channelMap[0] ?? 0, audio.channels.length - 1);
     const mask = await this.judgedMask(em, capture);
     const envelope = (mask?.checks ?? []).map((c) => MaskCheck.parse(c)).find((c): c is MagnitudeEnvelopeCheck => c.kind === 'magnitude-envelope') ?? null;
     const nyquist = audio.sampleRate / 2;
@@ -160,7 +170,7 @@ export class CaptureViewService {
   /** WAV (32-bit float) of the capture, its stimulus, or the residual: what the firmware changed. */
   async audio(em: EntityManager, project: Project, id: string, kind: AudioKind): Promise<Uint8Array> {
     const capture = await this.load(em, project, id);
-    const spec = StimulusSpec.parse(capture.testCase.stimulus);
+    const spec = (await this.judgedSettings(em, capture)).stimulus;
     if (kind === 'stimulus') {
       const s = stimulusAsPlayed(spec);
       return encodeWav(s.channels, s.sampleRate, { encoding: 'float', bitsPerSample: 32 });

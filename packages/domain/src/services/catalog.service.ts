@@ -1,7 +1,9 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import {
   AnalysisSettings,
+  JUDGING_SETTING_FIELDS,
   StimulusSpec,
+  type JudgingSettingField,
   type CreateTargetRequest,
   type CreateTestCaseRequest,
   type TargetDto,
@@ -9,10 +11,11 @@ import {
   type UpdateTargetRequest,
   type UpdateTestCaseRequest,
 } from '@earmark/contracts';
-import { Capture, Target, TestCase, type Project } from '@earmark/db';
+import { Capture, MaskRevision, Target, TestCase, testCaseSettings, type Project } from '@earmark/db';
 import { actorName, type Principal } from '../actor.js';
 import { ConflictError, NotFoundError } from '../errors.js';
-import { recordAudit } from './audit.service.js';
+import { normalizedSettings } from '../judging/judging-settings.js';
+import { changedFields, recordAudit } from './audit.service.js';
 
 export const toTargetDto = (t: Target): TargetDto => ({
   key: t.key,
@@ -22,7 +25,7 @@ export const toTargetDto = (t: Target): TargetDto => ({
   createdAt: t.createdAt.toISOString(),
 });
 
-export const toTestCaseDto = (c: TestCase): TestCaseDto => ({
+export const toTestCaseDto = (c: TestCase, hasCaptures: boolean): TestCaseDto => ({
   key: c.key,
   name: c.name,
   description: c.description,
@@ -30,9 +33,20 @@ export const toTestCaseDto = (c: TestCase): TestCaseDto => ({
   stimulus: StimulusSpec.parse(c.stimulus),
   analysis: AnalysisSettings.parse(c.analysis),
   channelMap: c.channelMap,
+  hasCaptures,
   createdAt: c.createdAt.toISOString(),
   updatedAt: c.updatedAt.toISOString(),
 });
+
+/** How a refusal names each setting. */
+const SETTING_NAMES: Record<JudgingSettingField, string> = { stimulus: 'stimulus', analysis: 'analysis settings', channelMap: 'channel map' };
+
+/** Drafts whose settings are still the test case's own (not edited since they were drafted). */
+async function draftsCarrying(em: EntityManager, testCase: TestCase): Promise<MaskRevision[]> {
+  const own = JSON.stringify(normalizedSettings(testCaseSettings(testCase)));
+  const drafts = await em.find(MaskRevision, { testCase, state: 'draft' });
+  return drafts.filter((d) => JSON.stringify(normalizedSettings(d.settings)) === own);
+}
 
 /** Targets and test cases of a project (engineers and above edit them). */
 export class CatalogService {
@@ -66,6 +80,18 @@ export class CatalogService {
     return em.find(TestCase, { project }, { orderBy: { key: 'asc' } });
   }
 
+  /** Test cases as the API answers them, with whether each has captures (one query for all). */
+  async presentTestCases(em: EntityManager, testCases: TestCase[]): Promise<TestCaseDto[]> {
+    if (testCases.length === 0) return [];
+    const rows = await em
+      .getConnection()
+      .execute<{ id: string }[]>(`select t.id from test_case t where t.id = any(?::uuid[]) and exists (select 1 from capture c where c.test_case_id = t.id)`, [
+        `{${testCases.map((t) => t.id).join(',')}}`,
+      ]);
+    const withCaptures = new Set(rows.map((r) => r.id));
+    return testCases.map((t) => toTestCaseDto(t, withCaptures.has(t.id)));
+  }
+
   async getTestCase(em: EntityManager, project: Project, key: string): Promise<TestCase> {
     const testCase = await em.findOne(TestCase, { project, key });
     if (!testCase) throw new NotFoundError(`Project ${project.key} has no test case ${key}.`);
@@ -81,18 +107,37 @@ export class CatalogService {
   }
 
   /**
-   * Changing the stimulus of a test case that already has captures would make their
-   * verdicts irreproducible, so that is refused; name and settings may change.
+   * Name and description are always editable. Stimulus, analysis settings and channel map
+   * decide verdicts: once the test case has captures they change only through a reviewed mask
+   * revision (they come into force with its approval). Before that (set-up) they may be edited
+   * here, and drafts still carrying the old settings follow. Audited with before and after.
+   * @throws ConflictError for a settings change once captures exist (nothing is written)
    */
   async updateTestCase(em: EntityManager, project: Project, key: string, input: UpdateTestCaseRequest, principal: Principal): Promise<TestCase> {
     const testCase = await this.getTestCase(em, project, key);
-    if (input.stimulus && JSON.stringify(input.stimulus) !== JSON.stringify(StimulusSpec.parse(testCase.stimulus))) {
-      if ((await em.count(Capture, { testCase })) > 0) {
-        throw new ConflictError(`Test case ${key} already has captures; create a new test case for a new stimulus.`);
-      }
+    const current = { name: testCase.name, description: testCase.description, ...normalizedSettings(testCaseSettings(testCase)) };
+    const change = changedFields(current, { ...input });
+    const settings = JUDGING_SETTING_FIELDS.filter((f) => f in change.after);
+    if (settings.length > 0 && (await em.count(Capture, { testCase })) > 0) {
+      const names = settings.map((f) => SETTING_NAMES[f]);
+      const list = names.length > 1 ? `${names.slice(0, -1).join(', ')} and ${names.at(-1)}` : names[0];
+      throw new ConflictError(
+        `The ${list} of test case ${key} ${settings.length > 1 ? 'are' : 'is'} under review once captures exist: draft a mask revision with the new settings.`,
+        { code: 'settings-under-review' },
+      );
     }
-    em.assign(testCase, Object.fromEntries(Object.entries(input).filter(([, v]) => v !== undefined)));
-    recordAudit(em, { actor: actorName(principal), action: 'test-case.update', subject: `test-case:${key}`, project });
+    if (Object.keys(change.after).length === 0) return testCase;
+    const followers = settings.length > 0 ? await draftsCarrying(em, testCase) : [];
+    em.assign(testCase, change.after);
+    for (const draft of followers) draft.settings = structuredClone(testCaseSettings(testCase));
+    recordAudit(em, {
+      actor: actorName(principal),
+      action: 'test-case.update',
+      subject: `test-case:${key}`,
+      project,
+      ...(followers.length ? { details: { draftsUpdated: followers.map((d) => d.revision) } } : {}),
+      change,
+    });
     await em.flush();
     return testCase;
   }

@@ -88,8 +88,16 @@ export class FindingsService {
     return rows.map(toRow);
   }
 
-  /** @throws NotFoundError for a finding of another project; ValidationError for an assignee who is no member. */
+  /**
+   * @throws NotFoundError for a finding of another project; ValidationError for an assignee who
+   * is no member, or for `accepted_deviation`, which only an approved waiver sets (a second person decides it).
+   */
   async update(em: EntityManager, project: Project, ids: string[], change: UpdateFindingRequest, actor: User): Promise<FindingRow[]> {
+    if (change.state === 'accepted_deviation') {
+      throw new ValidationError('A finding becomes an accepted deviation only through an approved waiver: request a waiver for it instead.', [
+        { path: 'body.state', message: 'accepted_deviation is set by an approved waiver; request one' },
+      ]);
+    }
     const findings = await em.find(Finding, { id: { $in: ids }, project });
     if (findings.length !== new Set(ids).size) throw new NotFoundError(`Some of these findings do not exist in ${project.key}.`);
     let assignee: User | null | undefined;

@@ -2,6 +2,7 @@ import type { EntityManager } from '@mikro-orm/postgresql';
 import { ImpactResult, type CreateImpactRunRequest, type ImpactRunDto, type ReevaluateRequest, type ReevaluateResponse } from '@earmark/contracts';
 import { ImpactRun, MaskRevision, type Project, type TestCase, type User } from '@earmark/db';
 import type { JobProducer } from '../jobs/job-producer.js';
+import { capturesGovernedBy, recentBuilds } from '../repositories/masks.js';
 import { ENGINE_VERSION } from '@earmark/dsp';
 import { ConflictError, NotFoundError, ServiceUnavailableError } from '../errors.js';
 import { recordAudit } from './audit.service.js';
@@ -22,25 +23,6 @@ export function toImpactRunDto(run: ImpactRun): ImpactRunDto {
     error: run.error,
     result: result?.success ? result.data : null,
   };
-}
-
-/**
- * Captures a revision governs in a project's recent builds: the newest capture of each build
- * and target of the test case (earlier ones were re-runs), on the revision's target, or — for an
- * all-targets revision — on every target without an approved revision of its own. The worker's
- * evaluate-impact job selects the same cells with the same query.
- */
-export async function governedCaptures(em: EntityManager, revision: MaskRevision, buildIds: string[]): Promise<{ id: string; build_id: string }[]> {
-  if (buildIds.length === 0) return [];
-  return em.getConnection().execute(
-    `select distinct on (c.build_id, c.target_id) c.id, c.build_id from capture c
-      where c.test_case_id = ? and c.build_id = any(?::uuid[]) and c.status in ('done', 'error')
-        and (?::uuid is not null and c.target_id = ?::uuid
-             or ?::uuid is null and not exists (select 1 from mask_revision m where m.test_case_id = c.test_case_id
-                                                  and m.target_id = c.target_id and m.state = 'approved'))
-      order by c.build_id, c.target_id, c.created_at desc`,
-    [revision.testCase.id, `{${buildIds.join(',')}}`, revision.target?.id ?? null, revision.target?.id ?? null, revision.target?.id ?? null],
-  );
 }
 
 /** Impact runs of a revision over past builds, and re-evaluation under an approved revision. */
@@ -89,16 +71,8 @@ export class ImpactService {
   async reevaluate(em: EntityManager, project: Project, testCase: TestCase, revision: number, req: ReevaluateRequest, user: User): Promise<ReevaluateResponse> {
     const mask = await this.revision(em, testCase, revision);
     if (mask.state !== 'approved') throw new ConflictError(`Revision ${revision} is ${mask.state}; only the approved revision in force can re-evaluate builds.`);
-    const builds = await em.getConnection().execute<{ id: string }[]>(
-      req.scope === 'last-n'
-        ? `select b.id from build b where b.project_id = ? and exists (select 1 from capture c where c.build_id = b.id and c.test_case_id = ?)
-            order by b.created_at desc limit ?`
-        : `select distinct on (coalesce(b.branch, '')) b.id from build b
-            where b.project_id = ? and exists (select 1 from capture c where c.build_id = b.id and c.test_case_id = ?)
-            order by coalesce(b.branch, ''), b.created_at desc limit ?`,
-      [project.id, testCase.id, req.builds ?? 20],
-    );
-    const captures = await governedCaptures(em, mask, builds.map((b) => b.id));
+    const builds = await recentBuilds(em, project, testCase, req.scope, req.builds ?? 20);
+    const captures = await capturesGovernedBy(em, mask, builds.map((b) => b.id));
     // Judged already by this revision with this engine: nothing would change. A verdict of an
     // older engine is judged again, so a new engine's numbers reach past builds.
     const judged = await em

@@ -10,7 +10,8 @@ export function createLinks(publicUrl: string) {
     masksPage: (project: string, testCase: string) => `${base}/projects/${project}/test-cases/${encodeURIComponent(testCase)}/masks`,
     approvalsPage: (project: string) => `${base}/projects/${project}/approvals`,
     findingsPage: (project: string) => `${base}/projects/${project}/findings`,
-    settingsPage: (project: string) => `${base}/projects/${project}/settings`,
+    /** The project page's mail section, where a member switches build mail on or off. */
+    settingsPage: (project: string) => `${base}/projects/${project}#mail`,
   };
 }
 export type Links = ReturnType<typeof createLinks>;

@@ -1,5 +1,6 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import {
+  JudgingSettings,
   MaskCheck,
   MaskDocument,
   type AuditTrailEntry,
@@ -13,36 +14,18 @@ import {
   type ProjectAuditQuery,
   type UpdateMaskDraftRequest,
 } from '@earmark/contracts';
-import { AuditEvent, MaskRevision, Membership, Notification, type Project, type TestCase, type User } from '@earmark/db';
-import { ConflictError, ForbiddenError, NotFoundError } from '../errors.js';
+import { AuditEvent, MaskRevision, type Project, type StoredJudgingSettings, type TestCase, type User } from '@earmark/db';
+import { ConflictError, NotFoundError } from '../errors.js';
+import { assertMayDecide, assertMayEditDraft, assertMaySubmit, contributorsOf, maskUnderReview, withContributor } from '../rules/four-eyes.js';
+import { normalizedSettings } from '../judging/judging-settings.js';
 import { parseWith } from '../validate.js';
 import type { Links } from './links.js';
-import { MASK_POPULATE, assertNotAuthor, maskSubject, recordMaskTransition, type MaskService } from './mask.service.js';
-
-export interface OutboxMail {
-  kind: string;
-  subject: string;
-  body: string;
-  payload: Record<string, unknown>;
-}
-
-/**
- * Mail to the project's QA managers, written to the outbox in the caller's unit of work
- * (so it commits with the change it announces). People in `except` (the actor, the
- * author) are left out: they cannot decide on their own work anyway.
- * @returns the number of messages queued
- */
-export async function mailQaManagers(em: EntityManager, project: Project, mail: OutboxMail, except: User[]): Promise<number> {
-  const managers = await em.find(Membership, { project, role: 'qa_manager' }, { populate: ['user'] });
-  const skip = new Set(except.map((u) => u.id));
-  let queued = 0;
-  for (const m of managers) {
-    if (m.user.disabled || skip.has(m.user.id)) continue;
-    em.create(Notification, { kind: mail.kind, recipient: m.user.email, subject: mail.subject, body: mail.body, payload: mail.payload });
-    queued += 1;
-  }
-  return queued;
-}
+import { changedFields } from './audit.service.js';
+import { MASK_POPULATE, maskSubject, recordMaskTransition, type MaskService } from './mask.service.js';
+import { mailMaskDecision } from './mask-decision-mail.js';
+import { composeMaskReviewMail } from '../mail/mask-review.mail.js';
+import { writeToOutbox } from '../mail/outbox.js';
+import { qaManagersOf } from '../mail/recipients.js';
 
 const isRecord = (v: unknown): v is Record<string, unknown> => typeof v === 'object' && v !== null && !Array.isArray(v);
 
@@ -87,6 +70,20 @@ export function diffChecks(baseChecks: unknown[], headChecks: unknown[]): CheckD
   return result;
 }
 
+/**
+ * What differs between two revisions' settings: stimulus and analysis field by field
+ * (`stimulus.frequency`), the channel map as a whole (`[0, 1]` → `[1]` reads better than per index).
+ */
+export function diffSettings(base: StoredJudgingSettings, head: StoredJudgingSettings): CheckFieldChange[] {
+  const before = normalizedSettings(base);
+  const after = normalizedSettings(head);
+  const out: CheckFieldChange[] = [];
+  diffValues(before.stimulus, after.stimulus, 'stimulus', out);
+  diffValues(before.analysis, after.analysis, 'analysis', out);
+  if (JSON.stringify(before.channelMap) !== JSON.stringify(after.channelMap)) out.push({ path: 'channelMap', before: before.channelMap, after: after.channelMap });
+  return out;
+}
+
 const str = (v: unknown) => (typeof v === 'string' ? v : null);
 
 export function toTrailEntry(e: AuditEvent): AuditTrailEntry {
@@ -123,24 +120,41 @@ export class MaskWorkflowService {
     );
   }
 
-  /** @throws ConflictError unless the revision is a draft. */
+  /**
+   * Changes a draft; only its author may. The audit event records the changed fields' values
+   * before and after, and the editor joins the revision's contributors.
+   * @throws ConflictError unless the revision is a draft; ForbiddenError for anyone but the author.
+   */
   async updateDraft(em: EntityManager, project: Project, testCase: TestCase, revision: number, input: UpdateMaskDraftRequest, actor: User): Promise<MaskRevision> {
     const mask = await this.masks.get(em, testCase, revision);
     assertDraft(mask, 'changed');
-    const changed: string[] = [];
+    assertMayEditDraft(mask, actor);
+    const before = editableFields(mask);
     if (input.checks !== undefined) {
       mask.checks = parseWith(MaskDocument, { checks: input.checks }, 'body').checks;
-      changed.push('checks');
     }
     if (input.note !== undefined) {
       mask.note = input.note;
-      changed.push('note');
     }
     if (input.target !== undefined) {
       mask.target = await this.masks.resolveTarget(em, project, input.target);
-      changed.push('target');
     }
-    recordMaskTransition(em, project, mask, { actor, action: 'mask.edit', from: 'draft', to: 'draft', details: { changed } });
+    let settingsChanges: CheckFieldChange[] = [];
+    if (input.settings !== undefined) {
+      // Fields left out keep the draft's; the whole result must still be valid settings.
+      const settings = parseWith(JudgingSettings, { ...normalizedSettings(mask.settings), ...input.settings }, 'body') as unknown as StoredJudgingSettings;
+      settingsChanges = diffSettings(mask.settings, settings);
+      mask.settings = settings;
+    }
+    mask.contributors = withContributor(contributorsOf(mask), actor);
+    recordMaskTransition(em, project, mask, {
+      actor,
+      action: 'mask.edit',
+      from: 'draft',
+      to: 'draft',
+      details: settingsChanges.length ? { settingsChanges } : {},
+      change: changedFields(before, editableFields(mask)),
+    });
     await em.flush();
     return mask;
   }
@@ -150,30 +164,24 @@ export class MaskWorkflowService {
     return em.transactional(async (tx) => {
       const mask = await this.masks.get(tx, testCase, revision);
       assertDraft(mask, 'submitted');
+      assertMaySubmit(mask, actor);
       mask.state = 'in_review';
       mask.submittedAt = new Date();
       recordMaskTransition(tx, project, mask, { actor, action: 'mask.submit', from: 'draft', to: 'in_review' });
-      const where = mask.target ? `target ${mask.target.key}` : 'all targets';
-      const mailed = await mailQaManagers(
-        tx,
+      const review = composeMaskReviewMail({
         project,
-        {
-          kind: 'mask-review',
-          subject: `[Earmark] ${project.key}: mask ${testCase.key} revision ${mask.revision} awaits review`,
-          body: [
-            `${actor.displayName} (${actor.email}) submitted revision ${mask.revision} of the tolerance mask for ${testCase.key} (${where}) in ${project.name} for review.`,
-            `Author: ${mask.author.email}. Checks: ${mask.checks.length}.${mask.basedOn ? ` Copied from revision ${mask.basedOn.revision}.` : ''}`,
-            ...(mask.note ? ['', `Note: ${mask.note}`] : []),
-            '',
-            `Review it: ${this.pages.masksPage(project.key, testCase.key)}`,
-            `All reviews waiting: ${this.pages.approvalsPage(project.key)}`,
-            '',
-            'You get this because you are a QA manager of this project in Earmark.',
-          ].join('\n'),
-          payload: { project: project.key, testCase: testCase.key, revision: mask.revision },
-        },
-        [actor, mask.author],
-      );
+        testCase: testCase.key,
+        revision: mask.revision,
+        target: mask.target?.key ?? null,
+        submittedBy: actor,
+        author: mask.author,
+        checkCount: mask.checks.length,
+        basedOn: mask.basedOn?.revision ?? null,
+        note: mask.note,
+        masksPage: this.pages.masksPage(project.key, testCase.key),
+        approvalsPage: this.pages.approvalsPage(project.key),
+      });
+      const mailed = writeToOutbox(tx, review, await qaManagersOf(tx, project, [actor, mask.author]));
       await tx.flush();
       return { mask, mailed };
     });
@@ -181,22 +189,23 @@ export class MaskWorkflowService {
 
   /**
    * In review → rejected, with the reviewer's reason.
-   * @throws ForbiddenError for the author; ConflictError unless it is in review.
+   * @throws ForbiddenError for anyone who wrote or edited it; ConflictError unless it is in review.
    */
   async reject(em: EntityManager, project: Project, testCase: TestCase, revision: number, reviewer: User, comment: string): Promise<MaskRevision> {
     const mask = await this.masks.get(em, testCase, revision);
-    assertNotAuthor(mask, reviewer, 'rejected');
+    assertMayDecide(maskUnderReview(mask), reviewer, 'rejected');
     if (mask.state !== 'in_review') throw new ConflictError(`Revision ${revision} is ${mask.state}; only revisions in review can be rejected.`);
     mask.state = 'rejected';
     mask.reviewer = reviewer;
     mask.decidedAt = new Date();
     mask.decisionComment = comment;
     recordMaskTransition(em, project, mask, { actor: reviewer, action: 'mask.reject', from: 'in_review', to: 'rejected', comment });
+    mailMaskDecision(em, project, mask, this.pages);
     await em.flush();
     return mask;
   }
 
-  /** Any revision → a new draft with the same checks, remembering where it came from. */
+  /** Any revision → a new draft with the same checks and settings, remembering where it came from. */
   async copy(em: EntityManager, project: Project, testCase: TestCase, revision: number, input: CopyMaskRevisionRequest, author: User): Promise<MaskRevision> {
     const source = await this.masks.get(em, testCase, revision);
     const draft = await this.masks.createDraft(
@@ -210,6 +219,7 @@ export class MaskWorkflowService {
       },
       author,
       source,
+      source.settings,
     );
     return this.masks.get(em, testCase, draft.revision);
   }
@@ -231,6 +241,7 @@ export class MaskWorkflowService {
       summary: { added: count('added'), removed: count('removed'), changed: count('changed'), unchanged: count('unchanged') },
       noteChanged: base.note !== head.note,
       targetChanged: (base.target?.id ?? null) !== (head.target?.id ?? null),
+      settingsChanges: diffSettings(base.settings, head.settings),
     };
   }
 
@@ -262,7 +273,15 @@ function assertDraft(mask: MaskRevision, verb: string): void {
   }
 }
 
-/** Kept for symmetry with assertNotAuthor: a requester may not decide on their own waiver. */
-export function assertNotRequester(requester: User, decider: User, verb: 'approved' | 'rejected'): void {
-  if (requester.id === decider.id) throw new ForbiddenError(`A waiver must be ${verb} by someone other than the person who requested it (${requester.email}).`);
+/** What an edit can change, as the audit log records it: checks in schema order, the target by key. */
+function editableFields(mask: MaskRevision): Record<string, unknown> {
+  return {
+    checks: mask.checks.map((c) => {
+      const parsed = MaskCheck.safeParse(c);
+      return parsed.success ? parsed.data : c;
+    }),
+    note: mask.note,
+    target: mask.target?.key ?? null,
+    settings: normalizedSettings(mask.settings),
+  };
 }

@@ -1,5 +1,5 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
-import type { CreateProjectRequest, MemberRow, Project as ProjectDto, ProjectRole } from '@earmark/contracts';
+import { subscribesToBuildMailByDefault, type CreateProjectRequest, type MemberRow, type Project as ProjectDto, type ProjectRole } from '@earmark/contracts';
 import { Membership, Project, User } from '@earmark/db';
 import type { Principal } from '../actor.js';
 import { actorName } from '../actor.js';
@@ -78,8 +78,12 @@ export class ProjectService {
     if (!user) throw new NotFoundError(`There is no user with e-mail ${email}.`);
     let membership = await em.findOne(Membership, { project, user });
     const previous = membership?.role ?? null;
-    if (membership) membership.role = role;
-    else membership = em.create(Membership, { project, user, role });
+    // A new membership, or a new role, starts with the role's build-mail default; the member may change it after.
+    if (!membership) membership = em.create(Membership, { project, user, role, subscribed: subscribesToBuildMailByDefault(role) });
+    else if (membership.role !== role) {
+      membership.role = role;
+      membership.subscribed = subscribesToBuildMailByDefault(role);
+    }
     recordAudit(em, { actor: actorName(principal), action: 'membership.set', subject: `user:${user.email}`, project, details: { role, previous } });
     await em.flush();
     return { userId: user.id, email: user.email, displayName: user.displayName, role };

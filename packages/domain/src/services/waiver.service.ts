@@ -1,9 +1,15 @@
-import type { EntityManager } from '@mikro-orm/postgresql';
+import { LockMode, type EntityManager } from '@mikro-orm/postgresql';
 import type { RequestWaiverRequest, WaiverDto, WaiverListQuery } from '@earmark/contracts';
-import { Finding, Notification, Waiver, type Project, type User, type WaiverState } from '@earmark/db';
+import { Finding, Waiver, type Project, type User, type WaiverState } from '@earmark/db';
 import { ConflictError, NotFoundError, ValidationError } from '../errors.js';
 import { recordAudit } from './audit.service.js';
-import { assertNotRequester, mailQaManagers } from './mask-workflow.service.js';
+import { rejudgeWaiverScope } from '../judging/rejudge-waivers.js';
+import { endWaiver } from '../judging/waivers.js';
+import { assertMayDecide, waiverUnderReview } from '../rules/four-eyes.js';
+import { composeWaiverDecisionMail } from '../mail/waiver-decision.mail.js';
+import { composeWaiverRequestMail } from '../mail/waiver-request.mail.js';
+import { writeToOutbox } from '../mail/outbox.js';
+import { qaManagersOf } from '../mail/recipients.js';
 import type { Links } from './links.js';
 
 const POPULATE = ['project', 'testCase', 'target', 'requestedBy', 'approvedBy', 'finding'] as const;
@@ -37,9 +43,10 @@ export function parseUntil(until: string): Date {
 
 /**
  * Waivers: an engineer asks to accept a finding's deviation until a date; a QA manager
- * other than the requester decides. While a waiver is active the worker counts the
- * check as passed with waiver and the finding stays an accepted deviation; the sweeper
- * expires it, re-opens the finding and mails its assignee.
+ * other than the requester decides. While a waiver is active its check counts as passed
+ * with waiver and the finding stays an accepted deviation: approving re-judges the captures
+ * it governs at once, and so do a revocation and the sweeper's expiry, which also re-open the
+ * finding (expiry mails its assignee).
  */
 export class WaiverService {
   constructor(private readonly pages: Links) {}
@@ -82,28 +89,20 @@ export class WaiverService {
         finding,
       });
       recordWaiverTransition(tx, project, waiver, requester, 'waiver.request', null, 'requested', null, { findingId: finding.id, checkId: finding.checkId, until: until.toISOString() });
-      const scope = `${testCase.key} / ${finding.checkId} on ${input.targetOnly ? `target ${target.key}` : 'every target'}`;
-      const mailed = await mailQaManagers(
-        tx,
+      const request = composeWaiverRequestMail({
         project,
-        {
-          kind: 'waiver-requested',
-          subject: `[Earmark] ${project.key}: waiver requested for ${testCase.key} / ${finding.checkId}`,
-          body: [
-            `${requester.displayName} (${requester.email}) asks to accept a deviation in ${project.name} until ${until.toISOString().slice(0, 10)}:`,
-            '',
-            `Scope: ${scope}`,
-            `Finding: ${finding.title}`,
-            `Reason: ${input.reason}`,
-            '',
-            `Decide: ${this.pages.approvalsPage(project.key)}`,
-            '',
-            'You get this because you are a QA manager of this project in Earmark.',
-          ].join('\n'),
-          payload: { project: project.key, waiverId: waiver.id, findingId: finding.id },
-        },
-        [requester],
-      );
+        waiverId: waiver.id,
+        findingId: finding.id,
+        findingTitle: finding.title,
+        testCase: testCase.key,
+        checkId: finding.checkId,
+        target: input.targetOnly ? target.key : null,
+        until,
+        reason: input.reason,
+        requester,
+        approvalsPage: this.pages.approvalsPage(project.key),
+      });
+      const mailed = writeToOutbox(tx, request, await qaManagersOf(tx, project, [requester]));
       await tx.flush();
       return { waiver: await tx.findOneOrFail(Waiver, { id: waiver.id }, { populate: POPULATE }), mailed };
     });
@@ -111,12 +110,12 @@ export class WaiverService {
 
   /**
    * Requested → approved; the finding becomes an accepted deviation while the waiver runs.
-   * @throws ForbiddenError for the requester; ConflictError unless requested and still in the future.
+   * @throws ForbiddenError for the requester (the four-eyes rule); ConflictError unless requested and still in the future.
    */
   async approve(em: EntityManager, project: Project, id: string, decider: User, comment: string | undefined): Promise<Waiver> {
     return em.transactional(async (tx) => {
       const waiver = await this.get(tx, project, id);
-      assertNotRequester(waiver.requestedBy, decider, 'approved');
+      assertMayDecide(waiverUnderReview(waiver), decider, 'approved');
       if (waiver.state !== 'requested') throw new ConflictError(`Waiver ${id} is ${waiver.state}; only requested waivers can be approved.`);
       if (waiver.expiresAt <= new Date()) throw new ConflictError(`Waiver ${id} ran until ${waiver.expiresAt.toISOString()}, which has passed; ask for a new one.`);
       this.decide(waiver, 'approved', decider, comment ?? null);
@@ -127,7 +126,12 @@ export class WaiverService {
         finding.state = 'accepted_deviation';
         recordAudit(tx, { actor: `user:${decider.email}`, action: 'finding.waive', subject: `finding:${finding.id}`, project, details: { from: findingFrom, to: 'accepted_deviation', waiverId: waiver.id } });
       }
-      recordWaiverTransition(tx, project, waiver, decider, 'waiver.approve', 'requested', 'approved', waiver.decisionComment, { findingState: finding ? { from: findingFrom, to: finding.state } : null });
+      // At once, in this transaction: the captures the waiver governs pass with waiver where it is all they failed.
+      const rejudged = await rejudgeWaiverScope(tx, waiver, { kind: 'approved', waiverId: waiver.id }, `user:${decider.email}`);
+      recordWaiverTransition(tx, project, waiver, decider, 'waiver.approve', 'requested', 'approved', waiver.decisionComment, {
+        findingState: finding ? { from: findingFrom, to: finding.state } : null,
+        rejudgedCaptures: rejudged.captures,
+      });
       this.mailRequester(tx, project, waiver, decider);
       await tx.flush();
       return waiver;
@@ -137,13 +141,37 @@ export class WaiverService {
   /** Requested → rejected, with the reason. @throws ForbiddenError for the requester; ConflictError unless requested. */
   async reject(em: EntityManager, project: Project, id: string, decider: User, comment: string): Promise<Waiver> {
     const waiver = await this.get(em, project, id);
-    assertNotRequester(waiver.requestedBy, decider, 'rejected');
+    assertMayDecide(waiverUnderReview(waiver), decider, 'rejected');
     if (waiver.state !== 'requested') throw new ConflictError(`Waiver ${id} is ${waiver.state}; only requested waivers can be rejected.`);
     this.decide(waiver, 'rejected', decider, comment);
     recordWaiverTransition(em, project, waiver, decider, 'waiver.reject', 'requested', 'rejected', comment, {});
     this.mailRequester(em, project, waiver, decider);
     await em.flush();
     return waiver;
+  }
+
+  /**
+   * Approved → revoked, with the reason, before its date: the accepted deviations it covered
+   * open again and the captures it governed are judged again at once (failing again unless
+   * another waiver covers them). Taking an exception back needs no second person.
+   * @throws ConflictError unless approved and still running
+   */
+  async revoke(em: EntityManager, project: Project, id: string, actor: User, reason: string): Promise<Waiver> {
+    return em.transactional(async (tx) => {
+      const found = await this.get(tx, project, id);
+      // The row lock makes two revocations (or a revocation and the expiry sweep) take turns.
+      const waiver = await tx.findOneOrFail(Waiver, { id: found.id }, { lockMode: LockMode.PESSIMISTIC_WRITE, refresh: true, populate: POPULATE });
+      if (waiver.state !== 'approved') throw new ConflictError(`Waiver ${id} is ${waiver.state}; only approved waivers can be revoked.`);
+      if (waiver.expiresAt <= new Date()) throw new ConflictError(`Waiver ${id} ran until ${waiver.expiresAt.toISOString()} and is expiring already.`);
+      waiver.state = 'revoked';
+      const { reopened, rejudged } = await endWaiver(tx, waiver, { kind: 'revoked', waiverId: waiver.id }, `user:${actor.email}`);
+      recordWaiverTransition(tx, project, waiver, actor, 'waiver.revoke', 'approved', 'revoked', reason, {
+        reopenedFindings: reopened.map((f) => f.id),
+        rejudgedCaptures: rejudged.captures,
+      });
+      await tx.flush();
+      return waiver;
+    });
   }
 
   private decide(waiver: Waiver, state: WaiverState, decider: User, comment: string | null) {
@@ -155,20 +183,19 @@ export class WaiverService {
 
   /** The requester hears the decision (outbox, same transaction). */
   private mailRequester(em: EntityManager, project: Project, waiver: Waiver, decider: User) {
-    if (waiver.requestedBy.disabled) return;
-    em.create(Notification, {
-      kind: `waiver-${waiver.state}`,
-      recipient: waiver.requestedBy.email,
-      subject: `[Earmark] ${project.key}: your waiver for ${waiver.testCase.key} / ${waiver.checkId} was ${waiver.state}`,
-      body: [
-        `${decider.displayName} (${decider.email}) ${waiver.state} your waiver for ${waiver.testCase.key} / ${waiver.checkId} in ${project.name}` +
-          (waiver.state === 'approved' ? `; it runs until ${waiver.expiresAt.toISOString().slice(0, 10)}.` : '.'),
-        ...(waiver.decisionComment ? ['', `Comment: ${waiver.decisionComment}`] : []),
-        '',
-        `Findings: ${this.pages.findingsPage(project.key)}`,
-      ].join('\n'),
-      payload: { project: project.key, waiverId: waiver.id },
+    if (waiver.state !== 'approved' && waiver.state !== 'rejected') return;
+    const decision = composeWaiverDecisionMail({
+      project,
+      waiverId: waiver.id,
+      testCase: waiver.testCase.key,
+      checkId: waiver.checkId,
+      decision: waiver.state,
+      until: waiver.expiresAt,
+      decider,
+      comment: waiver.decisionComment,
+      findingsPage: this.pages.findingsPage(project.key),
     });
+    writeToOutbox(em, decision, [waiver.requestedBy]);
   }
 }
 

@@ -21,37 +21,37 @@ export interface RawFloat32Options {
  *   `raw-length-mismatch` (length not a multiple of 4 × channels) or `non-finite-sample`.
  */
 export function decodeRawFloat32(bytes: Uint8Array, opts: RawFloat32Options): DecodedAudio {
-  if (!(bytes instanceof Uint8Array)) throw new TypeError('decodeRawFloat32: bytes must be a Uint8Array');
+  if (!(bytes instanceof Uint8Array)) throw new TypeError('A raw float32 capture must be given as a Uint8Array of its bytes.');
   const { sampleRate, channels } = opts;
   if (!Number.isInteger(sampleRate) || !Number.isInteger(channels)) {
     throw new AudioDecodeError(
       'invalid-option',
-      `decodeRawFloat32: sample rate and channel count must be whole numbers (got ${sampleRate} Hz, ${channels} channels).`,
+      `The sample rate and channel count of a raw capture must be whole numbers (got ${sampleRate} Hz, ${channels} channels).`,
     );
   }
   if (channels <= 0) {
-    throw new AudioDecodeError('zero-channels', `decodeRawFloat32: channel count ${channels}; a raw capture needs 1 to ${MAX_CHANNELS} channels.`);
+    throw new AudioDecodeError('zero-channels', `The channel count is ${channels}; a raw capture needs 1 to ${MAX_CHANNELS} channels.`);
   }
   if (channels > MAX_CHANNELS) {
     throw new AudioDecodeError(
       'too-many-channels',
-      `decodeRawFloat32: channel count ${channels}; Earmark accepts 1 to ${MAX_CHANNELS} channels.`,
+      `The channel count is ${channels}; Earmark accepts 1 to ${MAX_CHANNELS} channels.`,
     );
   }
   if (sampleRate < MIN_SAMPLE_RATE || sampleRate > MAX_SAMPLE_RATE) {
     throw new AudioDecodeError(
       'sample-rate-out-of-range',
-      `decodeRawFloat32: sample rate ${sampleRate} Hz is outside the accepted range ${MIN_SAMPLE_RATE}–${MAX_SAMPLE_RATE} Hz.`,
+      `The sample rate ${sampleRate} Hz is outside the accepted range ${MIN_SAMPLE_RATE}–${MAX_SAMPLE_RATE} Hz.`,
     );
   }
   if (bytes.length === 0) {
-    throw new AudioDecodeError('no-data', 'decodeRawFloat32: the raw capture is empty (0 bytes).');
+    throw new AudioDecodeError('no-data', 'The raw capture is empty (0 bytes).');
   }
   const frameBytes = 4 * channels;
   if (bytes.length % frameBytes !== 0) {
     throw new AudioDecodeError(
       'raw-length-mismatch',
-      `decodeRawFloat32: ${bytes.length} bytes is not a whole number of frames of ${channels} float32 sample(s) (${frameBytes} bytes each); check the declared channel count and that the upload is complete.`,
+      `The raw capture's ${bytes.length} bytes are not a whole number of frames of ${channels} float32 sample(s) (${frameBytes} bytes each); check the declared channel count and that the upload is complete.`,
     );
   }
   const frames = bytes.length / frameBytes;
@@ -60,7 +60,7 @@ export function decodeRawFloat32(bytes: Uint8Array, opts: RawFloat32Options): De
     const { frame, channel, value } = decoded.nonFinite;
     throw new AudioDecodeError(
       'non-finite-sample',
-      `decodeRawFloat32: sample ${frame} of channel ${channel + 1} is ${value}; float captures must hold finite numbers only.`,
+      `Sample ${frame} of channel ${channel + 1} is ${value}; float captures must hold finite numbers only.`,
     );
   }
   return {

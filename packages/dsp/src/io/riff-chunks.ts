@@ -33,7 +33,7 @@ export function readRiffChunks(bytes: Uint8Array): RiffChunk[] {
           : '';
     throw new AudioDecodeError(
       'not-riff',
-      `readRiffChunks: not a WAV file (expected the bytes "RIFF" at 0 and "WAVE" at 8).${hint}`,
+      `The file is not a WAV file (a WAV file has the bytes "RIFF" at offset 0 and "WAVE" at offset 8).${hint}`,
     );
   }
   const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);

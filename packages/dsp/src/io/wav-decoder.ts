@@ -26,7 +26,7 @@ function parseFmt(bytes: Uint8Array, chunk: RiffChunk): FmtInfo {
   if (chunk.size < 16 || chunk.offset + 16 > bytes.length) {
     throw new AudioDecodeError(
       'truncated',
-      `decodeWav: the "fmt " chunk is cut short (${Math.min(chunk.size, bytes.length - chunk.offset)} of at least 16 bytes); the file header is truncated or damaged.`,
+      `The "fmt " chunk is cut short (${Math.min(chunk.size, bytes.length - chunk.offset)} of at least 16 bytes); the file header is truncated or damaged.`,
     );
   }
   const v = new DataView(bytes.buffer, bytes.byteOffset + chunk.offset, bytes.length - chunk.offset);
@@ -44,7 +44,7 @@ function parseFmt(bytes: Uint8Array, chunk: RiffChunk): FmtInfo {
     if (chunk.size < 40 || chunk.offset + 40 > bytes.length) {
       throw new AudioDecodeError(
         'truncated',
-        'decodeWav: the WAVE_FORMAT_EXTENSIBLE "fmt " chunk is shorter than its 40 bytes; the file header is truncated or damaged.',
+        'The WAVE_FORMAT_EXTENSIBLE "fmt " chunk is shorter than its 40 bytes; the file header is truncated or damaged.',
       );
     }
     info.validBitsPerSample = v.getUint16(18, true);
@@ -54,7 +54,7 @@ function parseFmt(bytes: Uint8Array, chunk: RiffChunk): FmtInfo {
     if (!tailMatches || (sub !== WAVE_FORMAT_PCM && sub !== WAVE_FORMAT_IEEE_FLOAT)) {
       throw new AudioDecodeError(
         'unsupported-format',
-        `decodeWav: unsupported WAVE_FORMAT_EXTENSIBLE sub-format (only the PCM and IEEE float sub-format GUIDs are read). ${ACCEPTED_CAPTURE_FORMATS}`,
+        `The WAVE_FORMAT_EXTENSIBLE sub-format is not supported (only the PCM and IEEE float sub-format GUIDs are read). ${ACCEPTED_CAPTURE_FORMATS}`,
       );
     }
     info.effectiveTag = sub;
@@ -62,7 +62,7 @@ function parseFmt(bytes: Uint8Array, chunk: RiffChunk): FmtInfo {
   if (info.effectiveTag !== WAVE_FORMAT_PCM && info.effectiveTag !== WAVE_FORMAT_IEEE_FLOAT) {
     throw new AudioDecodeError(
       'unsupported-format',
-      `decodeWav: unsupported WAV format tag ${hex(formatTag)} (compressed or vendor-specific audio). ${ACCEPTED_CAPTURE_FORMATS}`,
+      `The WAV format tag ${hex(formatTag)} is not supported (compressed or vendor-specific audio). ${ACCEPTED_CAPTURE_FORMATS}`,
     );
   }
   return info;
@@ -75,7 +75,7 @@ function layoutOf(fmt: FmtInfo): SampleLayout {
     if (bits === 64) return 'f64';
     throw new AudioDecodeError(
       'unsupported-bit-depth',
-      `decodeWav: IEEE float samples of ${bits} bits are not supported; float WAV must be 32 or 64 bits.`,
+      `IEEE float samples of ${bits} bits are not supported; float WAV must be 32 or 64 bits.`,
     );
   }
   if (bits === 8) return 'u8';
@@ -84,18 +84,18 @@ function layoutOf(fmt: FmtInfo): SampleLayout {
   if (bits === 32) return 'i32';
   throw new AudioDecodeError(
     'unsupported-bit-depth',
-    `decodeWav: integer PCM of ${bits} bits per sample is not supported; PCM WAV must be 8, 16, 24 or 32 bits.`,
+    `Integer PCM of ${bits} bits per sample is not supported; PCM WAV must be 8, 16, 24 or 32 bits.`,
   );
 }
 
 function checkFmt(fmt: FmtInfo): SampleLayout {
   if (fmt.channels === 0) {
-    throw new AudioDecodeError('zero-channels', 'decodeWav: the header declares 0 channels; a capture needs 1 to 8 channels.');
+    throw new AudioDecodeError('zero-channels', 'The WAV header declares 0 channels; a capture needs 1 to 8 channels.');
   }
   if (fmt.channels > MAX_CHANNELS) {
     throw new AudioDecodeError(
       'too-many-channels',
-      `decodeWav: the file has ${fmt.channels} channels; Earmark accepts 1 to ${MAX_CHANNELS}. Split the capture per test case or channel map.`,
+      `The file has ${fmt.channels} channels; Earmark accepts 1 to ${MAX_CHANNELS}. Split the capture per test case or channel map.`,
     );
   }
   const layout = layoutOf(fmt);
@@ -103,19 +103,19 @@ function checkFmt(fmt: FmtInfo): SampleLayout {
   if (fmt.blockAlign !== expectedAlign) {
     throw new AudioDecodeError(
       'block-align-mismatch',
-      `decodeWav: the header is inconsistent: ${fmt.channels} channel(s) × ${fmt.bitsPerSample} bits need a block align of ${expectedAlign} bytes per frame, but it says ${fmt.blockAlign}.`,
+      `The WAV header is inconsistent: ${fmt.channels} channel(s) × ${fmt.bitsPerSample} bits need a block align of ${expectedAlign} bytes per frame, but it says ${fmt.blockAlign}.`,
     );
   }
   if (fmt.validBitsPerSample !== undefined && (fmt.validBitsPerSample === 0 || fmt.validBitsPerSample > fmt.bitsPerSample)) {
     throw new AudioDecodeError(
       'unsupported-format',
-      `decodeWav: WAVE_FORMAT_EXTENSIBLE declares ${fmt.validBitsPerSample} valid bits in a ${fmt.bitsPerSample}-bit container; valid bits must be 1 to ${fmt.bitsPerSample}.`,
+      `The WAVE_FORMAT_EXTENSIBLE header declares ${fmt.validBitsPerSample} valid bits in a ${fmt.bitsPerSample}-bit container; valid bits must be 1 to ${fmt.bitsPerSample}.`,
     );
   }
   if (fmt.sampleRate < MIN_SAMPLE_RATE || fmt.sampleRate > MAX_SAMPLE_RATE) {
     throw new AudioDecodeError(
       'sample-rate-out-of-range',
-      `decodeWav: sample rate ${fmt.sampleRate} Hz is outside the accepted range ${MIN_SAMPLE_RATE}–${MAX_SAMPLE_RATE} Hz.`,
+      `The sample rate ${fmt.sampleRate} Hz is outside the accepted range ${MIN_SAMPLE_RATE}–${MAX_SAMPLE_RATE} Hz.`,
     );
   }
   return layout;
@@ -139,7 +139,7 @@ function checkFmt(fmt: FmtInfo): SampleLayout {
  *   `no-data` or `non-finite-sample`; the message says what was wrong and what is accepted.
  */
 export function decodeWav(bytes: Uint8Array): DecodedAudio {
-  if (!(bytes instanceof Uint8Array)) throw new TypeError('decodeWav: bytes must be a Uint8Array');
+  if (!(bytes instanceof Uint8Array)) throw new TypeError('A WAV capture must be given as a Uint8Array of its bytes.');
   const chunks = readRiffChunks(bytes);
   let fmtChunk: RiffChunk | undefined;
   let dataChunk: RiffChunk | undefined;
@@ -148,7 +148,7 @@ export function decodeWav(bytes: Uint8Array): DecodedAudio {
     if ((chunk.id === 'fmt ' ? fmtChunk : dataChunk) !== undefined) {
       throw new AudioDecodeError(
         'duplicate-chunk',
-        `decodeWav: the file has more than one "${chunk.id.trim()}" chunk; a WAV capture must hold exactly one.`,
+        `The file has more than one "${chunk.id.trim()}" chunk; a WAV capture must hold exactly one.`,
       );
     }
     if (chunk.id === 'fmt ') fmtChunk = chunk;
@@ -159,29 +159,29 @@ export function decodeWav(bytes: Uint8Array): DecodedAudio {
     throw new AudioDecodeError(
       truncated ? 'truncated' : 'no-format',
       truncated
-        ? `decodeWav: the file ends after ${bytes.length} bytes, inside the WAV header; it was truncated.`
-        : 'decodeWav: the WAV file has no "fmt " chunk, so its sample format is unknown.',
+        ? `The file ends after ${bytes.length} bytes, inside the WAV header; it was truncated.`
+        : 'The WAV file has no "fmt " chunk, so its sample format is unknown.',
     );
   }
   const fmt = parseFmt(bytes, fmtChunk);
   const layout = checkFmt(fmt);
   if (dataChunk === undefined) {
-    throw new AudioDecodeError('no-data', 'decodeWav: the WAV file has no "data" chunk, so it holds no audio.');
+    throw new AudioDecodeError('no-data', 'The WAV file has no "data" chunk, so it holds no audio.');
   }
   const available = bytes.length - dataChunk.offset;
   if (dataChunk.size > available) {
     throw new AudioDecodeError(
       'data-exceeds-file',
-      `decodeWav: the "data" chunk declares ${dataChunk.size} bytes but only ${Math.max(0, available)} follow; the file was truncated (an interrupted upload or a writer that never finalised the header).`,
+      `The "data" chunk declares ${dataChunk.size} bytes but only ${Math.max(0, available)} follow; the file was truncated (an interrupted upload or a writer that never finalised the header).`,
     );
   }
   if (dataChunk.size === 0) {
-    throw new AudioDecodeError('no-data', 'decodeWav: the "data" chunk is empty; the capture holds no audio frames.');
+    throw new AudioDecodeError('no-data', 'The "data" chunk is empty; the capture holds no audio frames.');
   }
   if (dataChunk.size % fmt.blockAlign !== 0) {
     throw new AudioDecodeError(
       'partial-frame',
-      `decodeWav: the "data" chunk holds ${dataChunk.size} bytes, not a whole number of ${fmt.blockAlign}-byte frames; the last frame is incomplete.`,
+      `The "data" chunk holds ${dataChunk.size} bytes, not a whole number of ${fmt.blockAlign}-byte frames; the last frame is incomplete.`,
     );
   }
   const frames = dataChunk.size / fmt.blockAlign;
@@ -189,7 +189,7 @@ export function decodeWav(bytes: Uint8Array): DecodedAudio {
   if (nonFinite !== undefined) {
     throw new AudioDecodeError(
       'non-finite-sample',
-      `decodeWav: sample ${nonFinite.frame} of channel ${nonFinite.channel + 1} is ${nonFinite.value}; float captures must hold finite numbers only (check the firmware's output buffer).`,
+      `Sample ${nonFinite.frame} of channel ${nonFinite.channel + 1} is ${nonFinite.value}; float captures must hold finite numbers only (check the firmware's output buffer).`,
     );
   }
   const format: AudioFormat = {

@@ -1,6 +1,7 @@
 import { createSeededRandom } from '../stimulus/seeded-random.js';
 import { MAX_CHANNELS, MAX_SAMPLE_RATE, MIN_SAMPLE_RATE } from './audio-limits.js';
 import { SUBFORMAT_GUID_TAIL, WAVE_FORMAT_EXTENSIBLE, WAVE_FORMAT_IEEE_FLOAT, WAVE_FORMAT_PCM } from './wav-format.js';
+import { EngineInputError } from '../util/engine-input-error.js';
 
 /** How encodeWav stores samples. */
 export interface EncodeWavOptions {
@@ -39,26 +40,26 @@ function writeAscii(view: DataView, at: number, text: string): void {
 export function encodeWav(channels: Float64Array[], sampleRate: number, opts: EncodeWavOptions = {}): Uint8Array {
   const channelCount = channels.length;
   if (channelCount === 0 || channelCount > MAX_CHANNELS) {
-    throw new RangeError(`encodeWav: needs 1 to ${MAX_CHANNELS} channels, got ${channelCount}`);
+    throw new EngineInputError('encodeWav', `a WAV file needs 1 to ${MAX_CHANNELS} channels (got ${channelCount})`);
   }
   const frames = channels[0]?.length ?? 0;
   if (channels.some((c) => c.length !== frames)) {
-    throw new RangeError('encodeWav: all channels must have the same length');
+    throw new EngineInputError('encodeWav', 'all channels must have the same length');
   }
   if (!Number.isInteger(sampleRate) || sampleRate < MIN_SAMPLE_RATE || sampleRate > MAX_SAMPLE_RATE) {
-    throw new RangeError(`encodeWav: sample rate must be a whole number of Hz in ${MIN_SAMPLE_RATE}…${MAX_SAMPLE_RATE}, got ${sampleRate}`);
+    throw new EngineInputError('encodeWav', `sample rate must be a whole number of Hz in ${MIN_SAMPLE_RATE}…${MAX_SAMPLE_RATE}, got ${sampleRate}`);
   }
   const encoding = opts.encoding ?? 'pcm-int';
   const bits = opts.bitsPerSample ?? (encoding === 'float' ? 32 : 24);
   const valid = encoding === 'float' ? bits === 32 || bits === 64 : bits === 16 || bits === 24 || bits === 32;
   if (!valid) {
-    throw new RangeError(`encodeWav: ${bits}-bit ${encoding} is not supported (PCM: 16, 24, 32; float: 32, 64)`);
+    throw new EngineInputError('encodeWav', `${bits}-bit ${encoding} is not supported (PCM: 16, 24, 32; float: 32, 64)`);
   }
   for (let c = 0; c < channelCount; c++) {
     const ch = channels[c] as Float64Array;
     for (let i = 0; i < frames; i++) {
       if (!Number.isFinite(ch[i] as number)) {
-        throw new RangeError(`encodeWav: sample ${i} of channel ${c + 1} is ${ch[i]}; only finite samples can be written`);
+        throw new EngineInputError('encodeWav', `sample ${i} of channel ${c + 1} is ${ch[i]}; only finite samples can be written`);
       }
     }
   }
@@ -72,7 +73,7 @@ export function encodeWav(channels: Float64Array[], sampleRate: number, opts: En
   const hasFact = isFloat || extensible;
   const headerSize = 12 + 8 + fmtSize + (hasFact ? 12 : 0) + 8;
   const total = headerSize + dataSize + (dataSize % 2);
-  if (total - 8 > 0xffffffff) throw new RangeError('encodeWav: the audio is too long for a WAV file (over 4 GiB)');
+  if (total - 8 > 0xffffffff) throw new EngineInputError('encodeWav', 'the audio is too long for a WAV file (over 4 GiB)');
 
   const out = new Uint8Array(total);
   const view = new DataView(out.buffer);

@@ -1,6 +1,7 @@
 import type { MagnitudeEnvelopeCheck, SpectralMeasure } from '@earmark/contracts';
 import type { AudioBuffers } from '../analyze/analyze-capture.js';
 import { precondition } from '../util/preconditions.js';
+import { EngineInputError } from '../util/engine-input-error.js';
 import { sampleLimit, type LimitBreakpoint } from './limit-curve.js';
 import { CaptureContext } from '../context/capture-context.js';
 import { validateMaskInput } from './mask-input.js';
@@ -190,7 +191,7 @@ export function deriveEnvelope(input: DeriveEnvelopeInput, options: DeriveEnvelo
     try {
       return envelopePoints(new CaptureContext(evalInput, [channel]), channel, measure, [lo, hi]).points;
     } catch (error) {
-      throw new RangeError(`${fn}: capture ${i}: ${(error as Error).message}`);
+      throw new EngineInputError(fn, `capture ${i} could not be measured: ${(error as Error).message}`);
     }
   });
 

@@ -126,7 +126,7 @@ function verdictReason(checks: readonly CheckEvaluation[]): { verdict: MaskEvalu
  * was given), else `fail` when any check failed, else `pass`. Intermediates shared by checks
  * (transfer function, sine fit, level spectrum) are computed once, and only if a check needs them.
  * The mask must already be parsed (contracts' `MaskDocument` schema validates it at the edge).
- * @throws RangeError (message starting "evaluateMask:") on a bad capture: no channels, unequal
+ * @throws EngineInputError (a RangeError, `fn` = "evaluateMask") on a bad capture: no channels, unequal
  *   lengths, non-finite samples, a bad sample rate, a reference at another rate, or an analysed
  *   channel that does not exist
  * @see docs/masks.md (format, margins, verdict); docs/analysis.md (every measure's method)

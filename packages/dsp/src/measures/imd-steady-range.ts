@@ -68,7 +68,7 @@ export function steadyToneRange(x: Float64Array, sampleRate: number, options: St
   // The samples after the last whole block were never judged: they may hold a silent run-out, so
   // the range ends at the last whole steady block.
   const end = runEnd === count ? count * block : (runEnd - spare) * block;
-  precondition(end > start, fn, 'internal: empty steady range');
+  precondition(end > start, fn, 'no steady stretch of the tone was found');
   return [start, end];
 }
 

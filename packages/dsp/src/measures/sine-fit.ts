@@ -1,5 +1,6 @@
 import { solveLinearSystem } from '../util/linear-solve.js';
 import { precondition, requirePositive } from '../util/preconditions.js';
+import { EngineInputError } from '../util/engine-input-error.js';
 
 // NOTE: all fits use the centred time index t = n − (N−1)/2. Over a grid symmetric about 0,
 // Σ sin(a·t)·cos(b·t) = 0 and the phase and frequency columns decorrelate, which keeps the
@@ -158,7 +159,7 @@ export function fitSineFourParameter(x: Float64Array, sampleRate: number, initia
     dc = solution[2] as number;
     const step = solution[3] as number;
     omega += step;
-    if (!(omega > 0 && omega < Math.PI)) throw new RangeError(`${fn}: the fit diverged (no dominant tone near ${initialFrequencyHz} Hz)`);
+    if (!(omega > 0 && omega < Math.PI)) throw new EngineInputError(fn, `the sine fit diverged: no dominant tone near ${initialFrequencyHz} Hz`);
     if (Math.abs(step) * n < 1e-11) {
       iterations++;
       break;
@@ -229,7 +230,7 @@ export function fitHarmonics(x: Float64Array, sampleRate: number, fundamentalHz:
   }
   const cosSolution = solveLinearSystem(cosMatrix, cosRhs, size);
   const sinSolution = solveLinearSystem(sinMatrix, sinRhs, k);
-  if (cosSolution === null || sinSolution === null) throw new RangeError(`${fn}: the harmonic model is singular for f0 = ${fundamentalHz} Hz and N = ${n}`);
+  if (cosSolution === null || sinSolution === null) throw new EngineInputError(fn, `the harmonic fit cannot be solved for a fundamental of ${fundamentalHz} Hz over ${n} samples`);
   const components: HarmonicComponent[] = [];
   for (let h = 1; h <= k; h++) {
     const a = cosSolution[h] as number;

@@ -1,3 +1,5 @@
+import { EngineInputError } from '../util/engine-input-error.js';
+
 /**
  * Decibel conventions (docs/analysis.md): a magnitude in dB is 20·log10|X|, a power
  * 10·log10 P; levels in dBFS follow AES17, where a full-scale sine (peak 1, RMS 1/√2) reads
@@ -37,7 +39,7 @@ export function meanSquareToDbfs(p: number): number {
  * @throws RangeError when lengths differ
  */
 export function magnitudesToDb(magnitude: Float64Array, output: Float64Array = new Float64Array(magnitude.length)): Float64Array {
-  if (output.length !== magnitude.length) throw new RangeError('magnitudesToDb: output length must equal magnitude length');
+  if (output.length !== magnitude.length) throw new EngineInputError('magnitudesToDb', 'output length must equal magnitude length');
   for (let i = 0; i < magnitude.length; i++) output[i] = 20 * Math.log10(magnitude[i] as number);
   return output;
 }

@@ -1,3 +1,5 @@
+import { EngineInputError } from '../util/engine-input-error.js';
+
 /**
  * Applies raised-cosine (half-Hann) fades in place: gain ½(1 − cos(π·n/F)) over the first F
  * samples and its mirror image over the last F' samples, so the first and last samples are 0
@@ -8,10 +10,10 @@
  */
 export function applyFades(signal: Float64Array, fadeInSamples: number, fadeOutSamples: number): void {
   if (!Number.isInteger(fadeInSamples) || !Number.isInteger(fadeOutSamples) || fadeInSamples < 0 || fadeOutSamples < 0) {
-    throw new RangeError('applyFades: fade lengths must be whole numbers of samples, 0 or more');
+    throw new EngineInputError('applyFades', 'fade lengths must be whole numbers of samples, 0 or more');
   }
   const n = signal.length;
-  if (fadeInSamples + fadeOutSamples > n) throw new RangeError('applyFades: fades are longer than the signal');
+  if (fadeInSamples + fadeOutSamples > n) throw new EngineInputError('applyFades', 'fades are longer than the signal');
   for (let i = 0; i < fadeInSamples; i++) {
     signal[i] = (signal[i] as number) * 0.5 * (1 - Math.cos((Math.PI * i) / fadeInSamples));
   }

@@ -108,7 +108,7 @@ export function generateStimulus(spec: StimulusSpec): GeneratedStimulus {
     const over = 20 * Math.log10(peak);
     throw new StimulusError(
       'would-clip',
-      `generateStimulus: this ${spec.kind} at ${spec.levelDbfs} dBFS peaks ${over.toFixed(2)} dB above full scale and would clip; set levelDbfs to ${(Math.floor((spec.levelDbfs - over) * 100) / 100).toFixed(2)} or lower`,
+      `This ${spec.kind} at ${spec.levelDbfs} dBFS peaks ${over.toFixed(2)} dB above full scale and would clip; set levelDbfs to ${(Math.floor((spec.levelDbfs - over) * 100) / 100).toFixed(2)} or lower`,
     );
   }
   const channels: Float64Array[] = [];
@@ -129,7 +129,7 @@ export function generateStimulus(spec: StimulusSpec): GeneratedStimulus {
  * @throws StimulusError as generateStimulus does, for a spec that is not a valid sweep.
  */
 export function sweepInverseFilter(spec: SweepSpec): Float64Array {
-  if (spec.kind !== 'sweep') throw new StimulusError('invalid-spec', 'sweepInverseFilter: kind must be "sweep"');
+  if (spec.kind !== 'sweep') throw new StimulusError('invalid-spec', `Only a sweep has an inverse filter; this stimulus is a ${(spec as { kind: string }).kind}.`);
   validateStimulusSpec(spec);
   return farinaInverseFilter(sweepBody(spec), spec.sampleRate, spec.from, spec.to, spec.seconds);
 }

@@ -1,4 +1,5 @@
 import type { SeededRandom } from './seeded-random.js';
+import { EngineInputError } from '../util/engine-input-error.js';
 
 /**
  * Schroeder's low-crest-factor phases for K equal-amplitude tones: φ_k = −π·k(k−1)/K,
@@ -9,7 +10,7 @@ import type { SeededRandom } from './seeded-random.js';
  * @throws RangeError when K is not a positive whole number.
  */
 export function schroederPhases(count: number): Float64Array {
-  if (!Number.isInteger(count) || count < 1) throw new RangeError('schroederPhases: count must be a positive whole number');
+  if (!Number.isInteger(count) || count < 1) throw new EngineInputError('schroederPhases', 'count must be a positive whole number');
   const phases = new Float64Array(count);
   for (let k = 1; k <= count; k++) phases[k - 1] = (-Math.PI * k * (k - 1)) / count;
   return phases;
@@ -29,8 +30,8 @@ export function randomPhases(count: number, random: SeededRandom): Float64Array 
  * @throws RangeError when count < 1 or the edges are not positive.
  */
 export function toneFrequencies(from: number, to: number, count: number, spacing: 'log' | 'linear'): Float64Array {
-  if (!Number.isInteger(count) || count < 1) throw new RangeError('toneFrequencies: count must be a positive whole number');
-  if (!(from > 0 && to > 0)) throw new RangeError('toneFrequencies: from and to must be positive');
+  if (!Number.isInteger(count) || count < 1) throw new EngineInputError('toneFrequencies', 'count must be a positive whole number');
+  if (!(from > 0 && to > 0)) throw new EngineInputError('toneFrequencies', 'from and to must be positive');
   const out = new Float64Array(count);
   for (let k = 0; k < count; k++) {
     const x = count === 1 ? 0 : k / (count - 1);
@@ -56,8 +57,8 @@ export function multitoneWave(
   phases: Float64Array,
   amplitude: number,
 ): Float64Array {
-  if (frequencies.length !== phases.length) throw new RangeError('multitoneWave: one phase per frequency is needed');
-  if (!Number.isInteger(frames) || frames < 0) throw new RangeError('multitoneWave: frames must be a whole number ≥ 0');
+  if (frequencies.length !== phases.length) throw new EngineInputError('multitoneWave', 'one phase per frequency is needed');
+  if (!Number.isInteger(frames) || frames < 0) throw new EngineInputError('multitoneWave', 'frames must be a whole number ≥ 0');
   const out = new Float64Array(frames);
   for (let k = 0; k < frequencies.length; k++) {
     const w = (2 * Math.PI * (frequencies[k] as number)) / sampleRate;

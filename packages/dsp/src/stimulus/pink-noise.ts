@@ -1,5 +1,6 @@
 import type { SeededRandom } from './seeded-random.js';
 import { scaleToRms } from './white-noise.js';
+import { EngineInputError } from '../util/engine-input-error.js';
 
 /** Lowest pole of the pinking filter (Hz); below it the spectrum turns flat. */
 export const PINK_LOWEST_POLE_HZ = 5;
@@ -40,8 +41,8 @@ export function pinkingSections(sampleRate: number): Section[] {
  * @throws RangeError when frames is not a positive whole number or rms is negative.
  */
 export function pinkNoise(frames: number, sampleRate: number, rms: number, random: SeededRandom): Float64Array {
-  if (!Number.isInteger(frames) || frames < 1) throw new RangeError('pinkNoise: frames must be a positive whole number');
-  if (!(rms >= 0)) throw new RangeError('pinkNoise: rms must be 0 or more');
+  if (!Number.isInteger(frames) || frames < 1) throw new EngineInputError('pinkNoise', 'frames must be a positive whole number');
+  if (!(rms >= 0)) throw new EngineInputError('pinkNoise', 'rms must be 0 or more');
   const sections = pinkingSections(sampleRate);
   const warmUp = Math.ceil((10 * sampleRate) / (2 * Math.PI * PINK_LOWEST_POLE_HZ));
   const xPrev = new Float64Array(sections.length);

@@ -1,3 +1,5 @@
+import { EngineInputError } from '../util/engine-input-error.js';
+
 /** A deterministic stream of pseudo-random numbers. */
 export interface SeededRandom {
   /** Next raw 32-bit output as an unsigned integer. */
@@ -18,7 +20,7 @@ const MASK64 = (1n << 64n) - 1n;
  * @throws RangeError when `count` is not a positive whole number.
  */
 export function splitMix64(seed: bigint, count: number): bigint[] {
-  if (!Number.isInteger(count) || count < 1) throw new RangeError('splitMix64: count must be a positive whole number');
+  if (!Number.isInteger(count) || count < 1) throw new EngineInputError('splitMix64', 'count must be a positive whole number');
   let x = seed & MASK64;
   const out: bigint[] = [];
   for (let i = 0; i < count; i++) {
@@ -42,7 +44,7 @@ export function splitMix64(seed: bigint, count: number): bigint[] {
  */
 export function createSeededRandom(seed: number): SeededRandom {
   if (!Number.isSafeInteger(seed) || seed < 0) {
-    throw new RangeError(`createSeededRandom: seed must be a whole number from 0 to 2^53 − 1, got ${seed}`);
+    throw new EngineInputError('createSeededRandom', `seed must be a whole number from 0 to 2^53 − 1, got ${seed}`);
   }
   const [a, b] = splitMix64(BigInt(seed), 2) as [bigint, bigint];
   let s0 = Number(a & 0xffffffffn) | 0;

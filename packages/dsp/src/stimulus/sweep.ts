@@ -1,3 +1,5 @@
+import { EngineInputError } from '../util/engine-input-error.js';
+
 /**
  * Exponential sine sweep x(n) = A·sin(2π·f1·T/ln(f2/f1)·(e^{t·ln(f2/f1)/T} − 1)), t = n/fs,
  * n = 0 … round(T·fs) − 1; its instantaneous frequency is f1·e^{t·ln(f2/f1)/T}, f1 at t = 0
@@ -8,10 +10,10 @@
  */
 export function exponentialSweep(sampleRate: number, f1: number, f2: number, seconds: number, amplitude: number): Float64Array {
   if (!(f1 > 0 && f1 < f2 && f2 < sampleRate / 2)) {
-    throw new RangeError(`exponentialSweep: need 0 < from < to < fs/2, got from ${f1} Hz, to ${f2} Hz, fs ${sampleRate} Hz`);
+    throw new EngineInputError('exponentialSweep', `a sweep needs 0 < from < to < half the sample rate (got from ${f1} Hz, to ${f2} Hz at ${sampleRate} Hz)`);
   }
   const frames = Math.round(seconds * sampleRate);
-  if (!(frames >= 2)) throw new RangeError('exponentialSweep: the sweep must last at least 2 samples');
+  if (!(frames >= 2)) throw new EngineInputError('exponentialSweep', 'the sweep must last at least 2 samples');
   const rate = Math.log(f2 / f1) / seconds;
   const k = (2 * Math.PI * f1) / rate;
   const out = new Float64Array(frames);
@@ -55,8 +57,8 @@ export function farinaInverseFilter(
   seconds: number,
 ): Float64Array {
   const frames = sweep.length;
-  if (frames < 2) throw new RangeError('farinaInverseFilter: the sweep needs at least 2 samples');
-  if (!(f1 > 0 && f1 < f2 && seconds > 0)) throw new RangeError('farinaInverseFilter: need 0 < f1 < f2 and seconds > 0');
+  if (frames < 2) throw new EngineInputError('farinaInverseFilter', 'the sweep needs at least 2 samples');
+  if (!(f1 > 0 && f1 < f2 && seconds > 0)) throw new EngineInputError('farinaInverseFilter', 'the sweep needs 0 < from < to and a duration above 0 s');
   const rate = Math.log(f2 / f1) / seconds;
   const inverse = new Float64Array(frames);
   for (let n = 0; n < frames; n++) {
@@ -67,7 +69,7 @@ export function farinaInverseFilter(
   const a = dtftAt(sweep, omega);
   const b = dtftAt(inverse, omega);
   const gain = Math.hypot(a.re, a.im) * Math.hypot(b.re, b.im);
-  if (!(gain > 0)) throw new RangeError('farinaInverseFilter: the sweep is silent at its band centre');
+  if (!(gain > 0)) throw new EngineInputError('farinaInverseFilter', 'the sweep is silent at its band centre');
   for (let n = 0; n < frames; n++) inverse[n] = (inverse[n] as number) / gain;
   return inverse;
 }

@@ -1,4 +1,5 @@
 import { sineWave } from './sine.js';
+import { EngineInputError } from '../util/engine-input-error.js';
 
 /** Peak amplitudes of the two tones of an intermodulation test signal. */
 export interface TwoToneAmplitudes {
@@ -16,8 +17,8 @@ export interface TwoToneAmplitudes {
  *   distortion); DIN 45403 (from memory: 250 Hz + 8 kHz at 4:1)
  */
 export function twoToneAmplitudes(peak: number, ratio: number): TwoToneAmplitudes {
-  if (!(peak >= 0 && Number.isFinite(peak))) throw new RangeError(`twoToneAmplitudes: peak must be a finite number ≥ 0 (got ${peak})`);
-  if (!(ratio > 0 && Number.isFinite(ratio))) throw new RangeError(`twoToneAmplitudes: ratio must be a finite number > 0 (got ${ratio})`);
+  if (!(peak >= 0 && Number.isFinite(peak))) throw new EngineInputError('twoToneAmplitudes', `peak must be a finite number ≥ 0 (got ${peak})`);
+  if (!(ratio > 0 && Number.isFinite(ratio))) throw new EngineInputError('twoToneAmplitudes', `ratio must be a finite number > 0 (got ${ratio})`);
   return { low: (peak * ratio) / (ratio + 1), high: peak / (ratio + 1) };
 }
 

@@ -10,7 +10,7 @@ const MAX_TONES = 4096;
 const MAX_IMD_RATIO = 100;
 
 function need(ok: boolean, field: string, what: string): void {
-  if (!ok) throw new StimulusError('invalid-spec', `generateStimulus: ${field} ${what}`);
+  if (!ok) throw new StimulusError('invalid-spec', `The stimulus's ${field} ${what}`);
 }
 
 /**
@@ -30,7 +30,7 @@ export function validateStimulusSpec(spec: StimulusSpec): void {
   if (spec.levelDbfs > 0) {
     throw new StimulusError(
       'level-above-full-scale',
-      `generateStimulus: levelDbfs ${spec.levelDbfs} is above 0 dBFS; Earmark refuses levels above full scale (a full-scale sine is 0 dBFS)`,
+      `The stimulus's levelDbfs ${spec.levelDbfs} is above 0 dBFS; Earmark refuses levels above full scale (a full-scale sine is 0 dBFS)`,
     );
   }
   const nyquist = fs / 2;

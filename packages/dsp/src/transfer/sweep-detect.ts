@@ -1,4 +1,5 @@
 import { precondition, requirePositive } from '../util/preconditions.js';
+import { EngineInputError } from '../util/engine-input-error.js';
 
 /** An exponential sine sweep found in (or described for) a reference signal. */
 export interface SweepParameters {
@@ -102,7 +103,7 @@ export function detectExponentialSweep(reference: Float64Array, sampleRate: numb
   let peak = 0;
   for (let i = 0; i < n; i++) {
     const v = Math.abs(reference[i] as number);
-    if (!Number.isFinite(v)) throw new RangeError(`${fn}: reference[${i}] is not finite`);
+    if (!Number.isFinite(v)) throw new EngineInputError(fn, `sample ${i} of the reference is ${reference[i]}; only finite samples can be analysed`);
     if (v > peak) peak = v;
   }
   if (peak === 0) return null;

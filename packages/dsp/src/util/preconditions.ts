@@ -1,7 +1,10 @@
+import { EngineInputError } from './engine-input-error.js';
+
 /**
- * Precondition helpers: every public engine function checks its inputs first and throws
- * a RangeError whose message starts with the function's name, so a caller can tell which
- * call was wrong without a stack trace.
+ * Precondition helpers: every public engine function checks its inputs first and throws an
+ * EngineInputError (a RangeError) carrying the function's name in `fn`, so a caller can tell
+ * which call was wrong without a stack trace. The name stays out of the message: messages
+ * reach users (check errors, verdict reasons), who should not read internal function names.
  */
 
 /** True when `n` is an integer power of two ≥ 1. */
@@ -16,9 +19,9 @@ export function nextPowerOfTwo(n: number): number {
   return p;
 }
 
-/** Throws `RangeError('<fn>: <message>')` unless `condition` holds. */
+/** Throws `EngineInputError(fn, message)` unless `condition` holds. */
 export function precondition(condition: boolean, fn: string, message: string): asserts condition {
-  if (!condition) throw new RangeError(`${fn}: ${message}`);
+  if (!condition) throw new EngineInputError(fn, message);
 }
 
 /** Throws unless `value` is a finite number > 0. */
@@ -29,6 +32,6 @@ export function requirePositive(value: number, fn: string, name: string): void {
 /** Throws unless every sample is finite (NaN or ±Infinity would poison every sum). */
 export function requireFinite(x: Float64Array, fn: string, name: string): void {
   for (let i = 0; i < x.length; i++) {
-    if (!Number.isFinite(x[i] as number)) throw new RangeError(`${fn}: ${name}[${i}] is not finite`);
+    if (!Number.isFinite(x[i] as number)) throw new EngineInputError(fn, `sample ${i} of ${name} is ${x[i]}; only finite samples can be analysed`);
   }
 }

@@ -4,6 +4,7 @@ import { fractionalOctaveBands } from '../../src/measures/octave-bands.js';
 import { generateStimulus } from '../../src/stimulus/generate-stimulus.js';
 import { gaussian } from '../helpers/signals.js';
 import { dither24, onePoleLowPass, onePolePower, withLeadIn } from './imd-signals.js';
+import { refusedBy } from '../helpers/refused.js';
 
 const LEAK = 10 ** (-60 / 20);
 
@@ -122,9 +123,9 @@ describe('measureCrosstalk', () => {
 
   it('rejects bad arguments with the function name', () => {
     const x = new Float64Array(48000);
-    expect(() => measureCrosstalk([x], 48000, 0)).toThrow(/^measureCrosstalk: need at least 2 channels/);
-    expect(() => measureCrosstalk([x, x], 48000, 2)).toThrow(/^measureCrosstalk: drivenChannel/);
-    expect(() => measureCrosstalk([x, new Float64Array(10)], 48000, 0)).toThrow(/^measureCrosstalk: all channels/);
-    expect(() => measureCrosstalk([x.subarray(0, 1000), x.subarray(0, 1000)], 48000, 0)).toThrow(/^measureCrosstalk: the record/);
+    expect(() => measureCrosstalk([x], 48000, 0)).toThrow(refusedBy('measureCrosstalk', /^need at least 2 channels/));
+    expect(() => measureCrosstalk([x, x], 48000, 2)).toThrow(refusedBy('measureCrosstalk', /^drivenChannel/));
+    expect(() => measureCrosstalk([x, new Float64Array(10)], 48000, 0)).toThrow(refusedBy('measureCrosstalk', /^all channels/));
+    expect(() => measureCrosstalk([x.subarray(0, 1000), x.subarray(0, 1000)], 48000, 0)).toThrow(refusedBy('measureCrosstalk', /^the record/));
   });
 });

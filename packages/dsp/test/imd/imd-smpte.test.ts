@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { measureImdSmpte } from '../../src/measures/imd-smpte.js';
 import { generateStimulus } from '../../src/stimulus/generate-stimulus.js';
 import { dither24, noiseShelf, plus, polynomial, tone, withLeadIn } from './imd-signals.js';
+import { refusedBy } from '../helpers/refused.js';
 
 // SMPTE RP120 / IEC 60268-3 signal: f1 = 60 Hz, f2 = 7 kHz, amplitudes 4:1, combined peak P.
 // At −6 dBFS: P = 10^(−6/20) = 0.501187, A1 = 0.8·P = 0.400950, A2 = 0.2·P = 0.100237.
@@ -98,8 +99,8 @@ describe('measureImdSmpte: realistic captures', () => {
 
   it('rejects bad options with the function name', () => {
     const x = smptePair(48000, 0.2);
-    expect(() => measureImdSmpte(x, 48000, { orders: 0 })).toThrow(/^measureImdSmpte: orders/);
-    expect(() => measureImdSmpte(x, 48000, { lowHz: 7000, highHz: 60 })).toThrow(/^measureImdSmpte: need 0 < f1 < f2/);
-    expect(() => measureImdSmpte(x, 48000, { range: [0, 100] })).toThrow(/^measureImdSmpte: range/);
+    expect(() => measureImdSmpte(x, 48000, { orders: 0 })).toThrow(refusedBy('measureImdSmpte', /^orders/));
+    expect(() => measureImdSmpte(x, 48000, { lowHz: 7000, highHz: 60 })).toThrow(refusedBy('measureImdSmpte', /^need 0 < f1 < f2/));
+    expect(() => measureImdSmpte(x, 48000, { range: [0, 100] })).toThrow(refusedBy('measureImdSmpte', /^range/));
   });
 });

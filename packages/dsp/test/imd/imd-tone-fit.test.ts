@@ -5,6 +5,7 @@ import { findStrongestTones } from '../../src/measures/imd-tone-search.js';
 import { runPython, hasPythonScipy } from '../io/python-oracle.js';
 import { gaussian } from '../helpers/signals.js';
 import { dither24, plus, tone, withLeadIn } from './imd-signals.js';
+import { refusedBy } from '../helpers/refused.js';
 
 describe('fitSinusoids', () => {
   it('recovers amplitudes and phases of off-bin tones exactly (IEEE 1241 least squares)', () => {
@@ -39,8 +40,8 @@ describe('fitSinusoids', () => {
   });
 
   it('rejects frequencies outside (0, fs/2 − fs/N)', () => {
-    expect(() => fitSinusoids(new Float64Array(100), 1000, [499.9])).toThrow(/^fitSinusoids: frequency/);
-    expect(() => fitSinusoids(new Float64Array(100), 1000, [])).toThrow(/^fitSinusoids: give at least one/);
+    expect(() => fitSinusoids(new Float64Array(100), 1000, [499.9])).toThrow(refusedBy('fitSinusoids', /^frequency/));
+    expect(() => fitSinusoids(new Float64Array(100), 1000, [])).toThrow(refusedBy('fitSinusoids', /^give at least one/));
   });
 
   it.skipIf(!hasPythonScipy())('agrees with numpy lstsq on a noisy two-tone record', () => {

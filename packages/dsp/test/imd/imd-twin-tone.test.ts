@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { measureImdTwinTone } from '../../src/measures/imd-twin-tone.js';
 import { generateStimulus } from '../../src/stimulus/generate-stimulus.js';
 import { dither24, noiseShelf, plus, polynomial, tone, withLeadIn } from './imd-signals.js';
+import { refusedBy } from '../helpers/refused.js';
 
 // Twin tone at −6 dBFS combined peak: two tones of A = 10^(−6/20)/2 = 0.250594 each.
 const A = 10 ** (-6 / 20) / 2;
@@ -75,6 +76,6 @@ describe('measureImdTwinTone: realistic captures', () => {
   });
 
   it('rejects a range outside the record', () => {
-    expect(() => measureImdTwinTone(twin(48000, 0.1), 48000, { range: [0, 10 ** 6] })).toThrow(/^measureImdTwinTone: range/);
+    expect(() => measureImdTwinTone(twin(48000, 0.1), 48000, { range: [0, 10 ** 6] })).toThrow(refusedBy('measureImdTwinTone', /^range/));
   });
 });

@@ -5,6 +5,7 @@ import { filterGroupDelay } from '../../src/index.js';
 import {
   addNoise, applyBiquad, applyFir, biquadResponse, clip, delay, firMagnitudeDb, insertDropout, lowPassBiquadCoefficients, mapChannels, peakingEqCoefficients, scaleDb, windowedSincLowPass,
 } from '../../src/testing/index.js';
+import { refusedBy } from '../helpers/refused.js';
 
 const FS = 48000;
 
@@ -34,7 +35,7 @@ describe('biquads', () => {
     const c = lowPassBiquadCoefficients(FS, 8000);
     expect(biquadResponse(c, FS, 8000).magnitudeDb).toBeCloseTo(-10 * Math.log10(2), 9);
     expect(biquadResponse(c, FS, 0).magnitudeDb).toBeCloseTo(0, 12);
-    expect(() => lowPassBiquadCoefficients(FS, 30000)).toThrow(/^lowPassBiquadCoefficients: /);
+    expect(() => lowPassBiquadCoefficients(FS, 30000)).toThrow(refusedBy('lowPassBiquadCoefficients'));
   });
 });
 

@@ -104,7 +104,7 @@ describe('generateStimulus guards', () => {
   it.each(invalid)('names the field: %s', (_what, spec, code, message) => {
     const e = stimulusError(spec);
     expect(e.code).toBe(code);
-    expect(e.message).toMatch(/^generateStimulus: /);
+    expect(e.message).toMatch(/^The stimulus's /);
     expect(e.message).toMatch(message);
   });
 });

@@ -3,6 +3,7 @@ import { ImdSmpteSpec, ImdTwinToneSpec, StimulusSpec, type ImdSmpteSpec as ImdSm
 import { fitSinusoids } from '../../src/measures/imd-tone-fit.js';
 import { StimulusError, generateStimulus, twoToneAmplitudes } from '../../src/stimulus/index.js';
 import { peak } from './spec-fixtures.js';
+import { refusedBy } from '../helpers/refused.js';
 
 function smpte(p: Partial<ImdSmpte> = {}): ImdSmpte {
   return { kind: 'imd-smpte', sampleRate: 48000, channels: 1, seconds: 1, levelDbfs: -20, lowFrequency: 60, highFrequency: 7000, ratio: 4, fadeInSeconds: 0, fadeOutSeconds: 0, ...p };
@@ -56,9 +57,9 @@ describe('imd-smpte stimulus (SMPTE RP120 / IEC 60268-3: 60 Hz + 7 kHz at 4:1)',
   });
 
   it('refuses tones out of order or above fs/2, naming the field (engine and schema)', () => {
-    expect(codeOf(smpte({ lowFrequency: 8000, highFrequency: 7000 }))).toMatch(/^invalid-spec: generateStimulus: lowFrequency must be below highFrequency/);
-    expect(codeOf(smpte({ highFrequency: 24000 }))).toMatch(/^invalid-spec: generateStimulus: lowFrequency\/highFrequency must lie between 0 and fs\/2/);
-    expect(codeOf(smpte({ ratio: 0 }))).toMatch(/^invalid-spec: generateStimulus: ratio/);
+    expect(codeOf(smpte({ lowFrequency: 8000, highFrequency: 7000 }))).toMatch(/^invalid-spec: The stimulus's lowFrequency must be below highFrequency/);
+    expect(codeOf(smpte({ highFrequency: 24000 }))).toMatch(/^invalid-spec: The stimulus's lowFrequency\/highFrequency must lie between 0 and fs\/2/);
+    expect(codeOf(smpte({ ratio: 0 }))).toMatch(/^invalid-spec: The stimulus's ratio/);
     const bad = ImdSmpteSpec.safeParse({ kind: 'imd-smpte', sampleRate: 16000, seconds: 1, highFrequency: 8000 });
     expect(bad.success).toBe(false);
     expect(bad.error?.issues[0]?.path).toEqual(['highFrequency']);
@@ -92,7 +93,7 @@ describe('imd-twin-tone stimulus (IEC 60268-3 difference-frequency distortion: 1
 describe('twoToneAmplitudes', () => {
   it('splits the peak r:1 and checks its arguments', () => {
     expect(twoToneAmplitudes(1, 4)).toEqual({ low: 0.8, high: 0.2 });
-    expect(() => twoToneAmplitudes(1, 0)).toThrow(/^twoToneAmplitudes: ratio/);
-    expect(() => twoToneAmplitudes(-1, 4)).toThrow(/^twoToneAmplitudes: peak/);
+    expect(() => twoToneAmplitudes(1, 0)).toThrow(refusedBy('twoToneAmplitudes', /^ratio/));
+    expect(() => twoToneAmplitudes(-1, 4)).toThrow(refusedBy('twoToneAmplitudes', /^peak/));
   });
 });

@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { coherence, minimumCoherence } from '../../src/transfer/coherence.js';
 import { gaussian, sine } from '../helpers/signals.js';
 import { hasPythonScipy, runPython } from '../io/python-oracle.js';
+import { refusedBy } from '../helpers/refused.js';
 
 const FS = 48000;
 const N = 2 ** 18;
@@ -84,9 +85,9 @@ print(json.dumps(float(np.max(np.abs(c - IN["ours"])))))`,
   });
 
   it('checks its inputs', () => {
-    expect(() => coherence(new Float64Array(100), new Float64Array(99), FS)).toThrow(/^coherence: reference and capture/);
-    expect(() => coherence(new Float64Array(100), new Float64Array(100), -1)).toThrow(/^coherence: sampleRate/);
+    expect(() => coherence(new Float64Array(100), new Float64Array(99), FS)).toThrow(refusedBy('coherence', /^reference and capture/));
+    expect(() => coherence(new Float64Array(100), new Float64Array(100), -1)).toThrow(refusedBy('coherence', /^sampleRate/));
     const r = coherence(gaussian(4096, 1), gaussian(4096, 2), FS, { segmentLength: 256 });
-    expect(() => minimumCoherence(r, 100, 10)).toThrow(/^minimumCoherence: lowHz/);
+    expect(() => minimumCoherence(r, 100, 10)).toThrow(refusedBy('minimumCoherence', /^lowHz/));
   });
 });

@@ -7,6 +7,7 @@ import { addNoise, applyBiquad, biquadResponse, lowPassBiquadCoefficients, peaki
 import { createRealFftPlan } from '../../src/fft/real-fft.js';
 import { gaussian, sine } from '../helpers/signals.js';
 import { captureOf, channelTransfer, phaseReadings, responseAt, sweepReference, transferToday } from './sweep-signals.js';
+import { refusedBy } from '../helpers/refused.js';
 
 const FS = 48000;
 // A 2 s sweep 20 Hz–20 kHz and 0.5 s of silence, as a reference WAV holds it (samples only).
@@ -228,9 +229,9 @@ describe('analyzeSweep on realistic captures', () => {
   it('checks its inputs', () => {
     const params = { f1: 20, f2: 20000, sweepSeconds: 2, startSample: 0, amplitude: 0.5 };
     const deconvolver = prepareSweepDeconvolution(reference6, FS, params);
-    expect(() => analyzeSweepCapture(deconvolver, new Float64Array(deconvolver.fftSize + 1))).toThrow(/^analyzeSweepCapture: capture holds/);
-    expect(() => analyzeSweep(sine(FS, FS, 1000, 0.5), sine(FS, FS, 1000, 0.5), FS)).toThrow(/^analyzeSweep: the reference is not an exponential sine sweep/);
-    expect(() => prepareSweepDeconvolution(reference6, FS, { ...params, f2: 30000 })).toThrow(/^prepareSweepDeconvolution: need 0 < f1 < f2/);
+    expect(() => analyzeSweepCapture(deconvolver, new Float64Array(deconvolver.fftSize + 1))).toThrow(refusedBy('analyzeSweepCapture', /^capture holds/));
+    expect(() => analyzeSweep(sine(FS, FS, 1000, 0.5), sine(FS, FS, 1000, 0.5), FS)).toThrow(refusedBy('analyzeSweep', /^the reference is not an exponential sine sweep/));
+    expect(() => prepareSweepDeconvolution(reference6, FS, { ...params, f2: 30000 })).toThrow(refusedBy('prepareSweepDeconvolution', /^need 0 < f1 < f2/));
   });
 
   it('deconvolves a 10 s, 192 kHz capture (time printed, not asserted)', () => {

@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { detectExponentialSweep } from '../../src/transfer/sweep-detect.js';
 import { gaussian, sine } from '../helpers/signals.js';
 import { sweepReference, tpdfDither24 } from './sweep-signals.js';
+import { refusedBy } from '../helpers/refused.js';
 
 describe('detectExponentialSweep: an exponential sweep given only as samples', () => {
   for (const fs of [44100, 48000, 96000, 192000]) {
@@ -96,9 +97,9 @@ describe('detectExponentialSweep: an exponential sweep given only as samples', (
   });
 
   it('checks its inputs', () => {
-    expect(() => detectExponentialSweep(new Float64Array(100), 0)).toThrow(/^detectExponentialSweep: sampleRate/);
+    expect(() => detectExponentialSweep(new Float64Array(100), 0)).toThrow(refusedBy('detectExponentialSweep', /^sampleRate/));
     const x = sweepReference(48000, 20, 20000, 1, 0.5);
     x[5] = Number.NaN;
-    expect(() => detectExponentialSweep(x, 48000)).toThrow(/^detectExponentialSweep: reference\[5\]/);
+    expect(() => detectExponentialSweep(x, 48000)).toThrow(refusedBy('detectExponentialSweep', /^sample 5 of the reference is NaN; only finite samples can be analysed$/));
   });
 });

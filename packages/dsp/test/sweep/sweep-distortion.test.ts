@@ -3,6 +3,7 @@ import { analyzeSweep } from '../../src/transfer/sweep-analysis.js';
 import { sweepDistortionByBand, type SweepBandDistortion } from '../../src/transfer/sweep-distortion.js';
 import { addNoise } from '../../src/testing/index.js';
 import { captureOf, sweepReference } from './sweep-signals.js';
+import { refusedBy } from '../helpers/refused.js';
 
 function band(rows: SweepBandDistortion[], centerHz: number): SweepBandDistortion {
   const row = rows.find((r) => r.centerHz === centerHz);
@@ -76,6 +77,6 @@ describe('sweepDistortionByBand: harmonic distortion of a memoryless polynomial 
     const a = analyzeSweep(full, full, fs);
     // A wire: every band reads (numerically) no distortion.
     for (const row of sweepDistortionByBand(a)) expect(row.thdPercent).toBeLessThan(0.001);
-    expect(() => sweepDistortionByBand(a, { fraction: 5 as 3 })).toThrow(/^sweepDistortionByBand: fraction/);
+    expect(() => sweepDistortionByBand(a, { fraction: 5 as 3 })).toThrow(refusedBy('sweepDistortionByBand', /^fraction/));
   });
 });

@@ -5,6 +5,7 @@ import { PageHeader } from '@/components/page-header';
 import { RoleBadge } from '@/components/role-badge';
 import { Skeleton } from '@/components/skeleton';
 import { getProjectQueryOptions, useProject } from '@/features/projects/api/get-project';
+import { MailSubscription } from '@/features/projects/components/mail-subscription';
 import { ProjectOverview } from '@/features/projects/components/project-overview';
 import { paths } from '@/lib/paths';
 import { requireSession } from '../require-session';
@@ -63,6 +64,7 @@ export function ProjectRoute() {
         }
       />
       <ProjectOverview project={project.data} />
+      <MailSubscription project={project.data} />
     </div>
   );
 }

@@ -6,9 +6,9 @@ import { InlineError } from '@/components/inline-error';
 import { useDecide, type DecisionTarget } from '../api/decide';
 
 /**
- * Approve or reject, with a comment (required to reject). Whoever asked for the decision
- * cannot take it: the buttons stay visible but disabled, with the reason beside them, so
- * the author knows why and who must act.
+ * Approve or reject, with a comment (required to reject). Whoever wrote, edited or requested
+ * the work cannot decide it (the four-eyes rule): the buttons stay visible but disabled, with
+ * the reason beside them, so they know why and who must act.
  */
 export function DecisionPanel({
   projectKey,
@@ -20,7 +20,7 @@ export function DecisionPanel({
   target: DecisionTarget;
   /** "revision 4 of eq.music.sweep", for the buttons' accessible descriptions. */
   label: string;
-  /** Why this user may not decide (they asked for it); null when they may. */
+  /** Why this user may not decide (they wrote, edited or requested it); null when they may. */
   blockedReason: string | null;
 }) {
   const decide = useDecide(projectKey);

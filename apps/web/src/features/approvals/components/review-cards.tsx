@@ -4,12 +4,12 @@ import { RelativeTime } from '@/components/relative-time';
 import { RevisionStateBadge } from '@/components/revision-state-badge';
 import { formatDate } from '@/lib/format';
 import { paths } from '@/lib/paths';
+import { revisionReviewBlock } from '../utils/review-block';
 import { DecisionPanel } from './decision-panel';
 import { ImpactPanel } from './impact-panel';
 
 /** A revision in review: what it is, its impact table, and the decision beside it. */
 export function RevisionReviewCard({ projectKey, revision, myEmail }: { projectKey: string; revision: MaskRevisionDto; myEmail: string | null }) {
-  const mine = myEmail !== null && revision.author === myEmail;
   const name = `Revision ${revision.revision} of ${revision.testCase}`;
   return (
     <article aria-label={name} className="rounded-lg border border-line bg-paper-raised">
@@ -34,7 +34,7 @@ export function RevisionReviewCard({ projectKey, revision, myEmail }: { projectK
           projectKey={projectKey}
           target={{ kind: 'revision', caseKey: revision.testCase, revision: revision.revision }}
           label={name}
-          blockedReason={mine ? 'You drafted this revision; another QA manager must approve it' : null}
+          blockedReason={revisionReviewBlock(revision, myEmail)}
         />
       </div>
     </article>

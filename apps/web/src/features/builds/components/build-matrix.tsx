@@ -2,6 +2,7 @@ import type { BuildMatrix as Matrix, CellOutcome, MatrixCell } from '@earmark/co
 import { useState } from 'react';
 import { Link } from 'react-router';
 import { VerdictIcon, verdictLabels } from '@/components/verdict-badge';
+import { WaiverNote } from '@/components/waiver-note';
 import { cn } from '@/lib/cn';
 import { describeCheck } from '@/lib/format-measure';
 import { paths } from '@/lib/paths';
@@ -66,7 +67,9 @@ function Cell({
       </td>
     );
   }
-  const worst = cell.failing[0];
+  // A waived check no longer fails the cell: it is told by the waiver note instead.
+  const failing = cell.failing.filter((check) => !check.waiver);
+  const worst = failing[0];
   const change = cellChange(cell, hasCompared);
   return (
     <td
@@ -86,14 +89,15 @@ function Cell({
           <VerdictIcon verdict={cell.outcome} />
           {verdictLabels[cell.outcome]}
         </span>
+        {cell.waiver ? <WaiverNote waiver={cell.waiver} className="mt-1 text-[11.5px]" /> : null}
         {worst ? (
           <span className="mt-1 block font-mono text-[11.5px] leading-snug text-ink-800" title={describeCheck(worst)}>
             {describeCheck(worst)}
           </span>
         ) : null}
-        {cell.failing.length > 1 ? (
+        {failing.length > 1 ? (
           <span className="block text-[11px] text-ink-500">
-            +{cell.failing.length - 1} more failing check{cell.failing.length > 2 ? 's' : ''}
+            +{failing.length - 1} more failing check{failing.length > 2 ? 's' : ''}
           </span>
         ) : null}
         {change ? <ChangeMarker cell={cell} kind={change} /> : null}
@@ -104,8 +108,8 @@ function Cell({
 
 /**
  * Test case × target: each cell is the newest capture of that pair in this build, linked to
- * its capture page, with the worst failing check and a marker where it differs from the
- * compared build.
+ * its capture page, with the worst failing check, "passed with waiver, until <date>" where a
+ * waiver counts it as passed, and a marker where it differs from the compared build.
  */
 export function BuildMatrix({ projectKey, matrix }: { projectKey: string; matrix: Matrix }) {
   const [view, setView] = useState<View>('all');

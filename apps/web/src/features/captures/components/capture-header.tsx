@@ -1,8 +1,10 @@
 import type { CaptureDetail } from '@earmark/contracts';
 import { Link } from 'react-router';
+import { JudgingSettingsSummary } from '@/components/judging-settings-summary';
 import { PageHeader } from '@/components/page-header';
 import { Spinner } from '@/components/spinner';
 import { VerdictBadge } from '@/components/verdict-badge';
+import { WaiverNote } from '@/components/waiver-note';
 import { formatDate } from '@/lib/format';
 import { paths } from '@/lib/paths';
 import { isCaptureInProgress } from '../api/get-capture';
@@ -49,7 +51,10 @@ export function CaptureHeader({ detail }: { detail: CaptureDetail }) {
         titleAside={<code className="font-mono text-sm text-ink-500">{testCase.key}</code>}
         actions={
           verdict && !inProgress ? (
-            <VerdictBadge verdict={verdict.outcome} className="h-7 px-3 text-sm" />
+            <span className="flex flex-wrap items-center justify-end gap-2">
+              <VerdictBadge verdict={verdict.outcome} className="h-7 px-3 text-sm" />
+              {verdict.waiver ? <WaiverNote waiver={verdict.waiver} className="text-[13px]" /> : null}
+            </span>
           ) : (
             <span className="inline-flex h-7 items-center gap-2 rounded-full border border-line-strong bg-paper-raised px-3 text-sm font-medium text-ink-700">
               {capture.status === 'error' ? 'Not analysed' : <Spinner label="Analysing…" />}
@@ -116,6 +121,14 @@ export function CaptureHeader({ detail }: { detail: CaptureDetail }) {
             </>
           ) : null}
         </p>
+      ) : null}
+
+      {verdict && !inProgress ? (
+        verdict.settings ? (
+          <JudgingSettingsSummary settings={verdict.settings} label="Settings this verdict used" />
+        ) : (
+          <p className="text-xs text-ink-500">This verdict was recorded before verdicts kept the settings they used.</p>
+        )
       ) : null}
 
       {verdict && !inProgress ? <ReevaluationChanges verdict={verdict} /> : null}

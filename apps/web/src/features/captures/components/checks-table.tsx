@@ -1,6 +1,7 @@
 import type { CheckResultDto } from '@earmark/contracts';
 import { useMemo, useState } from 'react';
 import { VerdictBadge } from '@/components/verdict-badge';
+import { WaiverNote } from '@/components/waiver-note';
 import { cn } from '@/lib/cn';
 import { checkKindLabel, formatMargin, formatValue, isSpectralCheck } from '../utils/check-format';
 import { defaultCheckSort, sortChecks, type CheckSort, type CheckSortKey } from '../utils/check-order';
@@ -53,6 +54,7 @@ export function ChecksTable({ checks, onShowFrequency }: { checks: readonly Chec
   const [sort, setSort] = useState<CheckSort>(defaultCheckSort);
   const rows = useMemo(() => sortChecks(checks, sort), [checks, sort]);
   const failing = checks.filter((c) => !c.pass).length;
+  const waived = checks.filter((c) => !c.pass && c.waiver).length;
 
   const toggle = (key: CheckSortKey) =>
     setSort((current) => (current.key === key ? { key, direction: current.direction === 'asc' ? 'desc' : 'asc' } : { key, direction: 'asc' }));
@@ -64,6 +66,12 @@ export function ChecksTable({ checks, onShowFrequency }: { checks: readonly Chec
         checks.length > 0 ? (
           <span className="text-xs text-ink-600">
             <span className="font-mono tabular-nums">{failing}</span> of <span className="font-mono tabular-nums">{checks.length}</span> failed
+            {waived ? (
+              <>
+                {' '}
+                (<span className="font-mono tabular-nums">{waived}</span> waived)
+              </>
+            ) : null}
           </span>
         ) : null
       }
@@ -109,10 +117,14 @@ export function ChecksTable({ checks, onShowFrequency }: { checks: readonly Chec
                 <tr
                   key={check.id}
                   data-check-id={check.id}
-                  className={cn('border-b border-line last:border-b-0', check.pass ? 'hover:bg-brass-50/50' : 'bg-fail-soft/35 hover:bg-fail-soft/60')}
+                  className={cn(
+                    'border-b border-line last:border-b-0',
+                    check.pass || check.waiver ? 'hover:bg-brass-50/50' : 'bg-fail-soft/35 hover:bg-fail-soft/60',
+                  )}
                 >
                   <td className="py-2.5 pr-3 pl-4 align-top">
                     <VerdictBadge verdict={check.pass ? 'pass' : 'fail'} />
+                    {!check.pass && check.waiver ? <WaiverNote waiver={check.waiver} kind="check" className="mt-1 flex whitespace-nowrap" /> : null}
                   </td>
                   <td className="min-w-[220px] px-3 py-2.5 align-top">
                     <span className="font-mono text-[12.5px] whitespace-nowrap text-ink-950">{check.id}</span>

@@ -43,7 +43,9 @@ export function FindingStateLabel({ state, className }: { state: FindingState; c
   );
 }
 
-export const stateOptions: MenuOption[] = findingStates.map((state) => ({
+// Only an approved waiver makes a finding an accepted deviation (the API refuses it as a triage
+// move), so it is offered as a filter, never as a state to pick: request a waiver instead.
+export const stateOptions: MenuOption[] = findingStates.filter((state) => state !== 'accepted_deviation').map((state) => ({
   value: state,
   label: findingStateLabels[state],
   text: findingStateLabels[state],

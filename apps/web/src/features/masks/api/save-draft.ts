@@ -11,16 +11,16 @@ export function updateDraft(projectKey: string, caseKey: string, revision: numbe
   return apiRequest(revisionPath(projectKey, caseKey, revision), { method: 'PATCH', body, schema: MaskRevisionDto });
 }
 
-export type SaveDraftInput = { revision: number | null; checks: unknown[]; note: string; target: string | null };
+export type SaveDraftInput = { revision: number | null; checks: unknown[]; note: string; target: string | null; settings?: UpdateMaskDraftRequest['settings'] };
 
 /** Saves the editor: a new draft (POST) or changes to an existing one (PATCH). */
 export function useSaveDraft(projectKey: string, caseKey: string) {
   const queryClient = useQueryClient();
   return useMutation({
-    mutationFn: ({ revision, checks, note, target }: SaveDraftInput) =>
+    mutationFn: ({ revision, checks, note, target, settings }: SaveDraftInput) =>
       revision === null
         ? createDraft(projectKey, caseKey, { checks, note, target })
-        : updateDraft(projectKey, caseKey, revision, { checks, note, target }),
+        : updateDraft(projectKey, caseKey, revision, { checks, note, target, ...(settings ? { settings } : {}) }),
     onSuccess: () => queryClient.invalidateQueries({ queryKey: masksKeyRoot(projectKey, caseKey) }),
   });
 }

@@ -4,6 +4,7 @@ import { Button } from '@/components/button';
 import { Select, TextArea } from '@/components/form-controls';
 import { InlineError } from '@/components/inline-error';
 import { RevisionStateBadge } from '@/components/revision-state-badge';
+import { useCurrentUser } from '@/lib/authorization';
 import { apiFieldIssues } from '@/lib/field-issues';
 import { formatDateTime } from '@/lib/format-time';
 import { useCandidateCaptures } from '../api/get-candidate-captures';
@@ -11,10 +12,12 @@ import { useTargets } from '../api/get-targets';
 import { useCopyRevision, useSubmitRevision } from '../api/revision-actions';
 import { useSaveDraft } from '../api/save-draft';
 import { drawablePoints, starterCheck, toEditorCheck, validateChecks, type EditorCheck } from '../utils/editor-checks';
+import { settingsFromForm, settingsToForm, type SettingsFormValues } from '../utils/settings-form';
 import { ChecksEditor } from './checks-editor';
 import { DeriveWizard } from './derive-wizard';
 import { LimitPreview } from './limit-preview';
 import { ReevaluateButton } from './reevaluate-button';
+import { RevisionSettings } from './revision-settings';
 
 /** What the editor holds: a stored revision, or a new draft that is not saved yet. */
 export type EditorSource = { revision: MaskRevisionDto } | { unsaved: { checks: MaskCheck[]; note: string; target: string | null } };
@@ -30,9 +33,9 @@ export function withDerived(checks: readonly MaskCheck[], derived: MagnitudeEnve
 }
 
 /**
- * One revision open: its checks in the table editor (editable for drafts the user may
- * change, read-only otherwise), the live preview over a recent capture, and the actions
- * that fit its state. The parent keys this component by the revision, so switching starts
+ * One revision open: its checks in the table editor (editable for the user's own drafts,
+ * read-only otherwise: only a draft's author edits or submits it), the live preview over a
+ * recent capture, and the actions that fit its state. The parent keys this component by the revision, so switching starts
  * from the stored checks.
  */
 export function MaskWorkspace({
@@ -52,7 +55,11 @@ export function MaskWorkspace({
   onStartDraft: (checks: MaskCheck[]) => void;
 }) {
   const stored = 'revision' in source ? source.revision : null;
-  const editable = canDraft && (stored === null || stored.state === 'draft');
+  const me = useCurrentUser();
+  // An unsaved draft is the user's own; a stored one only when they wrote it.
+  const mine = stored === null || (me !== undefined && stored.author === me.email);
+  const editable = canDraft && mine && (stored === null || stored.state === 'draft');
+  const someoneElsesDraft = canDraft && !mine && stored?.state === 'draft';
   const [checks, setChecks] = useState<EditorCheck[]>(() => initialChecks(source));
   const [note, setNote] = useState(stored?.note ?? ('unsaved' in source ? source.unsaved.note : ''));
   const [target, setTarget] = useState<string | null>(stored ? stored.target : 'unsaved' in source ? source.unsaved.target : null);
@@ -60,6 +67,9 @@ export function MaskWorkspace({
   const [deriving, setDeriving] = useState(false);
   const [previewUid, setPreviewUid] = useState<string | null>(null);
   const [captureId, setCaptureId] = useState<string | null>(null);
+  // A stored draft's author edits its judging settings too (a new draft starts from the test case's).
+  const settingsEditable = editable && stored !== null;
+  const [settingsForm, setSettingsForm] = useState<SettingsFormValues | null>(() => (stored ? settingsToForm(stored.settings) : null));
 
   const save = useSaveDraft(projectKey, caseKey);
   const submit = useSubmitRevision(projectKey, caseKey);
@@ -68,6 +78,9 @@ export function MaskWorkspace({
   const candidates = useCandidateCaptures(projectKey, caseKey);
 
   const validation = useMemo(() => validateChecks(checks), [checks]);
+  const settingsResult = useMemo(() => (settingsEditable && settingsForm ? settingsFromForm(settingsForm) : null), [settingsEditable, settingsForm]);
+  const settingsIssues = settingsResult && !settingsResult.ok ? settingsResult.issues : save.error ? apiFieldIssues(save.error) : {};
+  const canSave = validation.ok && (settingsResult === null || settingsResult.ok);
   const issues = validation.ok ? (save.error ? apiFieldIssues(save.error) : {}) : validation.issues;
   const change = (next: EditorCheck[]) => {
     setChecks(next);
@@ -82,8 +95,11 @@ export function MaskWorkspace({
   const chosenCapture = captureId ?? candidates.data?.[0]?.captureId ?? null;
 
   const saveDraft = async (): Promise<MaskRevisionDto | null> => {
-    if (!validation.ok) return null;
-    const saved = await save.mutateAsync({ revision: stored?.revision ?? null, checks: validation.checks, note, target });
+    if (!validation.ok || (settingsResult !== null && !settingsResult.ok)) return null;
+    // Only changed settings are sent, so the audit trail shows a settings edit only when there was one.
+    const settingsChanged = stored !== null && settingsForm !== null && JSON.stringify(settingsForm) !== JSON.stringify(settingsToForm(stored.settings));
+    const settings = settingsChanged && settingsResult?.ok ? settingsResult.settings : undefined;
+    const saved = await save.mutateAsync({ revision: stored?.revision ?? null, checks: validation.checks, note, target, ...(settings ? { settings } : {}) });
     setDirty(false);
     return saved;
   };
@@ -150,10 +166,10 @@ export function MaskWorkspace({
             {stored?.state === 'approved' ? <ReevaluateButton projectKey={projectKey} caseKey={caseKey} revision={stored.revision} /> : null}
             {editable ? (
               <>
-                <Button variant="secondary" busy={save.isPending && !submit.isPending} disabled={!validation.ok || (!dirty && stored !== null)} onClick={onSave}>
+                <Button variant="secondary" busy={save.isPending && !submit.isPending} disabled={!canSave || (!dirty && stored !== null)} onClick={onSave}>
                   Save draft
                 </Button>
-                <Button busy={submit.isPending} disabled={!validation.ok} onClick={onSubmit}>
+                <Button busy={submit.isPending} disabled={!canSave} onClick={onSubmit}>
                   Submit for review
                 </Button>
               </>
@@ -162,6 +178,11 @@ export function MaskWorkspace({
         ) : null}
       </div>
 
+      {someoneElsesDraft ? (
+        <p role="note" className="rounded-md border border-line bg-paper-raised px-3 py-2 text-sm text-ink-700">
+          Only its author, {stored.author}, can change or submit this draft. Copy it to a draft of your own to propose other limits.
+        </p>
+      ) : null}
       {actionError ? <InlineError error={actionError} /> : null}
       {editable && !validation.ok ? (
         <p role="status" className="text-xs text-fail">
@@ -206,6 +227,18 @@ export function MaskWorkspace({
         </div>
       ) : stored?.note ? (
         <p className="rounded-md border border-line bg-paper-raised px-3 py-2 text-sm text-ink-700">{stored.note}</p>
+      ) : null}
+
+      {stored ? (
+        <RevisionSettings
+          settings={stored.settings}
+          form={settingsEditable ? settingsForm : null}
+          issues={settingsIssues}
+          onChange={(next) => {
+            setSettingsForm(next);
+            setDirty(true);
+          }}
+        />
       ) : null}
 
       <ChecksEditor

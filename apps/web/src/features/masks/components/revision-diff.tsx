@@ -1,4 +1,4 @@
-import type { CheckDiffStatus, MaskRevisionDto } from '@earmark/contracts';
+import type { CheckDiffStatus, MaskDiff, MaskRevisionDto } from '@earmark/contracts';
 import { ErrorState } from '@/components/error-state';
 import { Select } from '@/components/form-controls';
 import { RevisionStateBadge } from '@/components/revision-state-badge';
@@ -16,6 +16,42 @@ const statusStyle: Record<CheckDiffStatus, { label: string; mark: string; classN
 function show(value: unknown): string {
   if (value === undefined) return '—';
   return typeof value === 'string' ? value : JSON.stringify(value);
+}
+
+/** A setting that is absent on one side reads as the engine's default. */
+const showSetting = (value: unknown) => (value === null || value === undefined ? 'default' : show(value));
+
+/**
+ * Stimulus, analysis and channel-map changes, above the checks: they change how every capture
+ * is measured, so a reviewer must not miss them among limit edits.
+ */
+function SettingsChanges({ changes }: { changes: MaskDiff['settingsChanges'] }) {
+  return (
+    <div role="note" aria-label="Settings changes" className="space-y-2 rounded-md border border-ink-300 bg-ink-100 px-3 py-2">
+      <p className="text-sm text-ink-900">
+        <span className="font-semibold">Judging settings change.</span> Captures judged under this revision are measured with these settings once it is
+        approved: they can turn verdicts as much as the limits can.
+      </p>
+      <table aria-label="Settings differences" className="w-full border-collapse text-sm">
+        <thead>
+          <tr className="text-left text-xs font-semibold uppercase tracking-[0.06em] text-ink-500">
+            <th scope="col" className="pr-3">Setting</th>
+            <th scope="col" className="pr-3">Before</th>
+            <th scope="col">After</th>
+          </tr>
+        </thead>
+        <tbody>
+          {changes.map((change) => (
+            <tr key={change.path} className="align-top">
+              <td className="py-1 pr-3 font-mono text-xs text-ink-800">{change.path}</td>
+              <td className="max-w-72 py-1 pr-3 font-mono text-xs break-all text-ink-600">{showSetting(change.before)}</td>
+              <td className="max-w-72 py-1 font-mono text-xs break-all text-ink-950">{showSetting(change.after)}</td>
+            </tr>
+          ))}
+        </tbody>
+      </table>
+    </div>
+  );
 }
 
 /** Two revisions compared check by check (matched by id), each changed field with its before and after. */
@@ -70,7 +106,9 @@ export function RevisionDiff({
             </span>
             {diff.data.noteChanged ? <span>· note changed</span> : null}
             {diff.data.targetChanged ? <span>· target changed</span> : null}
+            {diff.data.settingsChanges.length === 0 ? <span>· settings unchanged</span> : null}
           </p>
+          {diff.data.settingsChanges.length ? <SettingsChanges changes={diff.data.settingsChanges} /> : null}
           <table aria-label="Check differences" className="w-full border-collapse text-sm">
             <thead>
               <tr className="border-b border-line text-left text-xs font-semibold uppercase tracking-[0.06em] text-ink-500">

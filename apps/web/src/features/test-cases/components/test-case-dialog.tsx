@@ -1,14 +1,17 @@
 import type { StimulusKind, TestCaseDto } from '@earmark/contracts';
 import { useId, useState, type ReactNode } from 'react';
+import { Link } from 'react-router';
 import { Button } from '@/components/button';
 import { Dialog } from '@/components/dialog';
 import { Select, TextArea, TextInput } from '@/components/form-controls';
 import { InlineError } from '@/components/inline-error';
 import { apiFieldIssues, issuesUnder, type FieldIssues } from '@/lib/field-issues';
+import { paths } from '@/lib/paths';
 import { useSaveTestCase } from '../api/save-test-case';
 import {
   createRequestFromForm,
   emptyTestCaseForm,
+  renameRequestFromForm,
   STIMULUS_FIELDS,
   STIMULUS_KIND_LABELS,
   STIMULUS_KINDS,
@@ -125,6 +128,8 @@ export function TestCaseDialog({
   const [issues, setIssues] = useState<FieldIssues>({});
   const formId = useId();
   const editing = testCase !== null;
+  // Settings that judged captures are reviewed with a mask revision, not edited here.
+  const settingsLocked = editing && testCase.hasCaptures;
 
   const close = () => {
     save.reset();
@@ -135,7 +140,7 @@ export function TestCaseDialog({
   const submit = () => {
     const options = { onSuccess: close, onError: (error: unknown) => setIssues(apiFieldIssues(error)) };
     if (editing) {
-      const result = updateRequestFromForm(values);
+      const result = settingsLocked ? renameRequestFromForm(values) : updateRequestFromForm(values);
       if (!result.ok) return setIssues(result.issues);
       setIssues({});
       save.mutate({ mode: 'update', caseKey: testCase.key, body: result.body }, options);
@@ -162,7 +167,11 @@ export function TestCaseDialog({
       variant="side"
       className="w-[min(560px,100vw)]"
       title={editing ? `Edit ${testCase.key}` : 'New test case'}
-      description={editing ? 'The stimulus can change only while no captures of this test case exist.' : 'A test case names the signal rigs play and how Earmark analyses what comes back.'}
+      description={
+        editing
+          ? 'Stimulus, analysis settings and channel map change here only while no captures of this test case exist.'
+          : 'A test case names the signal rigs play and how Earmark analyses what comes back.'
+      }
       footer={
         <>
           <Button variant="ghost" onClick={close}>
@@ -184,6 +193,18 @@ export function TestCaseDialog({
         }}
       >
         {save.error ? <InlineError error={save.error} /> : null}
+        {settingsLocked ? (
+          <div role="note" aria-label="Settings under review" className="rounded-md border border-line-strong bg-paper px-3 py-2 text-sm text-ink-800">
+            <p>
+              Captures of this test case exist, so its stimulus, analysis settings and channel map are under review: changing them would change
+              verdicts. Draft a mask revision with the new settings; they come into force when a QA manager approves it. Name and description stay
+              editable here.
+            </p>
+            <Link to={paths.masks(projectKey, testCase.key)} className="mt-1 inline-block font-medium text-ink-950 underline decoration-ink-300 underline-offset-4 hover:decoration-ink-800">
+              Open the masks of {testCase.key}
+            </Link>
+          </div>
+        ) : null}
         <fieldset className="space-y-3">
           <legend className="mb-2 text-[11px] font-semibold uppercase tracking-[0.08em] text-ink-500">Test case</legend>
           {editing ? null : (
@@ -203,7 +224,7 @@ export function TestCaseDialog({
           </Field>
         </fieldset>
 
-        <fieldset className="space-y-3">
+        <fieldset className="space-y-3 disabled:opacity-70" disabled={settingsLocked}>
           <legend className="mb-2 text-[11px] font-semibold uppercase tracking-[0.08em] text-ink-500">Stimulus</legend>
           <Field label="Signal" errors={at('stimulus.kind')}>
             {(props) => (
@@ -232,10 +253,12 @@ export function TestCaseDialog({
               />
             ))}
           </div>
-          {editing ? <StimulusDownloadButton projectKey={projectKey} caseKey={testCase.key} /> : null}
+          {editing && !settingsLocked ? <StimulusDownloadButton projectKey={projectKey} caseKey={testCase.key} /> : null}
         </fieldset>
+        {/* A disabled fieldset would disable the download too. */}
+        {settingsLocked ? <StimulusDownloadButton projectKey={projectKey} caseKey={testCase.key} /> : null}
 
-        <fieldset className="space-y-3">
+        <fieldset className="space-y-3 disabled:opacity-70" disabled={settingsLocked}>
           <legend className="mb-2 text-[11px] font-semibold uppercase tracking-[0.08em] text-ink-500">Analysis</legend>
           <Field label="Transfer estimator" errors={at('analysis.transferMethod')}>
             {(props) => (

@@ -242,6 +242,17 @@ export function updateRequestFromForm(values: TestCaseFormValues): FormResult<Up
   return { ok: true, body: raw as UpdateTestCaseRequest };
 }
 
+/**
+ * Once a test case has captures only its name and description change here: its stimulus,
+ * analysis settings and channel map are reviewed with a mask revision instead.
+ */
+export function renameRequestFromForm(values: TestCaseFormValues): FormResult<UpdateTestCaseRequest> {
+  const raw = { name: values.name.trim(), description: values.description };
+  const parsed = UpdateTestCaseRequest.safeParse(raw);
+  if (!parsed.success) return { ok: false, issues: issuesByPath(parsed.error) };
+  return { ok: true, body: raw };
+}
+
 export { STIMULUS_KINDS };
 
 /** A one-line summary of a stimulus for the table: "Sweep 20 Hz–20 kHz, 5 s @ −20 dBFS". */

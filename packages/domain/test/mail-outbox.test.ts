@@ -1,0 +1,66 @@
+import { Membership, Notification, User, initOrm, seedRoles, type RoleFixture } from '@earmark/db';
+import { createTestDatabase, type TestDatabase } from '@earmark/db/testing';
+import type { MikroORM } from '@mikro-orm/postgresql';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { buildMailSubscribersOf, qaManagersOf, renderMail, writeToOutbox } from '../src/index.js';
+
+let db: TestDatabase;
+let orm: MikroORM;
+let fx: RoleFixture;
+
+beforeAll(async () => {
+  db = await createTestDatabase();
+  orm = await initOrm({ url: db.url, poolMax: 2 });
+  fx = await seedRoles(orm.em.fork());
+});
+afterAll(async () => {
+  await orm?.close();
+  await db?.drop();
+});
+
+const message = renderMail({ kind: 'outbox-test', subject: `[Earmark] ${'x'.repeat(320)}`, blocks: [{ type: 'paragraph', content: ['<hello>'] }], footer: { reason: 'Test.' }, payload: { n: 1 } });
+
+describe('writeToOutbox', () => {
+  it('writes one pending row per enabled recipient, with both parts, and skips disabled and repeated addresses', async () => {
+    const em = orm.em.fork();
+    const written = writeToOutbox(em, message, [
+      { email: 'a@example.test', disabled: false },
+      { email: 'gone@example.test', disabled: true },
+      { email: 'A@example.test', disabled: false },
+      { email: 'b@example.test', disabled: false },
+    ]);
+    await em.flush();
+    expect(written).toBe(2);
+    const rows = await orm.em.fork().find(Notification, { kind: 'outbox-test' }, { orderBy: { recipient: 'asc' } });
+    expect(rows.map((r) => [r.recipient, r.state])).toEqual([['a@example.test', 'pending'], ['b@example.test', 'pending']]);
+    expect(rows[0]!.body).toBe(message.text);
+    expect(rows[0]!.html).toBe(message.html);
+    expect(rows[0]!.html).toContain('&lt;hello&gt;');
+    expect(rows[0]!.payload).toEqual({ n: 1 });
+    // The column holds 300 characters.
+    expect(rows[0]!.subject).toHaveLength(300);
+    expect(rows[0]!.subject.endsWith('…')).toBe(true);
+  });
+});
+
+describe('recipients', () => {
+  it('QA managers of the project, without the people excluded', async () => {
+    const em = orm.em.fork();
+    expect((await qaManagersOf(em, fx.project)).map((u) => u.email)).toEqual(['qa_manager@example.test']);
+    expect(await qaManagersOf(em, fx.project, [fx.users.qa_manager])).toEqual([]);
+  });
+
+  it('subscribers are the members with the setting on: engineers and QA managers by default, not viewers', async () => {
+    const em = orm.em.fork();
+    expect((await buildMailSubscribersOf(em, fx.project)).map((u) => u.email)).toEqual(['engineer@example.test', 'qa_manager@example.test']);
+    const viewer = await em.findOneOrFail(Membership, { project: fx.project.id, user: fx.users.viewer.id });
+    viewer.subscribed = true;
+    const disabled = em.create(User, { email: 'disabled@example.test', displayName: 'off', passwordHash: 'x', disabled: true });
+    em.create(Membership, { project: fx.project.id, user: disabled, role: 'engineer', subscribed: true });
+    await em.flush();
+    const subscribers = await buildMailSubscribersOf(orm.em.fork(), fx.project);
+    expect(subscribers.map((u) => u.email)).toEqual(['disabled@example.test', 'engineer@example.test', 'qa_manager@example.test', 'viewer@example.test']);
+    // The writer is what leaves the disabled account out.
+    expect(writeToOutbox(orm.em.fork(), message, subscribers)).toBe(3);
+  });
+});
