@@ -124,6 +124,39 @@ describe('waivers', () => {
     expect((await api.request('POST', '/api/projects/alpha-dsp/waivers/not-a-uuid/approve', { token: qa })).status).toBe(404);
     expect(await api.orm.em.fork().count(AuditEvent, { action: 'waiver.approve', subject: `waiver:${res.body.id}` })).toBe(0);
   });
+
+  it('mails the requester and the finding’s assignee when a QA manager revokes an approved waiver, with the reason', async () => {
+    const em = api.orm.em.fork();
+    const waiver = await em.findOneOrFail(Waiver, { finding: findings.thd!, state: 'approved' });
+    const finding = await em.findOneOrFail(Finding, { id: findings.thd! });
+    finding.assignee = api.fixture.users.viewer;
+    await em.flush();
+    const url = `/api/projects/alpha-dsp/waivers/${waiver.id}/revoke`;
+    const revokedMail = () => api.orm.em.fork().find(Notification, { kind: 'waiver-revoked' }, { orderBy: { recipient: 'asc' } });
+
+    expect((await api.request('POST', url, { token: qa, body: { reason: '  ' } })).status).toBe(422); // a reason is required
+    expect(await revokedMail()).toHaveLength(0);
+
+    const revoked = await api.request('POST', url, { token: qa, body: { reason: 'Rev C silicon is in; the erratum no longer applies.' } });
+    expect(revoked.status, revoked.text).toBe(200);
+    expect(revoked.body).toMatchObject({ id: waiver.id, state: 'revoked', active: false });
+    expect(await findingState('thd')).toBe('open');
+
+    const mail = await revokedMail();
+    expect(mail.map((n) => [n.recipient, n.subject])).toEqual([
+      ['engineer@example.test', '[Earmark] alpha-dsp: waiver for tone / thd on every target revoked by qa_manager'],
+      ['viewer@example.test', '[Earmark] alpha-dsp: waiver for tone / thd on every target revoked by qa_manager'],
+    ]);
+    expect(mail[0]!.body).toContain('Reason: Rev C silicon is in; the erratum no longer applies.');
+    expect(mail[0]!.body).toContain('the check fails builds again');
+    expect(mail[0]!.body).toContain('You get this because you requested the waiver in Earmark.');
+    expect(mail[1]!.body).toContain('You get this because you are assigned the finding in Earmark.');
+    expect(mail[0]!.payload).toEqual({ project: 'alpha-dsp', waiverId: waiver.id, revokedBy: 'qa_manager@example.test' });
+
+    // Revoked once: a second revocation is refused and mails nobody.
+    expect((await api.request('POST', url, { token: qa, body: { reason: 'again' } })).status).toBe(409);
+    expect(await revokedMail()).toHaveLength(2);
+  });
 });
 
 describe('accepted deviation only through a waiver', () => {

@@ -1,7 +1,7 @@
 import type { CurrentUser, Problem, Project } from '@earmark/contracts';
 import { vi } from 'vitest';
 
-export type RecordedRequest = { method: string; path: string; authorization: string | null; body: unknown };
+export type RecordedRequest = { method: string; path: string; authorization: string | null; body: unknown; /** The query string (`?state=approved`), '' without one; handlers are keyed by path only. */ search: string };
 type Handler = (request: RecordedRequest) => Response | Promise<Response>;
 
 export function json(body: unknown, status = 200): Response {
@@ -25,6 +25,7 @@ export function mockApi(handlers: Record<string, Handler>) {
     const request: RecordedRequest = {
       method: init?.method ?? 'GET',
       path: url.pathname,
+      search: url.search,
       authorization: headers.get('Authorization'),
       body: typeof init?.body === 'string' ? (JSON.parse(init.body) as unknown) : undefined,
     };

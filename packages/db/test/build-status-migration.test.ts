@@ -1,31 +1,19 @@
-import type { MikroORM } from '@mikro-orm/postgresql';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { Build, Capture, Project, Target, TestCase, Verdict, initOrm, seedRoles, type RoleFixture } from '../src/index.js';
+import { describe, expect, it } from 'vitest';
+import { Build, Capture, Project, Target, TestCase, Verdict } from '../src/index.js';
 import { Migration20261202180100 } from '../src/migrations/migration-20261202180100.js';
-import { createTestDatabase, type TestDatabase } from '../src/testing/index.js';
+import { useSeededDatabase } from '../src/testing/index.js';
 
 /**
  * Migration 20261202180100: every stored build status is computed again by today's rule
  * (an error outranks a failure) from each capture's status and newest verdict. Its SQL runs
  * on rows written as the old rule left them; down() restores the old ranking.
  */
-let db: TestDatabase;
-let orm: MikroORM;
-let fixture: RoleFixture;
-beforeAll(async () => {
-  db = await createTestDatabase();
-  orm = await initOrm({ url: db.url, poolMax: 2 });
-  fixture = await seedRoles(orm.em.fork());
-});
-afterAll(async () => {
-  await orm.close();
-  await db.drop();
-});
+const seeded = useSeededDatabase();
 
 async function run(direction: 'up' | 'down'): Promise<void> {
-  const migration = new Migration20261202180100(orm.em.getDriver(), orm.config);
+  const migration = new Migration20261202180100(seeded.orm.em.getDriver(), seeded.orm.config);
   await migration[direction]();
-  for (const sql of migration.getQueries()) await orm.em.getConnection().execute(sql as string);
+  for (const sql of migration.getQueries()) await seeded.orm.em.getConnection().execute(sql as string);
 }
 
 type Verdicts = ('pass' | 'fail' | 'error')[];
@@ -33,8 +21,8 @@ type CaptureRow = { status: Capture['status']; verdicts: Verdicts };
 
 describe('build status migration', () => {
   it('recomputes every stored status with an error outranking a failure, by the newest verdict of each capture', async () => {
-    const em = orm.em.fork();
-    const project = await em.findOneOrFail(Project, { key: fixture.project.key });
+    const em = seeded.orm.em.fork();
+    const project = await em.findOneOrFail(Project, { key: seeded.fixture.project.key });
     const testCase = em.create(TestCase, { project, key: 'migr.case', name: 'case', stimulus: { kind: 'silence' } });
     const target = em.create(Target, { project, key: 'migr-board', name: 'board' });
     await em.flush();
@@ -65,7 +53,7 @@ describe('build status migration', () => {
     }
     await em.flush();
     const statuses = async () =>
-      Object.fromEntries((await orm.em.fork().find(Build, { sha: { $in: cases.map((c) => c.sha) } })).map((b) => [b.sha, b.status]));
+      Object.fromEntries((await seeded.orm.em.fork().find(Build, { sha: { $in: cases.map((c) => c.sha) } })).map((b) => [b.sha, b.status]));
 
     await run('up');
     expect(await statuses()).toEqual(Object.fromEntries(cases.map((c) => [c.sha, c.expected])));

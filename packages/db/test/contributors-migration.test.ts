@@ -1,32 +1,19 @@
-import type { MikroORM } from '@mikro-orm/postgresql';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { initOrm, seedRoles, type RoleFixture } from '../src/index.js';
-import { createTestDatabase, type TestDatabase } from '../src/testing/index.js';
+import { describe, expect, it } from 'vitest';
+import { useSeededDatabase } from '../src/testing/index.js';
 
 /**
  * Migration 20261202180300: every existing revision's contributors are its author, then
  * whoever the audit log shows editing it (oldest edit first), so an edit made before only
  * authors could edit still bars its editor from deciding the revision.
  */
-let db: TestDatabase;
-let orm: MikroORM;
-let fixture: RoleFixture;
-beforeAll(async () => {
-  db = await createTestDatabase();
-  orm = await initOrm({ url: db.url, poolMax: 2 });
-  fixture = await seedRoles(orm.em.fork());
-});
-afterAll(async () => {
-  await orm.close();
-  await db.drop();
-});
+const seeded = useSeededDatabase();
 
 describe('mask revision contributors migration', () => {
   it('backfills the author, then earlier editors of that very revision from the audit log', async () => {
-    const migrator = orm.getMigrator();
+    const migrator = seeded.orm.getMigrator();
     await migrator.down({ to: 'migration-20261202180200' });
-    const sql = orm.em.getConnection();
-    const { project, otherProject, users } = fixture;
+    const sql = seeded.orm.em.getConnection();
+    const { project, otherProject, users } = seeded.fixture;
     const cases = await sql.execute<{ id: string }[]>(
       `insert into test_case (id, created_at, project_id, key, name, stimulus, analysis, channel_map, updated_at) values
          (gen_random_uuid(), now(), ?, 'tone', 'Tone', '{"kind":"silence"}', '{}', '[]', now()),

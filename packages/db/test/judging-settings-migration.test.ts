@@ -1,39 +1,26 @@
-import type { MikroORM } from '@mikro-orm/postgresql';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { initOrm, seedRoles, type RoleFixture } from '../src/index.js';
-import { createTestDatabase, type TestDatabase } from '../src/testing/index.js';
+import { describe, expect, it } from 'vitest';
+import { useSeededDatabase } from '../src/testing/index.js';
 
 /** Migration 20261202180400: existing revisions take their test case's settings; old verdicts keep none. */
-let db: TestDatabase;
-let orm: MikroORM;
-let fixture: RoleFixture;
-beforeAll(async () => {
-  db = await createTestDatabase();
-  orm = await initOrm({ url: db.url, poolMax: 2 });
-  fixture = await seedRoles(orm.em.fork());
-});
-afterAll(async () => {
-  await orm.close();
-  await db.drop();
-});
+const seeded = useSeededDatabase();
 
 describe('judging settings migration', () => {
   it('backfills every existing revision from its own test case and leaves old verdicts without settings', async () => {
-    const migrator = orm.getMigrator();
+    const migrator = seeded.orm.getMigrator();
     await migrator.down({ to: 'migration-20261202143502' });
-    const sql = orm.em.getConnection();
+    const sql = seeded.orm.em.getConnection();
     const stimulus = { kind: 'sine', sampleRate: 48000, seconds: 1, frequency: 997, levelDbfs: -12 };
     const rows = await sql.execute<{ id: string }[]>(
       `insert into test_case (id, created_at, project_id, key, name, stimulus, analysis, channel_map, updated_at) values
          (gen_random_uuid(), now(), ?, 'left', 'Left', ?, ?, ?, now()),
          (gen_random_uuid(), now(), ?, 'all', 'All', ?, '{}', '[]', now()) returning id`,
-      [fixture.project.id, JSON.stringify(stimulus), JSON.stringify({ transferMethod: 'h1' }), JSON.stringify([0]), fixture.project.id, JSON.stringify({ kind: 'silence', sampleRate: 48000, seconds: 1 })],
+      [seeded.fixture.project.id, JSON.stringify(stimulus), JSON.stringify({ transferMethod: 'h1' }), JSON.stringify([0]), seeded.fixture.project.id, JSON.stringify({ kind: 'silence', sampleRate: 48000, seconds: 1 })],
     );
     const [left, all] = rows.map((r) => r.id) as [string, string];
     for (const [testCase, revision] of [[left, 1], [left, 2], [all, 1]] as const) {
       await sql.execute(
         `insert into mask_revision (id, created_at, test_case_id, revision, state, checks, note, author_id) values (gen_random_uuid(), now(), ?, ?, 'draft', '[]', '', ?)`,
-        [testCase, revision, fixture.users.engineer.id],
+        [testCase, revision, seeded.fixture.users.engineer.id],
       );
     }
 

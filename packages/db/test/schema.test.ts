@@ -1,23 +1,12 @@
-import { UniqueConstraintViolationException, type MikroORM } from '@mikro-orm/postgresql';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { Build, Capture, MaskRevision, Project, Target, TestCase, Verdict, initOrm, seedRoles, testCaseSettings, type RoleFixture } from '../src/index.js';
-import { createTestDatabase, type TestDatabase } from '../src/testing/index.js';
+import { UniqueConstraintViolationException } from '@mikro-orm/postgresql';
+import { describe, expect, it } from 'vitest';
+import { Build, Capture, MaskRevision, Project, Target, TestCase, Verdict, testCaseSettings } from '../src/index.js';
+import { useSeededDatabase } from '../src/testing/index.js';
 
-let db: TestDatabase;
-let orm: MikroORM;
-let fixture: RoleFixture;
-beforeAll(async () => {
-  db = await createTestDatabase();
-  orm = await initOrm({ url: db.url, poolMax: 3 });
-  fixture = await seedRoles(orm.em.fork());
-});
-afterAll(async () => {
-  await orm.close();
-  await db.drop();
-});
+const seeded = useSeededDatabase(3);
 
-async function caseAndTarget(em = orm.em.fork()) {
-  const project = await em.findOneOrFail(Project, { key: fixture.project.key });
+async function caseAndTarget(em = seeded.orm.em.fork()) {
+  const project = await em.findOneOrFail(Project, { key: seeded.fixture.project.key });
   const testCase = em.create(TestCase, { project, key: `tc.${Math.random()}`, name: 'case', stimulus: { kind: 'silence' } });
   const target = em.create(Target, { project, key: `t-${Math.random()}`, name: 'target' });
   await em.flush();
@@ -27,15 +16,15 @@ async function caseAndTarget(em = orm.em.fork()) {
 describe('schema', () => {
   it('matches the entities: a fresh migration:create would be empty', async () => {
     // The CI check that no entity change ships without its migration.
-    expect(await orm.getMigrator().checkMigrationNeeded()).toBe(false);
+    expect(await seeded.orm.getMigrator().checkMigrationNeeded()).toBe(false);
   });
 
   it('allows one build per project and commit SHA', async () => {
-    const em = orm.em.fork();
-    const project = await em.findOneOrFail(Project, { key: fixture.project.key });
+    const em = seeded.orm.em.fork();
+    const project = await em.findOneOrFail(Project, { key: seeded.fixture.project.key });
     em.create(Build, { project, sha: 'abc1234' });
     await em.flush();
-    const em2 = orm.em.fork();
+    const em2 = seeded.orm.em.fork();
     em2.create(Build, { project: project.id, sha: 'abc1234' });
     await expect(em2.flush()).rejects.toBeInstanceOf(UniqueConstraintViolationException);
   });
@@ -43,12 +32,12 @@ describe('schema', () => {
   it('allows only one approved mask revision per test case and target (including "all targets")', async () => {
     const { em, testCase } = await caseAndTarget();
     const settings = testCaseSettings(testCase);
-    em.create(MaskRevision, { testCase, revision: 1, state: 'approved', settings, author: fixture.users.qa_manager.id });
+    em.create(MaskRevision, { testCase, revision: 1, state: 'approved', settings, author: seeded.fixture.users.qa_manager.id });
     await em.flush();
-    const em2 = orm.em.fork();
-    em2.create(MaskRevision, { testCase: testCase.id, revision: 2, state: 'draft', settings, author: fixture.users.engineer.id });
+    const em2 = seeded.orm.em.fork();
+    em2.create(MaskRevision, { testCase: testCase.id, revision: 2, state: 'draft', settings, author: seeded.fixture.users.engineer.id });
     await em2.flush(); // drafts may coexist with the approved one
-    em2.create(MaskRevision, { testCase: testCase.id, revision: 3, state: 'approved', settings, author: fixture.users.qa_manager.id });
+    em2.create(MaskRevision, { testCase: testCase.id, revision: 3, state: 'approved', settings, author: seeded.fixture.users.qa_manager.id });
     await expect(em2.flush()).rejects.toBeInstanceOf(UniqueConstraintViolationException);
   });
 
@@ -60,7 +49,7 @@ describe('schema', () => {
     });
     em.create(Verdict, { capture, outcome: 'error', reason: 'no mask', engineVersion: '0.1.0' });
     await em.flush();
-    const em2 = orm.em.fork();
+    const em2 = seeded.orm.em.fork();
     em2.create(Verdict, { capture: capture.id, outcome: 'error', reason: 'again', engineVersion: '0.1.0' });
     await expect(em2.flush()).rejects.toBeInstanceOf(UniqueConstraintViolationException);
   });
@@ -77,7 +66,7 @@ describe('schema', () => {
     em.create(Verdict, { capture, outcome: 'pass', reason: 'passed with waiver: loudness', engineVersion: '1.0.0', waiverBasis: 'w-1;approved=w-1', previous: judged });
     em.create(Verdict, { capture, outcome: 'fail', reason: 'loudness', engineVersion: '1.0.0', waiverBasis: ';revoked=w-1' });
     await em.flush(); // re-judged when the waiver came and when it went
-    const em2 = orm.em.fork();
+    const em2 = seeded.orm.em.fork();
     em2.create(Verdict, { capture: capture.id, outcome: 'pass', reason: 'again', engineVersion: '1.0.0', waiverBasis: 'w-1;approved=w-1' });
     await expect(em2.flush()).rejects.toBeInstanceOf(UniqueConstraintViolationException);
   });
@@ -90,13 +79,13 @@ describe('schema', () => {
     em.create(Capture, { ...base, idempotencyKey: null });
     em.create(Capture, { ...base, idempotencyKey: null }); // captures without a key never collide
     await em.flush();
-    const em2 = orm.em.fork();
+    const em2 = seeded.orm.em.fork();
     em2.create(Capture, { ...base, project: project.id, build: build.id, testCase: testCase.id, target: target.id, idempotencyKey: 'ci-run-7' });
     await expect(em2.flush()).rejects.toBeInstanceOf(UniqueConstraintViolationException);
   });
 
   it('has the dashboard indexes', async () => {
-    const rows = await orm.em.getConnection().execute<{ indexname: string }[]>(`select indexname from pg_indexes where schemaname = 'public'`);
+    const rows = await seeded.orm.em.getConnection().execute<{ indexname: string }[]>(`select indexname from pg_indexes where schemaname = 'public'`);
     const names = rows.map((r) => r.indexname);
     expect(names).toEqual(expect.arrayContaining(['build_project_created_at_idx', 'capture_build_id_index', 'finding_state_idx']));
   });

@@ -6,6 +6,7 @@ import {
   composeWaiverDecisionMail,
   composeWaiverExpiredMail,
   composeWaiverRequestMail,
+  composeWaiverRevokedMail,
   createLinks,
   escapeHtml,
   renderMail,
@@ -128,6 +129,36 @@ describe('waiver mail', () => {
     expect(mail.text).toContain('You get this because you are assigned the finding in Earmark.');
     expect(mail.html).toContain('thd &lt;fails&gt;');
     expect(mail.payload).toEqual({ project: 'heron-bar', waiverId: 'w1', findingIds: ['f1'] });
+  });
+});
+
+describe('waiver-revoked mail', () => {
+  const base = {
+    project, waiverId: 'w1', testCase: 'tone', checkId: 'thd', until: new Date('2027-03-31T23:59:59.999Z'), revokedBy: quinn,
+    reason: 'Rev B boards are <retired>.', findingsPage: links.findingsPage('heron-bar'),
+  };
+
+  it('tells the requester who revoked which waiver, why, and that the check fails builds again', () => {
+    const mail = composeWaiverRevokedMail({ ...base, target: 'evt2', recipientIs: 'requester' });
+    expect(mail.kind).toBe('waiver-revoked');
+    expect(mail.subject).toBe('[Earmark] heron-bar: waiver for tone / thd on target evt2 revoked by Quinn Abara');
+    expect(mail.text).toBe(
+      'Quinn Abara (qa@fernwick.test) revoked the waiver for tone / thd on target evt2 in Heron <Soundbar>, which was to run until 2027-03-31.\n\n' +
+        'Reason: Rev B boards are <retired>.\n\n' +
+        'From now on the check fails builds again: the captures it covered were judged again at once and count it as a failure.\n\n' +
+        'Findings: https://earmark.example/projects/heron-bar/findings\n\n' +
+        '-- \nYou get this because you requested the waiver in Earmark.\n',
+    );
+    expect(mail.html).toContain('Rev B boards are &lt;retired&gt;.');
+    expect(mail.html).toContain('<a href="https://earmark.example/projects/heron-bar/findings">');
+    expect(mail.payload).toEqual({ project: 'heron-bar', waiverId: 'w1', revokedBy: 'qa@fernwick.test' });
+  });
+
+  it('names every target for an unscoped waiver and tells the assignee why they get it', () => {
+    const mail = composeWaiverRevokedMail({ ...base, target: null, recipientIs: 'assignee' });
+    expect(mail.subject).toBe('[Earmark] heron-bar: waiver for tone / thd on every target revoked by Quinn Abara');
+    expect(mail.text).toContain('revoked the waiver for tone / thd on every target in Heron <Soundbar>');
+    expect(mail.text).toContain('You get this because you are assigned the finding in Earmark.');
   });
 });
 

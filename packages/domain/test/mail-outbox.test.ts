@@ -1,28 +1,15 @@
-import { Membership, Notification, User, initOrm, seedRoles, type RoleFixture } from '@earmark/db';
-import { createTestDatabase, type TestDatabase } from '@earmark/db/testing';
-import type { MikroORM } from '@mikro-orm/postgresql';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { Membership, Notification, User } from '@earmark/db';
+import { useSeededDatabase } from '@earmark/db/testing';
+import { describe, expect, it } from 'vitest';
 import { buildMailSubscribersOf, qaManagersOf, renderMail, writeToOutbox } from '../src/index.js';
 
-let db: TestDatabase;
-let orm: MikroORM;
-let fx: RoleFixture;
-
-beforeAll(async () => {
-  db = await createTestDatabase();
-  orm = await initOrm({ url: db.url, poolMax: 2 });
-  fx = await seedRoles(orm.em.fork());
-});
-afterAll(async () => {
-  await orm?.close();
-  await db?.drop();
-});
+const seeded = useSeededDatabase();
 
 const message = renderMail({ kind: 'outbox-test', subject: `[Earmark] ${'x'.repeat(320)}`, blocks: [{ type: 'paragraph', content: ['<hello>'] }], footer: { reason: 'Test.' }, payload: { n: 1 } });
 
 describe('writeToOutbox', () => {
   it('writes one pending row per enabled recipient, with both parts, and skips disabled and repeated addresses', async () => {
-    const em = orm.em.fork();
+    const em = seeded.orm.em.fork();
     const written = writeToOutbox(em, message, [
       { email: 'a@example.test', disabled: false },
       { email: 'gone@example.test', disabled: true },
@@ -31,7 +18,7 @@ describe('writeToOutbox', () => {
     ]);
     await em.flush();
     expect(written).toBe(2);
-    const rows = await orm.em.fork().find(Notification, { kind: 'outbox-test' }, { orderBy: { recipient: 'asc' } });
+    const rows = await seeded.orm.em.fork().find(Notification, { kind: 'outbox-test' }, { orderBy: { recipient: 'asc' } });
     expect(rows.map((r) => [r.recipient, r.state])).toEqual([['a@example.test', 'pending'], ['b@example.test', 'pending']]);
     expect(rows[0]!.body).toBe(message.text);
     expect(rows[0]!.html).toBe(message.html);
@@ -45,22 +32,22 @@ describe('writeToOutbox', () => {
 
 describe('recipients', () => {
   it('QA managers of the project, without the people excluded', async () => {
-    const em = orm.em.fork();
-    expect((await qaManagersOf(em, fx.project)).map((u) => u.email)).toEqual(['qa_manager@example.test']);
-    expect(await qaManagersOf(em, fx.project, [fx.users.qa_manager])).toEqual([]);
+    const em = seeded.orm.em.fork();
+    expect((await qaManagersOf(em, seeded.fixture.project)).map((u) => u.email)).toEqual(['qa_manager@example.test']);
+    expect(await qaManagersOf(em, seeded.fixture.project, [seeded.fixture.users.qa_manager])).toEqual([]);
   });
 
   it('subscribers are the members with the setting on: engineers and QA managers by default, not viewers', async () => {
-    const em = orm.em.fork();
-    expect((await buildMailSubscribersOf(em, fx.project)).map((u) => u.email)).toEqual(['engineer@example.test', 'qa_manager@example.test']);
-    const viewer = await em.findOneOrFail(Membership, { project: fx.project.id, user: fx.users.viewer.id });
+    const em = seeded.orm.em.fork();
+    expect((await buildMailSubscribersOf(em, seeded.fixture.project)).map((u) => u.email)).toEqual(['engineer@example.test', 'qa_manager@example.test']);
+    const viewer = await em.findOneOrFail(Membership, { project: seeded.fixture.project.id, user: seeded.fixture.users.viewer.id });
     viewer.subscribed = true;
     const disabled = em.create(User, { email: 'disabled@example.test', displayName: 'off', passwordHash: 'x', disabled: true });
-    em.create(Membership, { project: fx.project.id, user: disabled, role: 'engineer', subscribed: true });
+    em.create(Membership, { project: seeded.fixture.project.id, user: disabled, role: 'engineer', subscribed: true });
     await em.flush();
-    const subscribers = await buildMailSubscribersOf(orm.em.fork(), fx.project);
+    const subscribers = await buildMailSubscribersOf(seeded.orm.em.fork(), seeded.fixture.project);
     expect(subscribers.map((u) => u.email)).toEqual(['disabled@example.test', 'engineer@example.test', 'qa_manager@example.test', 'viewer@example.test']);
     // The writer is what leaves the disabled account out.
-    expect(writeToOutbox(orm.em.fork(), message, subscribers)).toBe(3);
+    expect(writeToOutbox(seeded.orm.em.fork(), message, subscribers)).toBe(3);
   });
 });

@@ -235,7 +235,8 @@ export function maskWorkflowRoutes(gate: Gate): RouteDef[] {
       async handle(ctx) {
         const { id } = ctx.params;
         const { reason } = ctx.body;
-        const waiver = await waivers.revoke(ctx.em, requireProject(ctx), id, requireUser(ctx).user, reason);
+        const { waiver, mailed } = await waivers.revoke(ctx.em, requireProject(ctx), id, requireUser(ctx).user, reason);
+        await sendMail(ctx, mailed);
         ctx.res.json(toWaiverDto(waiver));
       },
     }),

@@ -1,1 +1,2 @@
 export * from './test-database.js';
+export * from './seeded-database.js';

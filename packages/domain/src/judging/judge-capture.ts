@@ -39,18 +39,7 @@ export function judgeCapture(bytes: Uint8Array, capture: Capture, mask: MaskRevi
       outcome: evaluation.verdict,
       reason: evaluation.reason,
       engineVersion: evaluation.engineVersion,
-      checks: evaluation.checks.map((c) => ({
-        id: c.id,
-        kind: c.kind,
-        label: c.label,
-        pass: c.pass,
-        measured: c.measured,
-        limit: c.limit,
-        margin: c.margin,
-        unit: c.unit,
-        worstHz: c.worstHz,
-        details: { ...c.details, channel: c.channel, ...(c.error ? { error: c.error } : {}) },
-      })),
+      checks: evaluation.checks.map(({ channel, error, details, ...check }) => ({ ...check, details: { ...details, channel, ...(error ? { error } : {}) } })),
     };
   } catch (error) {
     return errorJudgement(`Analysis failed: ${error instanceof Error ? error.message : String(error)}`, ENGINE_VERSION);

@@ -7,6 +7,7 @@ import { settingsToRecord } from './judging-settings.js';
 import { applyWaivers } from './waivers.js';
 import { waiverBasis } from './waiver-coverage.js';
 import { newestVerdict } from '../repositories/verdicts.js';
+import { FINDING, moveTo } from '../rules/state-machines.js';
 
 export interface RecordResult {
   /** False when this capture already had a verdict under this revision and engine (a re-run job). */
@@ -121,7 +122,7 @@ async function openOrUpdateFinding(
     existing.capture = capture;
     existing.checkResult = result;
     existing.title = title;
-    if (waived && (existing.state === 'open' || existing.state === 'investigating')) existing.state = 'accepted_deviation';
+    if (waived && (existing.state === 'open' || existing.state === 'investigating')) moveTo(FINDING, existing, 'accepted_deviation', 'gate');
     return;
   }
   tx.create(Finding, { project: capture.project, capture, checkResult: result, checkId, title, state: waived ? 'accepted_deviation' : 'open' });

@@ -5,6 +5,7 @@ import { coveredChecks, sameCoverage, waivedOutcome, waiverBasis, waiverMarkOf, 
 import { ConflictError } from '../errors.js';
 import { newestVerdicts, newestVerdictsCte } from '../repositories/verdicts.js';
 import { recordAudit } from '../services/audit.service.js';
+import { FINDING, moveTo } from '../rules/state-machines.js';
 
 export interface RejudgeResult {
   /** Captures that got a new verdict. */
@@ -178,7 +179,7 @@ async function followFindings(tx: EntityManager, successors: Map<string, CheckRe
     const to = waivedNow && (finding.state === 'open' || finding.state === 'investigating') ? 'accepted_deviation' : !waivedNow && finding.state === 'accepted_deviation' ? 'open' : null;
     if (!to) continue;
     const from = finding.state;
-    finding.state = to;
+    moveTo(FINDING, finding, to, 'gate');
     if (to === 'open') reopened.push(finding);
     recordAudit(tx, {
       actor,

@@ -6,6 +6,7 @@ import { coveredChecks, waivedOutcome, withWaiverMark, type WaiverEvent } from '
 import { recordAudit } from '../services/audit.service.js';
 import { composeWaiverExpiredMail } from '../mail/waiver-expired.mail.js';
 import { writeToOutbox } from '../mail/outbox.js';
+import { FINDING, WAIVER, moveTo } from '../rules/state-machines.js';
 
 export interface WaivedJudgement {
   judgement: Judgement;
@@ -63,7 +64,7 @@ export async function expireWaivers(em: EntityManager, now = new Date()): Promis
     if (due.length === 0) return 0;
     await tx.populate(due, ['project', 'testCase', 'target', 'requestedBy', 'finding.assignee', 'finding.capture.target']);
     for (const waiver of due) {
-      waiver.state = 'expired';
+      moveTo(WAIVER, waiver, 'expired', 'gate');
       const { reopened, rejudged } = await endWaiver(tx, waiver, { kind: 'expired', waiverId: waiver.id }, EXPIRY_ACTOR, now);
       audit(tx, waiver, 'waiver.expire', `waiver:${waiver.id}`, {
         from: 'approved',
@@ -132,7 +133,7 @@ export async function endWaiver(tx: EntityManager, waiver: Waiver, event: Waiver
       $or: [{ target: null }, { target: finding.capture.target }],
     });
     if (stillCovered > 0) continue;
-    finding.state = 'open';
+    moveTo(FINDING, finding, 'open', 'gate');
     reopened.push(finding);
     recordAudit(tx, { actor, action: 'finding.reopen', subject: `finding:${finding.id}`, project: waiver.project, details: { from: 'accepted_deviation', to: 'open', waiverId: waiver.id } });
   }

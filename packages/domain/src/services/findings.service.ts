@@ -3,6 +3,7 @@ import type { CommentRow, FindingRow, FindingsPage, FindingsQuery, UpdateFinding
 import { Comment, Finding, Membership, User, type Project } from '@earmark/db';
 import { NotFoundError, ValidationError } from '../errors.js';
 import { recordAudit } from './audit.service.js';
+import { FINDING, moveTo } from '../rules/state-machines.js';
 
 interface FindingSql {
   id: string;
@@ -106,7 +107,7 @@ export class FindingsService {
     }
     for (const f of findings) {
       const before = { state: f.state, assignee: f.assignee?.id ?? null };
-      if (change.state) f.state = change.state;
+      if (change.state) moveTo(FINDING, f, change.state, 'person');
       if (assignee !== undefined) f.assignee = assignee;
       f.updatedAt = new Date();
       recordAudit(em, { actor: `user:${actor.email}`, action: 'finding.update', subject: `finding:${f.id}`, project, details: { before, after: { state: f.state, assignee: f.assignee?.id ?? null } } });

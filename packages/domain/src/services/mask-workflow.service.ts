@@ -26,6 +26,7 @@ import { mailMaskDecision } from './mask-decision-mail.js';
 import { composeMaskReviewMail } from '../mail/mask-review.mail.js';
 import { writeToOutbox } from '../mail/outbox.js';
 import { qaManagersOf } from '../mail/recipients.js';
+import { MASK_REVISION, moveTo } from '../rules/state-machines.js';
 
 const isRecord = (v: unknown): v is Record<string, unknown> => typeof v === 'object' && v !== null && !Array.isArray(v);
 
@@ -165,7 +166,7 @@ export class MaskWorkflowService {
       const mask = await this.masks.get(tx, testCase, revision);
       assertDraft(mask, 'submitted');
       assertMaySubmit(mask, actor);
-      mask.state = 'in_review';
+      moveTo(MASK_REVISION, mask, 'in_review', 'person');
       mask.submittedAt = new Date();
       recordMaskTransition(tx, project, mask, { actor, action: 'mask.submit', from: 'draft', to: 'in_review' });
       const review = composeMaskReviewMail({
@@ -195,7 +196,7 @@ export class MaskWorkflowService {
     const mask = await this.masks.get(em, testCase, revision);
     assertMayDecide(maskUnderReview(mask), reviewer, 'rejected');
     if (mask.state !== 'in_review') throw new ConflictError(`Revision ${revision} is ${mask.state}; only revisions in review can be rejected.`);
-    mask.state = 'rejected';
+    moveTo(MASK_REVISION, mask, 'rejected', 'person');
     mask.reviewer = reviewer;
     mask.decidedAt = new Date();
     mask.decisionComment = comment;

@@ -8,6 +8,7 @@ import { changedFields, recordAudit, type AuditEntry } from './audit.service.js'
 import type { Links } from './links.js';
 import { mailMaskDecision } from './mask-decision-mail.js';
 import { normalizedSettings } from '../judging/judging-settings.js';
+import { MASK_REVISION, moveTo } from '../rules/state-machines.js';
 
 /** Relations every revision answer needs. */
 export const MASK_POPULATE = ['testCase', 'target', 'author', 'reviewer', 'basedOn'] as const;
@@ -173,12 +174,12 @@ export class MaskService {
       const from = mask.state;
       const inForce = await tx.find(MaskRevision, { testCase, state: 'approved', target: mask.target ? mask.target.id : null }, { populate: ['testCase', 'target'] });
       for (const old of inForce) {
-        old.state = 'superseded';
+        moveTo(MASK_REVISION, old, 'superseded', 'gate');
         recordMaskTransition(tx, project, old, { actor: reviewer, action: 'mask.supersede', from: 'approved', to: 'superseded', details: { supersededBy: mask.revision } });
       }
       await tx.flush(); // the partial unique index allows one approved revision at a time
       const now = new Date();
-      mask.state = 'approved';
+      moveTo(MASK_REVISION, mask, 'approved', 'person');
       mask.reviewer = reviewer;
       mask.decidedAt = now;
       mask.submittedAt ??= now;

@@ -8,9 +8,11 @@ import { endWaiver } from '../judging/waivers.js';
 import { assertMayDecide, waiverUnderReview } from '../rules/four-eyes.js';
 import { composeWaiverDecisionMail } from '../mail/waiver-decision.mail.js';
 import { composeWaiverRequestMail } from '../mail/waiver-request.mail.js';
+import { composeWaiverRevokedMail } from '../mail/waiver-revoked.mail.js';
 import { writeToOutbox } from '../mail/outbox.js';
 import { qaManagersOf } from '../mail/recipients.js';
 import type { Links } from './links.js';
+import { FINDING, WAIVER, moveTo } from '../rules/state-machines.js';
 
 const POPULATE = ['project', 'testCase', 'target', 'requestedBy', 'approvedBy', 'finding'] as const;
 
@@ -123,7 +125,7 @@ export class WaiverService {
       let findingFrom: string | null = null;
       if (finding && (finding.state === 'open' || finding.state === 'investigating')) {
         findingFrom = finding.state;
-        finding.state = 'accepted_deviation';
+        moveTo(FINDING, finding, 'accepted_deviation', 'gate');
         recordAudit(tx, { actor: `user:${decider.email}`, action: 'finding.waive', subject: `finding:${finding.id}`, project, details: { from: findingFrom, to: 'accepted_deviation', waiverId: waiver.id } });
       }
       // At once, in this transaction: the captures the waiver governs pass with waiver where it is all they failed.
@@ -153,32 +155,58 @@ export class WaiverService {
   /**
    * Approved → revoked, with the reason, before its date: the accepted deviations it covered
    * open again and the captures it governed are judged again at once (failing again unless
-   * another waiver covers them). Taking an exception back needs no second person.
+   * another waiver covers them). Taking an exception back needs no second person. The requester
+   * and the finding's assignee are mailed (outbox, same transaction).
    * @throws ConflictError unless approved and still running
    */
-  async revoke(em: EntityManager, project: Project, id: string, actor: User, reason: string): Promise<Waiver> {
+  async revoke(em: EntityManager, project: Project, id: string, actor: User, reason: string): Promise<{ waiver: Waiver; mailed: number }> {
     return em.transactional(async (tx) => {
       const found = await this.get(tx, project, id);
       // The row lock makes two revocations (or a revocation and the expiry sweep) take turns.
       const waiver = await tx.findOneOrFail(Waiver, { id: found.id }, { lockMode: LockMode.PESSIMISTIC_WRITE, refresh: true, populate: POPULATE });
       if (waiver.state !== 'approved') throw new ConflictError(`Waiver ${id} is ${waiver.state}; only approved waivers can be revoked.`);
       if (waiver.expiresAt <= new Date()) throw new ConflictError(`Waiver ${id} ran until ${waiver.expiresAt.toISOString()} and is expiring already.`);
-      waiver.state = 'revoked';
+      moveTo(WAIVER, waiver, 'revoked', 'person');
       const { reopened, rejudged } = await endWaiver(tx, waiver, { kind: 'revoked', waiverId: waiver.id }, `user:${actor.email}`);
       recordWaiverTransition(tx, project, waiver, actor, 'waiver.revoke', 'approved', 'revoked', reason, {
         reopenedFindings: reopened.map((f) => f.id),
         rejudgedCaptures: rejudged.captures,
       });
+      const mailed = await this.mailRevocation(tx, project, waiver, actor, reason);
       await tx.flush();
-      return waiver;
+      return { waiver, mailed };
     });
   }
 
   private decide(waiver: Waiver, state: WaiverState, decider: User, comment: string | null) {
-    waiver.state = state;
+    moveTo(WAIVER, waiver, state, 'person');
     waiver.approvedBy = decider;
     waiver.decidedAt = new Date();
     waiver.decisionComment = comment ? comment : null;
+  }
+
+  /** The requester, and the finding's assignee when someone else, hear that the check fails builds again. */
+  private async mailRevocation(em: EntityManager, project: Project, waiver: Waiver, actor: User, reason: string): Promise<number> {
+    const assignee = waiver.finding ? (await em.populate(waiver.finding, ['assignee'])).assignee : null;
+    const recipients: { user: User; recipientIs: 'requester' | 'assignee' }[] = [{ user: waiver.requestedBy, recipientIs: 'requester' }];
+    if (assignee && assignee.id !== waiver.requestedBy.id) recipients.push({ user: assignee, recipientIs: 'assignee' });
+    let mailed = 0;
+    for (const { user, recipientIs } of recipients) {
+      const mail = composeWaiverRevokedMail({
+        project,
+        waiverId: waiver.id,
+        testCase: waiver.testCase.key,
+        checkId: waiver.checkId,
+        target: waiver.target?.key ?? null,
+        until: waiver.expiresAt,
+        revokedBy: actor,
+        reason,
+        findingsPage: this.pages.findingsPage(project.key),
+        recipientIs,
+      });
+      mailed += writeToOutbox(em, mail, [user]);
+    }
+    return mailed;
   }
 
   /** The requester hears the decision (outbox, same transaction). */

@@ -7,9 +7,11 @@ import { PageHeader } from '@/components/page-header';
 import { ProjectBreadcrumb } from '@/components/project-breadcrumb';
 import { Skeleton } from '@/components/skeleton';
 import { getMeQueryOptions } from '@/features/auth/api/get-me';
+import { getApprovedWaiversQueryOptions, useApprovedWaivers } from '@/features/approvals/api/get-approved-waivers';
 import { getRequestedWaiversQueryOptions, useRequestedWaivers } from '@/features/approvals/api/get-requested-waivers';
 import { getReviewQueueQueryOptions, useReviewQueue } from '@/features/approvals/api/get-review-queue';
 import { RevisionReviewCard, WaiverReviewCard } from '@/features/approvals/components/review-cards';
+import { WaiversInForce } from '@/features/approvals/components/waivers-in-force';
 import { abilitiesIn, useCurrentUser, useProjectAbilities } from '@/lib/authorization';
 import { formatCount } from '@/lib/format';
 import { requireSession } from '../require-session';
@@ -20,6 +22,7 @@ export const approvalsLoader = (queryClient: QueryClient) =>
     const me = await queryClient.ensureQueryData(getMeQueryOptions());
     if (abilitiesIn(me, params.projectKey).canApprove) {
       void queryClient.prefetchQuery(getRequestedWaiversQueryOptions(params.projectKey));
+      void queryClient.prefetchQuery(getApprovedWaiversQueryOptions(params.projectKey));
       await queryClient.ensureQueryData(getReviewQueueQueryOptions(params.projectKey));
     }
     return null;
@@ -41,6 +44,8 @@ function Queues({ projectKey }: { projectKey: string }) {
   const me = useCurrentUser();
   const revisions = useReviewQueue(projectKey);
   const waivers = useRequestedWaivers(projectKey);
+  const approved = useApprovedWaivers(projectKey);
+  const { canApprove } = useProjectAbilities(projectKey);
   const email = me?.email ?? null;
   return (
     <div className="space-y-8">
@@ -72,6 +77,17 @@ function Queues({ projectKey }: { projectKey: string }) {
               <WaiverReviewCard key={w.id} projectKey={projectKey} waiver={w} myEmail={email} />
             ))}
           </div>
+        )}
+      </Section>
+      <Section title="Waivers in force" count={approved.data?.length ?? null}>
+        {approved.isPending ? (
+          <Skeleton className="h-24 rounded-lg" />
+        ) : approved.isError ? (
+          <ErrorState error={approved.error} onRetry={() => void approved.refetch()} />
+        ) : approved.data.length === 0 ? (
+          <EmptyState title="No waivers in force">An approved waiver shows here until its date; revoke it to make its check fail builds again.</EmptyState>
+        ) : (
+          <WaiversInForce projectKey={projectKey} waivers={approved.data} mayDecideWaivers={canApprove} />
         )}
       </Section>
     </div>
