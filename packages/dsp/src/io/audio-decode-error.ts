@@ -15,9 +15,7 @@ export type AudioDecodeErrorCode =
   | 'no-data'
   | 'non-finite-sample'
   | 'raw-length-mismatch'
-  | 'invalid-option'
-  | 'too-many-chunks'
-  | 'too-many-samples';
+  | 'invalid-option';
 
 /**
  * A capture that cannot be decoded. The message says what was wrong and what is accepted,
