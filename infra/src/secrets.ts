@@ -12,8 +12,14 @@ const secretsFile = path.join(dataDir, 'secrets.json');
 
 /** Development secrets, generated once and kept under .data/ (mode 600, gitignored). */
 export function loadLocalSecrets(): LocalSecrets {
-  if (fs.existsSync(secretsFile)) return JSON.parse(fs.readFileSync(secretsFile, 'utf8')) as LocalSecrets;
-  fs.mkdirSync(dataDir, { recursive: true });
+  // .data holds passwords, the demo token and the captures: created owner-only. An existing one
+  // keeps its mode: as root, a cluster placed inside it needs the postgres user to pass through
+  // (cluster-place.ts), and its secrets are 0600 regardless.
+  fs.mkdirSync(dataDir, { recursive: true, mode: 0o700 });
+  if (fs.existsSync(secretsFile)) {
+    fs.chmodSync(secretsFile, 0o600);
+    return JSON.parse(fs.readFileSync(secretsFile, 'utf8')) as LocalSecrets;
+  }
   const secrets: LocalSecrets = {
     pgPassword: randomBytes(18).toString('base64url'),
     jwtSecret: randomBytes(48).toString('base64url'),

@@ -13,8 +13,30 @@ const Env = z.object({
   EARMARK_WEB_DIST: z.string().default(defaultWebDist),
   EARMARK_ACCESS_TOKEN_TTL_S: z.coerce.number().int().min(30).default(900),
   EARMARK_REFRESH_TOKEN_TTL_S: z.coerce.number().int().min(60).default(7 * 24 * 3600),
-  /** Sign-in attempts per address and e-mail in a 15-minute window. */
+  /** Failed sign-in attempts per address and e-mail in a 15-minute window. */
   EARMARK_LOGIN_RATE_LIMIT: z.coerce.number().int().min(1).default(10),
+  /** Failed sign-in attempts per address (any e-mail) in a 15-minute window. */
+  EARMARK_LOGIN_RATE_LIMIT_PER_ADDRESS: z.coerce.number().int().min(1).default(50),
+  /** Failed sign-in attempts per e-mail (any address) in a 15-minute window. */
+  EARMARK_LOGIN_RATE_LIMIT_PER_EMAIL: z.coerce.number().int().min(1).default(50),
+  /** Sign-in attempts per minute across everyone, successful or not. */
+  EARMARK_LOGIN_GLOBAL_PER_MINUTE: z.coerce.number().int().min(1).default(300),
+  /** Password checks (bcrypt) running at once, and how many more sign-ins may wait for one. */
+  EARMARK_PASSWORD_WORK_CONCURRENCY: z.coerce.number().int().min(1).default(2),
+  EARMARK_PASSWORD_WORK_QUEUE: z.coerce.number().int().min(0).default(8),
+  /**
+   * Express `trust proxy`: unset = false (X-Forwarded-For ignored). Set it only behind a proxy:
+   * `true`, a hop count, or names/CIDRs such as `loopback` or `10.0.0.0/8,loopback`.
+   */
+  EARMARK_TRUST_PROXY: z
+    .string()
+    .trim()
+    .optional()
+    .transform((v): boolean | number | string => {
+      if (v === undefined || v === '' || v === 'false') return false;
+      if (v === 'true') return true;
+      return /^\d+$/.test(v) ? Number(v) : v;
+    }),
   EARMARK_LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
   EARMARK_DB_POOL_MAX: z.coerce.number().int().min(1).default(10),
   EARMARK_S3_ENDPOINT: z.url().default('http://127.0.0.1:4312'),

@@ -57,11 +57,11 @@ describe('CI API tokens', () => {
     expect(res.body.detail).toMatch(/revoked/);
   });
 
-  it("rejects another project's token with 403", async () => {
+  it("answers another project's token 404, as if the project did not exist", async () => {
     const { secret } = await createCiToken('beta-dsp');
     const res = await api.request('POST', '/api/v1/projects/alpha-dsp/builds', { token: secret, body: { sha: 'abcdef1' } });
-    expect(res.status).toBe(403);
-    expect(res.body.detail).toContain('beta-dsp');
+    expect(res.status).toBe(404);
+    expect(res.body.detail).toBe('There is no project alpha-dsp, or you have no access to it.');
   });
 
   it('rejects a forged secret with a real prefix with 401', async () => {

@@ -107,6 +107,93 @@ describe('access tokens', () => {
   });
 });
 
+describe('refresh-token rotation', () => {
+  const signIn = async (email: string) => {
+    const res = await api.request('POST', '/api/auth/login', { body: { email, password: TEST_PASSWORD } });
+    expect(res.status).toBe(200);
+    return res.body.refreshToken as string;
+  };
+  const refresh = (refreshToken: string) => api.request('POST', '/api/auth/refresh', { body: { refreshToken } });
+
+  it('returns a new refresh token on each refresh, and the chain keeps working', async () => {
+    const first = await signIn('viewer@example.test');
+    const r1 = await refresh(first);
+    expect(r1.status).toBe(200);
+    expect(r1.body.refreshToken).not.toBe(first);
+    const r2 = await refresh(r1.body.refreshToken);
+    expect(r2.status).toBe(200);
+    expect(r2.body.refreshToken).not.toBe(r1.body.refreshToken);
+    expect((await api.request('GET', '/api/me', { token: r2.body.accessToken })).body.email).toBe('viewer@example.test');
+  });
+
+  it('treats a second use of a refresh token as theft: 401, and the newer token of that sign-in dies too', async () => {
+    const first = await signIn('viewer@example.test');
+    const other = await signIn('viewer@example.test'); // another device: a separate chain
+    const rotated = await refresh(first);
+    expect(rotated.status).toBe(200);
+
+    const reused = await refresh(first);
+    expectProblem(reused, 401);
+    expectProblem(await refresh(rotated.body.refreshToken), 401);
+    // The other sign-in of the same user is untouched.
+    expect((await refresh(other)).status).toBe(200);
+  });
+
+  it('lets only one of two simultaneous refreshes with the same token succeed', async () => {
+    const first = await signIn('engineer@example.test');
+    const statuses = (await Promise.all([refresh(first), refresh(first)])).map((r) => r.status).sort();
+    expect(statuses).toEqual([200, 401]);
+  });
+
+  it('rejects a refresh token without a sign-in chain (issued before rotation)', async () => {
+    const user = await api.orm.em.fork().findOneOrFail(User, { email: 'viewer@example.test' });
+    const legacy = jwt.sign({ sub: user.id, typ: 'refresh', ver: user.tokenVersion }, TEST_JWT_SECRET, { algorithm: 'HS256', issuer: 'earmark', expiresIn: 600 });
+    expectProblem(await refresh(legacy), 401);
+  });
+});
+
+describe('password length (bcrypt reads only 72 bytes)', () => {
+  const seventyTwoBytes = 'ü'.repeat(30) + 'x'.repeat(12); // 60 + 12 bytes in UTF-8
+
+  it('refuses a new password over 72 bytes with 422 naming the limit', async () => {
+    const token = await api.login('admin@example.test');
+    const res = await api.request('POST', '/api/admin/users', {
+      token,
+      body: { email: 'long-pass@example.test', displayName: 'Long', password: 'ü'.repeat(37) }, // 37 characters, 74 bytes
+    });
+    expectProblem(res, 422);
+    expect(res.body.detail).toContain('72 bytes');
+    expect(await api.orm.em.fork().findOne(User, { email: 'long-pass@example.test' })).toBeNull();
+  });
+
+  it('accepts exactly 72 bytes, and a sign-in with more than that fails even if the first 72 match', async () => {
+    const token = await api.login('admin@example.test');
+    const created = await api.request('POST', '/api/admin/users', {
+      token,
+      body: { email: 'edge-pass@example.test', displayName: 'Edge', password: seventyTwoBytes },
+    });
+    expect(created.status).toBe(201);
+    const good = await api.request('POST', '/api/auth/login', { body: { email: 'edge-pass@example.test', password: seventyTwoBytes } });
+    expect(good.status).toBe(200);
+    const padded = await api.request('POST', '/api/auth/login', { body: { email: 'edge-pass@example.test', password: `${seventyTwoBytes}anything` } });
+    expectProblem(padded, 401);
+  });
+});
+
+describe('sign-in limiter key', () => {
+  it('ignores X-Forwarded-For by default, so rotating it does not dodge the limit', async () => {
+    const statuses: number[] = [];
+    for (let i = 0; i < 6; i++) {
+      const res = await api.request('POST', '/api/auth/login', {
+        body: { email: 'xff-target@example.test', password: 'guess' },
+        headers: { 'x-forwarded-for': `203.0.113.${i + 1}` },
+      });
+      statuses.push(res.status);
+    }
+    expect(statuses).toEqual([401, 401, 401, 401, 401, 429]);
+  });
+});
+
 describe('HTTP hygiene', () => {
   it('answers an unknown API route with 404 problem+json', async () => {
     const res = await api.request('GET', '/api/no-such-thing');

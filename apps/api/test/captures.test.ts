@@ -169,7 +169,7 @@ describe('bad uploads get a clear 4xx and store nothing', () => {
       code: 'channel-count-mismatch',
     },
     { name: 'an unsupported media type', status: 415, send: () => upload(Buffer.from('hello'), { headers: { 'content-type': 'text/plain' } }), detail: /audio\/wav/ },
-    { name: "another project's token", status: 403, send: () => upload(wav([tone()]), { as: foreignToken }), detail: /beta-dsp/ },
+    { name: "another project's token", status: 404, send: () => upload(wav([tone()]), { as: foreignToken }), detail: /^There is no project alpha-dsp, or you have no access to it\.$/ },
   ];
 
   it.each(cases)('$name → $status', async ({ status, send, detail, code }) => {

@@ -200,6 +200,9 @@ describe('permission matrix', () => {
     } else if (caller === 'outsider' && (path.includes(':project') || path.includes(':id'))) {
       // Non-members do not learn that the project exists.
       expect(res.status).toBe(404);
+    } else if (caller === 'token:foreign' && isCiRoute) {
+      // Another project's CI token learns no more than a non-member: the same 404.
+      expect(res.status, res.text).toBe(404);
     } else {
       expect(res.status, `${key} as ${caller}: ${res.text}`).toBe(403);
       if (isToken && !isCiRoute) expect(res.body.detail).toContain('/api/v1');

@@ -104,6 +104,19 @@ describe('build page', () => {
     expect(screen.queryByRole('progressbar', { name: /captures judged/ })).toBeNull();
   });
 
+  it('shows no pipeline link when the stored URL is not http(s)', async () => {
+    seedSession();
+    mockApi({
+      'GET /api/me': () => json(viewer),
+      [`GET /api/projects/kestrel-buds/builds/${SHA}/matrix`]: () => json({ ...matrix, build: { ...matrix.build, pipelineUrl: 'javascript:alert(document.cookie)' } }),
+    });
+    renderApp(`/projects/kestrel-buds/builds/${SHA}`);
+
+    expect(await screen.findByRole('heading', { name: 'Build a81d44c' })).toBeTruthy();
+    expect(screen.queryByText('Pipeline')).toBeNull();
+    expect(document.querySelector('a[href^="javascript:"]')).toBeNull();
+  });
+
   it('shows analysis progress while the build is still being judged', async () => {
     seedSession();
     mockApi({

@@ -1,7 +1,6 @@
 import { AnalyzeCaptureJob, QUEUES } from '@earmark/contracts';
-import { Capture, initOrm } from '@earmark/db';
-import { createGate, createJobProducer, createLinks, errorJudgement, maskInForce, recordVerdict, type Gate } from '@earmark/domain';
-import { ENGINE_VERSION } from '@earmark/dsp';
+import { initOrm } from '@earmark/db';
+import { createGate, createJobProducer, createLinks, type Gate } from '@earmark/domain';
 import { ObjectStore, startBoss } from '@earmark/platform';
 import type { MikroORM } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
@@ -10,6 +9,7 @@ import type { WorkerEnv } from './env.js';
 import { analyzeCapture } from './jobs/analyze-capture.job.js';
 import { evaluateImpact } from './jobs/evaluate-impact.job.js';
 import { sendNotifications } from './jobs/send-notifications.job.js';
+import { judgeAbandoned } from './jobs/abandon-capture.js';
 import { createMailer, type Mailer } from './mailer.js';
 import { sweep } from './sweeper.js';
 
@@ -64,23 +64,17 @@ export async function createWorker(env: WorkerEnv, logger: Logger): Promise<Work
       await boss.work(`${QUEUES.analyzeCapture}.dead`, { batchSize: 1, pollingIntervalSeconds: 2 }, async ([job]) => {
         if (!job) return;
         const { captureId } = AnalyzeCaptureJob.parse(job.data);
-        const em = orm.em.fork();
-        const capture = await em.findOne(Capture, { id: captureId }, { populate: ['testCase', 'target'] });
-        if (!capture) return;
-        const mask = await maskInForce(em, capture.testCase, capture.target);
-        const recorded = await recordVerdict(em, captureId, mask, errorJudgement('Analysis abandoned: the job ran out of retries.', ENGINE_VERSION), links);
-        // This error may complete a build: its failure mail goes out now rather than at the next sweep.
-        if (recorded.notificationsQueued > 0) await jobs.sendMail('build failed');
+        await judgeAbandoned(orm, captureId, 'Analysis abandoned: the job ran out of retries.', { links, jobs });
       });
       await boss.work(QUEUES.sendNotifications, { batchSize: 1, pollingIntervalSeconds: 1 }, async () => {
-        await sendNotifications({ orm, mailer, logger });
+        await sendNotifications({ orm, mailer, logger, maxAttempts: env.EARMARK_MAIL_MAX_ATTEMPTS });
       });
       // Impact of a mask revision on past builds (ImpactRun): one run at a time, progress in the row.
       await boss.work(QUEUES.evaluateImpact, { batchSize: 1, pollingIntervalSeconds: 1 }, async ([job]) => {
         if (job) await evaluateImpact(job, { orm, objectStore, logger });
       });
       sweepTimer = setInterval(() => {
-        sweep(orm, jobs, logger, env.EARMARK_SWEEP_INTERVAL_S * 2).catch((error: unknown) => logger.warn({ err: error }, 'sweep failed'));
+        sweep({ orm, jobs, logger, links, queuedAfterSeconds: env.EARMARK_SWEEP_INTERVAL_S * 2, analysisExpireSeconds: env.EARMARK_ANALYSIS_EXPIRE_S }).catch((error: unknown) => logger.warn({ err: error }, 'sweep failed'));
       }, env.EARMARK_SWEEP_INTERVAL_S * 1000);
     },
     async stop() {

@@ -12,6 +12,8 @@ const Env = z.object({
   EARMARK_SMTP_PORT: z.coerce.number().int().min(1).max(65535).default(4325),
   EARMARK_MAIL_FROM: z.string().default('Earmark <earmark@localhost>'),
   EARMARK_PUBLIC_URL: z.url().default('http://127.0.0.1:4310'),
+  /** Attempts at one outbox message the relay refuses before it is marked `failed` (waits double from a minute). */
+  EARMARK_MAIL_MAX_ATTEMPTS: z.coerce.number().int().min(1).max(30).default(8),
   /** How often the worker re-queues captures and mail that fell through the cracks. */
   EARMARK_SWEEP_INTERVAL_S: z.coerce.number().min(0.2).default(30),
   /** Attempts at one capture before it is judged `error` (crashes, timeouts, storage outages). */

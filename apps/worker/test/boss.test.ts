@@ -21,6 +21,8 @@ describe('worker queues', () => {
     const queue = await boss.getQueue(QUEUES.analyzeCapture);
     expect(queue).toMatchObject({ retryLimit: 4, deadLetter: `${QUEUES.analyzeCapture}.dead` });
     expect(await boss.getQueue(QUEUES.sendNotifications)).not.toBeNull();
+    // The dead-letter handler is what gives a capture its `error` verdict: it must outlast an outage.
+    expect(await boss.getQueue(`${QUEUES.analyzeCapture}.dead`)).toMatchObject({ retryLimit: 12, retryBackoff: true });
   });
 
   it('round-trips a job through a created queue (send never returns null)', async () => {

@@ -21,6 +21,8 @@ const log = (line: string) => console.log(`earmark: ${line}`);
  * all on loopback. Ctrl-C stops everything it started, the cluster included.
  */
 export async function startCommand(): Promise<number> {
+  // Everything npm start writes (.data, the mail fake's inbox, logs) is for this user alone.
+  process.umask(0o077);
   const settings = loadSettings();
   await assertPortFree(settings.EARMARK_API_PORT, 'the API', 'EARMARK_API_PORT');
   await assertPortFree(settings.EARMARK_S3_PORT, 'the S3 fake', 'EARMARK_S3_PORT');

@@ -9,7 +9,8 @@ export const UpsertBuildRequest = z.object({
   sha: CommitSha,
   label: z.string().max(120).optional(),
   branch: z.string().max(200).optional(),
-  pipelineUrl: z.url().max(2000).optional(),
+  /** Rendered as a link on the build page, so only http(s): never javascript:, data: or the like. */
+  pipelineUrl: z.url({ protocol: /^https?$/, error: 'an http(s) URL' }).max(2000).optional(),
 });
 export type UpsertBuildRequest = z.infer<typeof UpsertBuildRequest>;
 

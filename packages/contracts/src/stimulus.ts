@@ -16,6 +16,13 @@ export const MAX_SAMPLE_RATE = 192000;
 export const MAX_CHANNELS = 8;
 /** Longest stimulus, in seconds of audio (sweep plus trailing silence). */
 export const MAX_STIMULUS_SECONDS = 600;
+/**
+ * Most samples (seconds × sampleRate × channels) a stimulus may render to: 2^24 = 16,777,216,
+ * i.e. 87.4 s of mono or 10.9 s of 8 channels at 192 kHz, 349 s of mono at 48 kHz. Rendering
+ * holds each sample as a Float64 (128 MiB at the limit) plus the encoded file, so larger specs
+ * would cost gigabytes on every download and judgement.
+ */
+export const MAX_STIMULUS_SAMPLES = 2 ** 24;
 /** Most tones a multitone may hold. */
 export const MAX_MULTITONE_TONES = 4096;
 
@@ -54,6 +61,25 @@ const fades = {
   fadeOutSeconds: FadeSeconds.default(0),
 };
 
+/** Samples a spec renders to: its whole duration (a sweep's trailing silence included) × rate × channels. */
+export function stimulusSampleCount(s: { seconds: number; sampleRate: number; channels: number; silenceSeconds?: number }): number {
+  return Math.round((s.seconds + (s.silenceSeconds ?? 0)) * s.sampleRate) * s.channels;
+}
+
+/** Refines a spec so it renders to at most MAX_STIMULUS_SAMPLES samples; the message names both counts. */
+function checkSampleBudget(
+  s: { seconds: number; sampleRate: number; channels: number; silenceSeconds?: number },
+  ctx: z.RefinementCtx,
+): void {
+  const samples = stimulusSampleCount(s);
+  if (samples <= MAX_STIMULUS_SAMPLES) return;
+  ctx.addIssue({
+    code: 'custom',
+    path: ['seconds'],
+    message: `the stimulus would render ${samples.toLocaleString('en-US')} samples (seconds × sampleRate × channels); at most ${MAX_STIMULUS_SAMPLES.toLocaleString('en-US')} are allowed — shorten it or use fewer channels`,
+  });
+}
+
 function nyquistMessage(what: string): string {
   return `${what} must be below half the sample rate (the Nyquist frequency)`;
 }
@@ -71,7 +97,8 @@ export const SineSpec = z
   .refine((s) => s.fadeInSeconds + s.fadeOutSeconds <= s.seconds, {
     message: 'fades together must not be longer than the signal',
     path: ['fadeInSeconds'],
-  });
+  })
+  .superRefine(checkSampleBudget);
 export type SineSpec = z.infer<typeof SineSpec>;
 
 export const MultitoneSpec = z
@@ -110,7 +137,8 @@ export const MultitoneSpec = z
   .refine((s) => s.fadeInSeconds + s.fadeOutSeconds <= s.seconds, {
     message: 'fades together must not be longer than the signal',
     path: ['fadeInSeconds'],
-  });
+  })
+  .superRefine(checkSampleBudget);
 export type MultitoneSpec = z.infer<typeof MultitoneSpec>;
 
 export const SweepSpec = z
@@ -134,7 +162,8 @@ export const SweepSpec = z
   .refine((s) => s.seconds + s.silenceSeconds <= MAX_STIMULUS_SECONDS, {
     message: `sweep plus silence must be at most ${MAX_STIMULUS_SECONDS} s`,
     path: ['silenceSeconds'],
-  });
+  })
+  .superRefine(checkSampleBudget);
 export type SweepSpec = z.infer<typeof SweepSpec>;
 
 export const ImpulseSpec = z
@@ -149,7 +178,8 @@ export const ImpulseSpec = z
   .refine((s) => s.delaySamples < Math.round(s.seconds * s.sampleRate), {
     message: 'the impulse must fall inside the signal',
     path: ['delaySamples'],
-  });
+  })
+  .superRefine(checkSampleBudget);
 export type ImpulseSpec = z.infer<typeof ImpulseSpec>;
 
 const noise = {
@@ -167,7 +197,8 @@ export const WhiteNoiseSpec = z
   .refine((s) => s.fadeInSeconds + s.fadeOutSeconds <= s.seconds, {
     message: 'fades together must not be longer than the signal',
     path: ['fadeInSeconds'],
-  });
+  })
+  .superRefine(checkSampleBudget);
 export type WhiteNoiseSpec = z.infer<typeof WhiteNoiseSpec>;
 
 export const PinkNoiseSpec = z
@@ -175,10 +206,13 @@ export const PinkNoiseSpec = z
   .refine((s) => s.fadeInSeconds + s.fadeOutSeconds <= s.seconds, {
     message: 'fades together must not be longer than the signal',
     path: ['fadeInSeconds'],
-  });
+  })
+  .superRefine(checkSampleBudget);
 export type PinkNoiseSpec = z.infer<typeof PinkNoiseSpec>;
 
-export const SilenceSpec = z.strictObject({ kind: z.literal('silence'), ...base, seconds: Seconds });
+export const SilenceSpec = z
+  .strictObject({ kind: z.literal('silence'), ...base, seconds: Seconds })
+  .superRefine(checkSampleBudget);
 export type SilenceSpec = z.infer<typeof SilenceSpec>;
 
 /** Most an SMPTE/DIN amplitude ratio (low tone : high tone) may be, either way. */
@@ -210,7 +244,8 @@ export const ImdSmpteSpec = z
   .refine((s) => s.fadeInSeconds + s.fadeOutSeconds <= s.seconds, {
     message: 'fades together must not be longer than the signal',
     path: ['fadeInSeconds'],
-  });
+  })
+  .superRefine(checkSampleBudget);
 export type ImdSmpteSpec = z.infer<typeof ImdSmpteSpec>;
 
 /**
@@ -234,7 +269,8 @@ export const ImdTwinToneSpec = z
   .refine((s) => s.fadeInSeconds + s.fadeOutSeconds <= s.seconds, {
     message: 'fades together must not be longer than the signal',
     path: ['fadeInSeconds'],
-  });
+  })
+  .superRefine(checkSampleBudget);
 export type ImdTwinToneSpec = z.infer<typeof ImdTwinToneSpec>;
 
 /** Any stimulus, told apart by `kind`. */

@@ -10,10 +10,20 @@ export const UserRow = z.object({
 });
 export type UserRow = z.infer<typeof UserRow>;
 
+/** bcrypt reads only the first 72 bytes of a password; longer ones would be silently cut. */
+export const MAX_PASSWORD_BYTES = 72;
+export const passwordBytes = (password: string): number => new TextEncoder().encode(password).length;
+
+/** A password being set: long enough to resist guessing, short enough that all of it counts. */
+export const NewPassword = z
+  .string()
+  .min(10, 'at least 10 characters')
+  .refine((p) => passwordBytes(p) <= MAX_PASSWORD_BYTES, `at most ${MAX_PASSWORD_BYTES} bytes (UTF-8); letters such as ä take two`);
+
 export const CreateUserRequest = z.object({
   email: z.email().max(254),
   displayName: z.string().min(1).max(120),
-  password: z.string().min(10, 'at least 10 characters').max(200),
+  password: NewPassword,
   isAdmin: z.boolean().default(false),
 });
 export type CreateUserRequest = z.infer<typeof CreateUserRequest>;

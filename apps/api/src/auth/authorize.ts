@@ -10,24 +10,34 @@ export interface Authorized {
   project: Project | null;
 }
 
+/** The one 404 for "there is no such project" and "it is not yours": the two must read the same. */
+export function projectNotFoundDetail(projectKey: string): string {
+  return `There is no project ${projectKey}, or you have no access to it.`;
+}
+
 /**
  * Decides one request against its route's access rule.
- * Non-members get 404 for a project (its existence is not theirs to learn); members
- * whose role lacks the permission get 403.
+ * Non-members and other projects' CI tokens get the same 404 as for a project (or a resource
+ * of one) that does not exist: its existence is not theirs to learn. Members whose role lacks
+ * the permission, and the project's own tokens lacking the scope, get 403.
+ * @param projectKey the route's project; `null` when the resource the path names does not exist.
+ * @param notFoundDetail the 404's detail, when the path names a resource rather than the project.
  * @throws AuthError, ForbiddenError, NotFoundError
  */
 export async function authorize(
   access: Access,
   principal: Principal | null,
-  projectKey: string | undefined,
+  projectKey: string | null | undefined,
   em: EntityManager,
+  notFoundDetail?: string,
 ): Promise<Authorized> {
   if (access.kind === 'public') return { principal, project: null };
+  const hidden = () => new NotFoundError(notFoundDetail ?? projectNotFoundDetail(projectKey ?? ''));
   if (!principal) throw new AuthError();
 
   if (principal.kind === 'token') {
     if (access.kind !== 'ci') throw new ForbiddenError('API tokens are accepted only on the CI routes under /api/v1.');
-    if (projectKey !== principal.project.key) throw new ForbiddenError(`This API token belongs to project ${principal.project.key}.`);
+    if (projectKey !== principal.project.key) throw hidden();
     if (!scopesGrant(principal.token.scopes, access.permission)) {
       throw new ForbiddenError(`This API token's scopes (${principal.token.scopes.join(', ')}) do not allow ${access.permission}.`);
     }
@@ -41,14 +51,15 @@ export async function authorize(
     return { principal, project: null };
   }
 
-  if (!projectKey) throw new Error(`route with ${access.kind} access has no :project parameter`);
+  if (projectKey === undefined) throw new Error(`route with ${access.kind} access has no :project parameter`);
+  if (projectKey === null) throw hidden();
   const membership = memberships.find((m) => m.project.key === projectKey);
   if (user.isAdmin) {
     const project = membership?.project ?? (await em.findOne(Project, { key: projectKey }));
-    if (!project) throw new NotFoundError(`There is no project ${projectKey}.`);
+    if (!project) throw hidden();
     return { principal, project };
   }
-  if (!membership) throw new NotFoundError(`There is no project ${projectKey}, or you are not a member of it.`);
+  if (!membership) throw hidden();
   if (!roleGrants(membership.role, access.permission)) {
     throw new ForbiddenError(`Your role in ${projectKey} (${membership.role}) does not allow ${access.permission}.`);
   }

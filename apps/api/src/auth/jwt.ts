@@ -5,6 +5,9 @@ const Claims = z.object({
   sub: z.string(),
   typ: z.enum(['access', 'refresh']),
   ver: z.number().int(),
+  /** Refresh tokens only: this token's unique id, and the sign-in chain (family) it belongs to. */
+  jti: z.string().optional(),
+  fam: z.string().optional(),
 });
 export type Claims = z.infer<typeof Claims>;
 

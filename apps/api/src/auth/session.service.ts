@@ -1,6 +1,7 @@
+import { randomUUID } from 'node:crypto';
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type { CurrentUser, Session } from '@earmark/contracts';
-import { BCRYPT_COST, Membership, User, hashPassword, verifyPassword } from '@earmark/db';
+import { BCRYPT_COST, Membership, RefreshSession, User, hashPassword, verifyPassword } from '@earmark/db';
 import type { TokenSigner } from '../auth/jwt.js';
 
 import { AuthError } from '../errors.js';
@@ -24,12 +25,13 @@ const getDummyHash = () => (dummyHash ??= hashPassword('no such user', BCRYPT_CO
 export class SessionService {
   constructor(private readonly signer: TokenSigner) {}
 
-  private async issue(em: EntityManager, user: User): Promise<Session> {
+  /** Issues a session whose refresh token is the current one of `family`. */
+  private async issue(em: EntityManager, user: User, family: RefreshSession): Promise<Session> {
     const memberships = await em.find(Membership, { user }, { populate: ['project'], orderBy: { project: { name: 'asc' } } });
     return {
       accessToken: this.signer.sign({ sub: user.id, typ: 'access', ver: user.tokenVersion }),
       expiresIn: this.signer.ttlSeconds('access'),
-      refreshToken: this.signer.sign({ sub: user.id, typ: 'refresh', ver: user.tokenVersion }),
+      refreshToken: this.signer.sign({ sub: user.id, typ: 'refresh', ver: user.tokenVersion, jti: family.currentJti, fam: family.id }),
       user: toCurrentUser(user, memberships),
     };
   }
@@ -44,24 +46,48 @@ export class SessionService {
       throw new AuthError('The e-mail or password is wrong.');
     }
     user.lastLoginAt = new Date();
+    const family = em.create(RefreshSession, {
+      user,
+      currentJti: randomUUID(),
+      expiresAt: new Date(Date.now() + this.signer.ttlSeconds('refresh') * 1000),
+    });
     recordAudit(em, { actor: `user:${user.email}`, action: 'auth.login', subject: `user:${user.email}` });
     await em.flush();
-    return this.issue(em, user);
+    return this.issue(em, user, family);
   }
 
-  /** @throws AuthError when the refresh token is invalid, expired or revoked by sign-out. */
+  /**
+   * Rotates: the presented refresh token is spent and the answer carries its successor. A token
+   * that was already spent means two parties hold the chain (one of them stole it), so the whole
+   * chain ends and both must sign in again.
+   * @throws AuthError when the token is invalid, expired, spent, or its chain was ended.
+   */
   async refresh(em: EntityManager, refreshToken: string): Promise<Session> {
+    const invalid = () => new AuthError('The refresh token is invalid or has expired; sign in again.');
     const claims = this.signer.verify(refreshToken, 'refresh');
-    const user = claims ? await em.findOne(User, { id: claims.sub }) : null;
-    if (!claims || !user || user.disabled || user.tokenVersion !== claims.ver) {
-      throw new AuthError('The refresh token is invalid or has expired; sign in again.');
+    if (!claims?.jti || !claims.fam) throw invalid();
+    const user = await em.findOne(User, { id: claims.sub });
+    const family = await em.findOne(RefreshSession, { id: claims.fam, user: claims.sub });
+    if (!user || !family || user.disabled || user.tokenVersion !== claims.ver || family.revokedAt || family.expiresAt <= new Date()) {
+      throw invalid();
     }
-    return this.issue(em, user);
+    // Compare-and-swap in one statement, so two concurrent refreshes with one token cannot both win.
+    const nextJti = randomUUID();
+    const swapped = await em.nativeUpdate(RefreshSession, { id: family.id, currentJti: claims.jti, revokedAt: null }, { currentJti: nextJti });
+    if (swapped !== 1) {
+      await em.nativeUpdate(RefreshSession, { id: family.id }, { revokedAt: new Date() });
+      recordAudit(em, { actor: 'anonymous', action: 'auth.refresh_reused', subject: `user:${user.email}`, details: { family: family.id } });
+      await em.flush();
+      throw invalid();
+    }
+    family.currentJti = nextJti;
+    return this.issue(em, user, family);
   }
 
   /** Ends every session of the user: all access and refresh tokens stop working. */
   async logout(em: EntityManager, user: User): Promise<void> {
     user.tokenVersion += 1;
+    await em.nativeUpdate(RefreshSession, { user, revokedAt: null }, { revokedAt: new Date() });
     recordAudit(em, { actor: `user:${user.email}`, action: 'auth.logout', subject: `user:${user.email}` });
     await em.flush();
   }

@@ -17,10 +17,9 @@ export function mountRoutes(router: Router, routes: RouteDef[], orm: MikroORM, s
       const em = orm.em.getContext() as typeof orm.em;
       const principal = route.access.kind === 'public' ? null : await authenticate(req, em, signer);
       if (!principal && route.access.kind !== 'public') throw new AuthError();
-      const projectKey = route.resolveProjectKey
-        ? await route.resolveProjectKey(req, em)
-        : typeof req.params.project === 'string' ? req.params.project : undefined;
-      const { project } = await authorize(route.access, principal, projectKey, em);
+      const resource = route.resolveProjectKey ? await route.resolveProjectKey(req, em) : undefined;
+      const projectKey = resource ? resource.projectKey : typeof req.params.project === 'string' ? req.params.project : undefined;
+      const { project } = await authorize(route.access, principal, projectKey, em, resource?.notFoundDetail);
       const params = route.params ? parseWith(route.params, req.params, 'params') : {};
       const query = route.query ? parseWith(route.query, req.query, 'query') : {};
       const body = route.body ? parseWith(route.body, req.body, 'body') : undefined;

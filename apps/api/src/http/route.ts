@@ -50,8 +50,12 @@ export interface RouteDef<P = any, Q = any, B = any> {
     responseContentType?: string;
     tags?: string[];
   };
-  /** For routes without `:project`: finds the project key from the path (e.g. a capture id). */
-  resolveProjectKey?: (req: Request, em: EntityManager) => Promise<string | undefined>;
+  /**
+   * For routes without `:project`: finds the project of the resource the path names (e.g. a
+   * capture id). `projectKey` is null when there is no such resource; `notFoundDetail` is the one
+   * 404 detail for "no such resource" and "not yours" alike (authorize answers it for both).
+   */
+  resolveProjectKey?: (req: Request, em: EntityManager) => Promise<{ projectKey: string | null; notFoundDetail: string }>;
   /** Runs before authentication (e.g. the sign-in rate limiter). */
   before?: RequestHandler[];
   handle(ctx: RouteContext<P, Q, B>): Promise<void>;

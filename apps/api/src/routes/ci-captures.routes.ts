@@ -1,7 +1,6 @@
 import { CaptureDto, CommitSha, RAW_FLOAT32_MEDIA_TYPE } from '@earmark/contracts';
 import { Capture } from '@earmark/db';
 import { z } from 'zod';
-import { NotFoundError } from '../errors.js';
 import { buildDetail, type CaptureIngestService, type Links, parseWith, presentCaptures, renderJunit } from '@earmark/domain';
 import { readCaptureUpload } from '../http/capture-upload.js';
 import { requireProject, route, type RouteDef } from '../http/route.js';
@@ -40,8 +39,8 @@ export function ciCaptureRoutes(ingest: CaptureIngestService, links: Links, maxC
       async resolveProjectKey(req, em) {
         const { id } = parseWith(CaptureParams, req.params, 'params');
         const capture = await em.findOne(Capture, { id }, { populate: ['project'] });
-        if (!capture) throw new NotFoundError(`There is no capture ${id}.`);
-        return capture.project.key;
+        // Missing and foreign captures answer alike (authorize throws this detail for both).
+        return { projectKey: capture?.project.key ?? null, notFoundDetail: `There is no capture ${id}, or you have no access to it.` };
       },
       async handle(ctx) {
         const { id } = ctx.params;

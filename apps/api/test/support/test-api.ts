@@ -56,6 +56,10 @@ export async function startTestApi(envOverrides: Record<string, string> = {}): P
     EARMARK_JWT_SECRET: TEST_JWT_SECRET,
     EARMARK_WEB_DIST: '/nonexistent',
     EARMARK_LOGIN_RATE_LIMIT: '1000',
+    // Test files sign in hundreds of times a minute from one address; the limits have their own tests (sign-in-limits.test.ts).
+    EARMARK_LOGIN_RATE_LIMIT_PER_ADDRESS: '100000',
+    EARMARK_LOGIN_RATE_LIMIT_PER_EMAIL: '100000',
+    EARMARK_LOGIN_GLOBAL_PER_MINUTE: '100000',
     ...envOverrides,
   });
   const logLines: string[] = [];

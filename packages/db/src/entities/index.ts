@@ -10,6 +10,7 @@ import { MaskRevisionSchema } from './mask-revision.entity.js';
 import { MembershipSchema } from './membership.entity.js';
 import { NotificationSchema } from './notification.entity.js';
 import { ProjectSchema } from './project.entity.js';
+import { RefreshSessionSchema } from './refresh-session.entity.js';
 import { TargetSchema } from './target.entity.js';
 import { TestCaseSchema } from './test-case.entity.js';
 import { UserSchema } from './user.entity.js';
@@ -29,6 +30,7 @@ export * from './mask-revision.entity.js';
 export * from './membership.entity.js';
 export * from './notification.entity.js';
 export * from './project.entity.js';
+export * from './refresh-session.entity.js';
 export * from './target.entity.js';
 export * from './test-case.entity.js';
 export * from './user.entity.js';
@@ -39,4 +41,5 @@ export const entitySchemas = [
   UserSchema, ProjectSchema, MembershipSchema, TargetSchema, TestCaseSchema, MaskRevisionSchema,
   BuildSchema, CaptureSchema, VerdictSchema, CheckResultSchema, FindingSchema, CommentSchema,
   WaiverSchema, ApiTokenSchema, AuditEventSchema, NotificationSchema, ImpactRunSchema,
+  RefreshSessionSchema,
 ];

@@ -5,7 +5,7 @@ export const notificationStates = ['pending', 'sent', 'failed'] as const;
 export type NotificationState = (typeof notificationStates)[number];
 
 /** The mail outbox: written in the same transaction as its cause, sent later with retries. */
-export class Notification extends BaseEntity<'html' | 'payload' | 'state' | 'attempts' | 'lastError' | 'sentAt'> {
+export class Notification extends BaseEntity<'html' | 'payload' | 'state' | 'attempts' | 'lastError' | 'sentAt' | 'nextAttemptAt'> {
   kind!: string;
   recipient!: string;
   subject!: string;
@@ -18,6 +18,8 @@ export class Notification extends BaseEntity<'html' | 'payload' | 'state' | 'att
   attempts = 0;
   lastError: string | null = null;
   sentAt: Date | null = null;
+  /** When a refused message may be tried again (back-off); null: at once. */
+  nextAttemptAt: Date | null = null;
 }
 
 export const NotificationSchema = new EntitySchema<Notification, BaseEntity>({
@@ -34,5 +36,6 @@ export const NotificationSchema = new EntitySchema<Notification, BaseEntity>({
     attempts: { type: 'integer', default: 0 },
     lastError: { type: 'text', nullable: true },
     sentAt: { type: 'datetime', nullable: true },
+    nextAttemptAt: { type: 'datetime', nullable: true },
   },
 });

@@ -1,13 +1,17 @@
 import { type Capture } from '@earmark/db';
 import { ObjectMissingError, ObjectStoreUnavailableError, type ObjectStore } from '@earmark/platform';
-import { decodeCapture, type DecodedAudio } from '@earmark/dsp';
-import { NotFoundError, ServiceUnavailableError } from '../errors.js';
+import { AudioDecodeError, decodeCapture, type DecodedAudio } from '@earmark/dsp';
+import { NotFoundError, ServiceUnavailableError, UnsupportedCaptureError } from '../errors.js';
 
 /** Reads a stored capture from the object store and decodes it the way the upload validated it. */
 export class CaptureAudioLoader {
   constructor(private readonly objectStore: ObjectStore) {}
 
-  /** @throws NotFoundError when the bytes are gone; ServiceUnavailableError (503) when the store is down */
+  /**
+   * @throws NotFoundError when the bytes are gone; ServiceUnavailableError (503) when the store is down;
+   *   UnsupportedCaptureError (422) when the stored bytes break a decoder bound added after they were
+   *   accepted (e.g. too many samples), so a plot refuses instead of exhausting memory
+   */
   async load(capture: Pick<Capture, 'id' | 'objectKey' | 'format' | 'sampleRate' | 'channelCount'>): Promise<DecodedAudio> {
     const bytes = await this.objectStore.get(capture.objectKey).catch((error: unknown) => {
       if (error instanceof ObjectMissingError) throw new NotFoundError(`The stored bytes of capture ${capture.id} are missing.`);
@@ -15,6 +19,11 @@ export class CaptureAudioLoader {
       throw error;
     });
     const container = capture.format.container === 'raw-f32le' ? 'raw-f32le' : 'wav';
-    return decodeCapture(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength), { container, sampleRate: capture.sampleRate, channels: capture.channelCount });
+    try {
+      return decodeCapture(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength), { container, sampleRate: capture.sampleRate, channels: capture.channelCount });
+    } catch (error) {
+      if (error instanceof AudioDecodeError) throw new UnsupportedCaptureError(`Capture ${capture.id} cannot be analysed: ${error.message}`, error.code);
+      throw error;
+    }
   }
 }

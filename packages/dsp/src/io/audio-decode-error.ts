@@ -15,7 +15,9 @@ export type AudioDecodeErrorCode =
   | 'no-data'
   | 'non-finite-sample'
   | 'raw-length-mismatch'
-  | 'invalid-option';
+  | 'invalid-option'
+  | 'too-many-chunks'
+  | 'too-many-samples';
 
 /**
  * A capture that cannot be decoded. The message says what was wrong and what is accepted,

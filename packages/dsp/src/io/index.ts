@@ -5,3 +5,4 @@ export { decodeRawFloat32, type RawFloat32Options } from './raw-float32-decoder.
 export { encodeWav, type EncodeWavOptions } from './wav-encoder.js';
 export { WAVE_FORMAT_EXTENSIBLE, WAVE_FORMAT_IEEE_FLOAT, WAVE_FORMAT_PCM } from './wav-format.js';
 export { decodeCapture, type StoredCaptureFormat } from './decode-capture.js';
+export { MAX_DECODED_SAMPLES, MAX_RIFF_CHUNKS, DEFAULT_DECODE_LIMITS, type DecodeLimits } from './audio-limits.js';

@@ -1,7 +1,8 @@
 import { AudioDecodeError } from './audio-decode-error.js';
-import { MAX_CHANNELS, MAX_SAMPLE_RATE, MIN_SAMPLE_RATE } from './audio-limits.js';
+import { DEFAULT_DECODE_LIMITS, MAX_CHANNELS, MAX_SAMPLE_RATE, MIN_SAMPLE_RATE, type DecodeLimits } from './audio-limits.js';
 import type { DecodedAudio } from './decoded-audio.js';
 import { readInterleaved } from './interleaved-reader.js';
+import { assertWithinSampleBudget } from './sample-budget.js';
 import { WAVE_FORMAT_IEEE_FLOAT } from './wav-format.js';
 
 /** What a raw capture's sender states about it (in request headers or CLI options). */
@@ -18,9 +19,10 @@ export interface RawFloat32Options {
  *
  * @throws AudioDecodeError `invalid-option` (rate or channels not whole numbers),
  *   `zero-channels`, `too-many-channels`, `sample-rate-out-of-range`, `no-data` (0 bytes),
- *   `raw-length-mismatch` (length not a multiple of 4 × channels) or `non-finite-sample`.
+ *   `raw-length-mismatch` (length not a multiple of 4 × channels), `too-many-samples` (more
+ *   than `limits.maxSamples`, checked before allocating) or `non-finite-sample`.
  */
-export function decodeRawFloat32(bytes: Uint8Array, opts: RawFloat32Options): DecodedAudio {
+export function decodeRawFloat32(bytes: Uint8Array, opts: RawFloat32Options, limits: DecodeLimits = DEFAULT_DECODE_LIMITS): DecodedAudio {
   if (!(bytes instanceof Uint8Array)) throw new TypeError('A raw float32 capture must be given as a Uint8Array of its bytes.');
   const { sampleRate, channels } = opts;
   if (!Number.isInteger(sampleRate) || !Number.isInteger(channels)) {
@@ -55,6 +57,7 @@ export function decodeRawFloat32(bytes: Uint8Array, opts: RawFloat32Options): De
     );
   }
   const frames = bytes.length / frameBytes;
+  assertWithinSampleBudget(frames, channels, limits);
   const decoded = readInterleaved(bytes, 0, frames, channels, 'f32');
   if (decoded.nonFinite !== undefined) {
     const { frame, channel, value } = decoded.nonFinite;

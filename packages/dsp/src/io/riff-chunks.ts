@@ -1,4 +1,5 @@
 import { AudioDecodeError } from './audio-decode-error.js';
+import { MAX_RIFF_CHUNKS } from './audio-limits.js';
 
 /** One chunk of a RIFF file: its four-character id, where its body starts, and its declared size. */
 export interface RiffChunk {
@@ -19,10 +20,12 @@ function fourcc(bytes: Uint8Array, at: number): string {
  * and Data Specifications 1.0", 1991, RIFF chunk layout). The RIFF size field is not trusted
  * (many writers get it wrong): chunks are walked to the end of the bytes. A chunk that runs
  * past the end is returned with its declared size; the caller decides whether that is fatal.
+ * At most `maxChunks` chunks are walked, so hostile files cost O(maxChunks) time and memory.
  *
- * @throws AudioDecodeError `not-riff` when the bytes do not start with `RIFF….WAVE`.
+ * @throws AudioDecodeError `not-riff` when the bytes do not start with `RIFF….WAVE`;
+ *   `too-many-chunks` when the file holds more than `maxChunks` chunks.
  */
-export function readRiffChunks(bytes: Uint8Array): RiffChunk[] {
+export function readRiffChunks(bytes: Uint8Array, maxChunks: number = MAX_RIFF_CHUNKS): RiffChunk[] {
   if (bytes.length < 12 || fourcc(bytes, 0) !== 'RIFF' || fourcc(bytes, 8) !== 'WAVE') {
     const head = bytes.length >= 4 ? fourcc(bytes, 0) : '';
     const hint =
@@ -40,6 +43,12 @@ export function readRiffChunks(bytes: Uint8Array): RiffChunk[] {
   const chunks: RiffChunk[] = [];
   let at = 12;
   while (at + 8 <= bytes.length) {
+    if (chunks.length === maxChunks) {
+      throw new AudioDecodeError(
+        'too-many-chunks',
+        `The WAV file holds more than ${maxChunks} chunks (the next one starts at byte ${at}); Earmark reads WAV files of at most ${maxChunks} chunks. Re-export the capture without padding or metadata chunks.`,
+      );
+    }
     const id = fourcc(bytes, at);
     const size = view.getUint32(at + 4, true);
     chunks.push({ id, offset: at + 8, size });

@@ -1,8 +1,9 @@
 import { ACCEPTED_CAPTURE_FORMATS, AudioDecodeError } from './audio-decode-error.js';
-import { MAX_CHANNELS, MAX_SAMPLE_RATE, MIN_SAMPLE_RATE } from './audio-limits.js';
+import { DEFAULT_DECODE_LIMITS, MAX_CHANNELS, MAX_SAMPLE_RATE, MIN_SAMPLE_RATE, type DecodeLimits } from './audio-limits.js';
 import type { AudioFormat, DecodedAudio } from './decoded-audio.js';
 import { readInterleaved, type SampleLayout } from './interleaved-reader.js';
 import { readRiffChunks, type RiffChunk } from './riff-chunks.js';
+import { assertWithinSampleBudget } from './sample-budget.js';
 import { SUBFORMAT_GUID_TAIL, WAVE_FORMAT_EXTENSIBLE, WAVE_FORMAT_IEEE_FLOAT, WAVE_FORMAT_PCM } from './wav-format.js';
 
 interface FmtInfo {
@@ -133,12 +134,17 @@ function checkFmt(fmt: FmtInfo): SampleLayout {
  * must be finite. Layout source: Microsoft, "Multimedia Programming Interface and Data
  * Specifications 1.0" (1991) and the WAVEFORMATEXTENSIBLE documentation (ksmedia.h).
  *
- * @throws AudioDecodeError with code `not-riff`, `truncated`, `no-format`, `duplicate-chunk`,
- *   `unsupported-format`, `unsupported-bit-depth`, `zero-channels`, `too-many-channels`,
- *   `block-align-mismatch`, `sample-rate-out-of-range`, `data-exceeds-file`, `partial-frame`,
- *   `no-data` or `non-finite-sample`; the message says what was wrong and what is accepted.
+ * Hostile files are bounded: at most MAX_RIFF_CHUNKS chunks are walked, and the frames the
+ * `data` chunk declares × channels must not exceed `limits.maxSamples` (checked from the
+ * header, before the file length and before any sample buffer is allocated).
+ *
+ * @throws AudioDecodeError with code `not-riff`, `too-many-chunks`, `truncated`, `no-format`,
+ *   `duplicate-chunk`, `unsupported-format`, `unsupported-bit-depth`, `zero-channels`,
+ *   `too-many-channels`, `block-align-mismatch`, `sample-rate-out-of-range`, `too-many-samples`,
+ *   `data-exceeds-file`, `partial-frame`, `no-data` or `non-finite-sample`; the message says
+ *   what was wrong and what is accepted.
  */
-export function decodeWav(bytes: Uint8Array): DecodedAudio {
+export function decodeWav(bytes: Uint8Array, limits: DecodeLimits = DEFAULT_DECODE_LIMITS): DecodedAudio {
   if (!(bytes instanceof Uint8Array)) throw new TypeError('A WAV capture must be given as a Uint8Array of its bytes.');
   const chunks = readRiffChunks(bytes);
   let fmtChunk: RiffChunk | undefined;
@@ -168,6 +174,7 @@ export function decodeWav(bytes: Uint8Array): DecodedAudio {
   if (dataChunk === undefined) {
     throw new AudioDecodeError('no-data', 'The WAV file has no "data" chunk, so it holds no audio.');
   }
+  assertWithinSampleBudget(Math.floor(dataChunk.size / fmt.blockAlign), fmt.channels, limits);
   const available = bytes.length - dataChunk.offset;
   if (dataChunk.size > available) {
     throw new AudioDecodeError(

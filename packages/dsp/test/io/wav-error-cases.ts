@@ -34,6 +34,8 @@ export const WAV_ERROR_CASES: Array<[AudioDecodeErrorCode, string, Uint8Array, R
   ['no-data', 'no data chunk', riff([chunk('fmt ', fmtBody()), chunk('LIST', new Uint8Array(4))]), /no "data" chunk/],
   ['no-data', 'an empty data chunk', riff([chunk('fmt ', fmtBody()), chunk('data', new Uint8Array(0))]), /empty/],
   ['partial-frame', 'a data chunk ending mid-frame', riff([chunk('fmt ', fmtBody({ channels: 2 })), chunk('data', int16Body([1, 2, 3]))]), /not a whole number of 4-byte frames/],
+  ['too-many-chunks', '65 chunks (63 empty JUNK chunks between fmt and data)', riff([chunk('fmt ', fmtBody()), ...Array.from({ length: 63 }, () => chunk('JUNK', new Uint8Array(0))), chunk('data', fourFrames)]), /more than 64 chunks/],
+  ['too-many-samples', 'a 16-bit stereo data chunk claiming 2^24 + 1 frames (2^25 + 2 samples)', riff([chunk('fmt ', fmtBody({ channels: 2 })), chunk('data', fourFrames, (2 ** 24 + 1) * 4)]), /33,554,434 samples.*at most 33,554,432/],
   ['non-finite-sample', 'a NaN in float32', riff([chunk('fmt ', fmtBody({ tag: 3, bits: 32 })), chunk('data', float32Body([0, 0.5, Number.NaN]))]), /^Sample 2 of channel 1 is NaN/],
   ['non-finite-sample', '+Infinity in channel 2', riff([chunk('fmt ', fmtBody({ tag: 3, bits: 32, channels: 2 })), chunk('data', float32Body([0, 0.5, 0.25, Number.POSITIVE_INFINITY]))]), /^Sample 1 of channel 2 is Infinity/],
 ];

@@ -18,7 +18,9 @@ export interface QueueSettings {
 export async function createQueues(boss: PgBoss, settings: QueueSettings = {}): Promise<void> {
   const dead = `${QUEUES.analyzeCapture}.dead`;
   const queues: PgBoss.Queue[] = [
-    { name: dead, policy: 'standard' },
+    // The last step before a capture's `error` verdict: generous retries (about two hours of
+    // back-off) so a passing outage cannot leave it without one; the sweep is the last resort.
+    { name: dead, policy: 'standard', retryLimit: 12, retryDelay: settings.retryDelaySeconds ?? 5, retryBackoff: true, expireInSeconds: 300 },
     {
       name: QUEUES.analyzeCapture,
       policy: 'standard',

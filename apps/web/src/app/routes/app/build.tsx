@@ -12,6 +12,7 @@ import { getBuildMatrixQueryOptions, useBuildMatrix } from '@/features/builds/ap
 import { BuildMatrix } from '@/features/builds/components/build-matrix';
 import { BuildSummaryPanel } from '@/features/builds/components/build-summary';
 import { DriftNotice } from '@/features/builds/components/drift-notice';
+import { PipelineLink } from '@/features/builds/components/pipeline-link';
 import { paths } from '@/lib/paths';
 import { shortSha } from '@/lib/sha';
 import { requireSession } from '../require-session';
@@ -80,20 +81,7 @@ export function BuildRoute() {
         }
         actions={
           <>
-            {build.pipelineUrl ? (
-              <a
-                href={build.pipelineUrl}
-                target="_blank"
-                rel="noreferrer noopener"
-                className="inline-flex h-9 items-center gap-1.5 rounded-md px-3 text-sm font-medium text-ink-700 hover:bg-ink-900/5"
-              >
-                Pipeline
-                <svg viewBox="0 0 12 12" aria-hidden="true" className="size-3">
-                  <path d="M4.5 2.5h5v5M9.5 2.5 3 9" fill="none" stroke="currentColor" strokeWidth="1.3" strokeLinecap="round" />
-                </svg>
-                <span className="sr-only">(opens in a new tab)</span>
-              </a>
-            ) : null}
+            <PipelineLink url={build.pipelineUrl} />
             <DownloadJunitButton projectKey={projectKey} sha={build.sha} />
           </>
         }
