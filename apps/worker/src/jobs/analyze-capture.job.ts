@@ -78,8 +78,11 @@ async function wakeMailSender(deps: AnalyzeDeps, result: RecordResult): Promise<
 /** Shows the capture (and so its build) as running while the engine works. */
 async function markAnalysing(orm: MikroORM, captureId: string): Promise<void> {
   await orm.em.fork().transactional(async (tx) => {
-    const capture = await tx.findOneOrFail(Capture, { id: captureId });
-    const build = await tx.findOneOrFail(Build, { id: capture.build.id }, { lockMode: LockMode.PESSIMISTIC_WRITE });
+    const { build: buildRef } = await tx.findOneOrFail(Capture, { id: captureId });
+    const build = await tx.findOneOrFail(Build, { id: buildRef.id }, { lockMode: LockMode.PESSIMISTIC_WRITE });
+    // Read the status again under the build's lock (which recordVerdict holds too): another attempt
+    // may have judged the capture since, and its verdict must not be painted over with `analysing`.
+    const capture = await tx.findOneOrFail(Capture, { id: captureId }, { refresh: true });
     if (capture.status !== 'queued') return;
     capture.status = 'analysing';
     await tx.flush();
