@@ -229,13 +229,17 @@ describe('a capture whose analysis keeps dying', () => {
     await worker.stop();
     // Every analysis hangs (fault injection) and expires after 2 s; the second attempt is the last.
     const hanging = await stack.startWorker({ EARMARK_ANALYSIS_DELAY_MS: '60000', EARMARK_ANALYSIS_EXPIRE_S: '2', EARMARK_ANALYSIS_MAX_ATTEMPTS: '2', EARMARK_WORKER_CONCURRENCY: '2' });
-    const submitted = await submit('ffff006', 'eq.sweep', delay(stimulus, LATENCY));
-    const judged = await verdictOf(submitted.id, 45_000);
-    expect(judged.verdict!.outcome).toBe('error');
-    expect(judged.verdict!.reason).toMatch(/abandoned after 1 failed attempt \(/);
-    expect(judged.status).toBe('error');
-    await hanging.kill();
-    worker = await stack.startWorker();
+    try {
+      const submitted = await submit('ffff006', 'eq.sweep', delay(stimulus, LATENCY));
+      const judged = await verdictOf(submitted.id, 45_000);
+      expect(judged.verdict!.outcome).toBe('error');
+      expect(judged.verdict!.reason).toMatch(/abandoned after 1 failed attempt \(/);
+      expect(judged.status).toBe('error');
+    } finally {
+      // A failure here must not leave a hanging worker to take the next tests' jobs.
+      await hanging.kill();
+      worker = await stack.startWorker();
+    }
   });
 });
 

@@ -1,5 +1,6 @@
 import { CaptureDto, CommitSha, RAW_FLOAT32_MEDIA_TYPE } from '@earmark/contracts';
 import { Capture } from '@earmark/db';
+import { IsolationLevel } from '@mikro-orm/postgresql';
 import { z } from 'zod';
 import { buildDetail, type CaptureIngestService, type Links, parseWith, presentCaptures, renderJunit } from '@earmark/domain';
 import { readCaptureUpload } from '../http/capture-upload.js';
@@ -38,14 +39,24 @@ export function ciCaptureRoutes(ingest: CaptureIngestService, links: Links, maxC
       response: CaptureDto,
       async resolveProjectKey(req, em) {
         const { id } = parseWith(CaptureParams, req.params, 'params');
-        const capture = await em.findOne(Capture, { id }, { populate: ['project'] });
+        // Only the project's key, not the entity: a capture loaded here would sit in the request's
+        // identity map with the status it had before authorisation, and the handler would answer
+        // that stale status beside a verdict recorded in between.
+        const rows = await em.getConnection().execute<{ key: string }[]>(
+          'select p.key from capture c join project p on p.id = c.project_id where c.id = ?',
+          [id],
+        );
         // Missing and foreign captures answer alike (authorize throws this detail for both).
-        return { projectKey: capture?.project.key ?? null, notFoundDetail: `There is no capture ${id}, or you have no access to it.` };
+        return { projectKey: rows[0]?.key ?? null, notFoundDetail: `There is no capture ${id}, or you have no access to it.` };
       },
       async handle(ctx) {
         const { id } = ctx.params;
-        const capture = await ctx.em.findOneOrFail(Capture, { id }, { populate: ['project', 'build', 'testCase', 'target'] });
-        const [dto] = await presentCaptures(ctx.em, [capture], links);
+        // One snapshot for the capture and its verdict: a verdict committed between the two reads
+        // would otherwise be shown beside the status from before it.
+        const dto = await ctx.em.transactional(async (tx) => {
+          const capture = await tx.findOneOrFail(Capture, { id }, { populate: ['project', 'build', 'testCase', 'target'] });
+          return (await presentCaptures(tx, [capture], links))[0];
+        }, { isolationLevel: IsolationLevel.REPEATABLE_READ, readOnly: true });
         ctx.res.json(dto);
       },
     }),

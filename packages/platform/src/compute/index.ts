@@ -1,0 +1,2 @@
+export * from './compute-pool.js';
+export * from './compute-task.js';
