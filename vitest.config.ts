@@ -4,7 +4,7 @@ import { defineConfig } from 'vitest/config';
 // starts the private test PostgreSQL once per run and migrates a template database.
 export default defineConfig({
   test: {
-    projects: ['packages/*', 'apps/*', 'tests'],
+    projects: ['packages/*', 'apps/*', 'tests', 'tests/reliability'],
     globalSetup: ['./tests/setup/postgres.global.ts'],
   },
 });

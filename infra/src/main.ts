@@ -1,5 +1,6 @@
 import { benchCommand } from './commands/bench.command.js';
 import { dbCommand } from './commands/db.command.js';
+import { reliabilityCommand } from './commands/reliability.command.js';
 import { startCommand } from './commands/start.command.js';
 import { testCommand } from './commands/test.command.js';
 
@@ -8,6 +9,7 @@ const [command, ...args] = process.argv.slice(2);
 const commands: Record<string, (args: string[]) => Promise<number>> = {
   bench: benchCommand,
   db: dbCommand,
+  reliability: reliabilityCommand,
   start: () => startCommand(),
   test: testCommand,
 };

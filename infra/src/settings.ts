@@ -12,7 +12,7 @@ const Settings = z.object({
   EARMARK_DB_NAME: z.string().regex(/^[a-z_][a-z0-9_]*$/).default('earmark'),
   /** Defaults to a secret generated once under .data/secrets.json. */
   EARMARK_JWT_SECRET: z.string().min(32).optional(),
-  EARMARK_WORKER_CONCURRENCY: z.coerce.number().int().min(1).max(16).default(2),
+  EARMARK_ANALYSIS_SLOTS: z.coerce.number().int().min(1).max(64).optional(),
   EARMARK_LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
 });
 export type Settings = z.infer<typeof Settings>;

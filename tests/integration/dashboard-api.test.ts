@@ -114,17 +114,11 @@ describe('dashboard API', () => {
     expect(mid).toBeLessThan(0.6);
     expect(plot.waveform.seconds.length).toBeLessThanOrEqual(512);
 
-    // The answer is cached in the object store under a key naming what it depends on.
-    // Written after the answer, without holding it up: wait for it briefly.
-    const keys = await waitFor(
-      async () => {
-        const listed = await stack.objectStore.list(`plot-cache/${failing.id}/`);
-        return listed.length ? listed : null;
-      },
-      { what: `the plot cache entry of capture ${failing.id}`, timeoutMs: 5000, intervalMs: 50 },
-    );
-    expect(keys).toHaveLength(1);
-    expect(keys[0]).toContain(`-${passing.id}.json`);
+    // The plot is stored under a key naming what it depends on (capture, mask revision, engine,
+    // columns, channel); the overlay is the passing capture's own stored plot.
+    const mask = (await call<CaptureDetail>(`/api/projects/alpha-dsp/captures/${failing.id}`)).body.mask!;
+    expect(await stack.objectStore.list(`plot-cache/${failing.id}/`)).toEqual([`plot-cache/${failing.id}/${plot.engineVersion}-${mask.id}-512-0.json`]);
+    expect(await stack.objectStore.list(`plot-cache/${passing.id}/`)).toHaveLength(1);
     const again = await call<unknown>(`/api/projects/alpha-dsp/captures/${failing.id}/plot?columns=512`);
     expect(again.body).toEqual(res.body);
   });

@@ -228,7 +228,7 @@ describe('a capture whose analysis keeps dying', () => {
   it('is judged error after the last attempt instead of staying pending', async () => {
     await worker.stop();
     // Every analysis hangs (fault injection) and expires after 2 s; the second attempt is the last.
-    const hanging = await stack.startWorker({ EARMARK_ANALYSIS_DELAY_MS: '60000', EARMARK_ANALYSIS_EXPIRE_S: '2', EARMARK_ANALYSIS_MAX_ATTEMPTS: '2', EARMARK_WORKER_CONCURRENCY: '2' });
+    const hanging = await stack.startWorker({ EARMARK_ANALYSIS_DELAY_MS: '60000', EARMARK_ANALYSIS_EXPIRE_S: '2', EARMARK_ANALYSIS_MAX_ATTEMPTS: '2', EARMARK_ANALYSIS_SLOTS: '2' });
     try {
       const submitted = await submit('ffff006', 'eq.sweep', delay(stimulus, LATENCY));
       const judged = await verdictOf(submitted.id, 45_000);

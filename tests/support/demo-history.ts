@@ -5,7 +5,7 @@ import { waitFor } from './wait-for.js';
 /** The demo (Fernwick) with its history sent through the real pipeline and every capture judged. */
 export async function startDemoHistory(): Promise<Stack> {
   const stack = await startStack({ seed: 'demo' });
-  await stack.startWorker({ EARMARK_WORKER_CONCURRENCY: '2' });
+  await stack.startWorker({ EARMARK_ANALYSIS_SLOTS: '2' });
   await seedDemoBuilds(stack.url, stack.ciToken, () => {});
   await waitFor(
     async () => {

@@ -73,7 +73,7 @@ export async function startStack(opts: { seed?: 'roles' | 'demo'; database?: { u
     EARMARK_JOB_RETRY_DELAY_S: '1',
     EARMARK_JOB_MAINTENANCE_S: '1',
     EARMARK_ANALYSIS_EXPIRE_S: '4',
-    EARMARK_WORKER_CONCURRENCY: '1',
+    EARMARK_ANALYSIS_SLOTS: '1',
   };
   const workers: WorkerProcess[] = [];
   return {

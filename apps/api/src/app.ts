@@ -13,6 +13,7 @@ import { docsRoutes } from './routes/docs.routes.js';
 import { allRoutes } from './routes/index.js';
 import { SessionService } from './auth/session.service.js';
 import { signInGuard } from './auth/sign-in-guard.js';
+import { SharedLimitStore } from './auth/shared-limit-store.js';
 
 export interface EarmarkApp {
   app: express.Express;
@@ -20,7 +21,7 @@ export interface EarmarkApp {
 }
 
 /** Builds the Express app; tests boot it on an ephemeral port. */
-export function createApp({ orm, env, logger, gate }: ApiRuntime): EarmarkApp {
+export function createApp({ orm, env, logger, gate, verdictWaits, limiterPool, passwords }: ApiRuntime): EarmarkApp {
   const app = express();
   app.disable('x-powered-by');
   // Off unless configured: otherwise any client could pick its own address for the limiters.
@@ -49,7 +50,8 @@ export function createApp({ orm, env, logger, gate }: ApiRuntime): EarmarkApp {
   app.use((_req, _res, next) => RequestContext.create(orm.em, next));
 
   const signer = createTokenSigner(env.EARMARK_JWT_SECRET, { access: env.EARMARK_ACCESS_TOKEN_TTL_S, refresh: env.EARMARK_REFRESH_TOKEN_TTL_S });
-  const routes: RouteDef[] = allRoutes({ gate, sessions: new SessionService(signer), loginLimiter: signInGuard(env), maxCaptureBytes: env.EARMARK_MAX_CAPTURE_BYTES });
+  const loginLimiter = signInGuard(env, (name) => new SharedLimitStore(limiterPool, `sign-in:${name}`, logger));
+  const routes: RouteDef[] = allRoutes({ gate, sessions: new SessionService(signer, passwords), loginLimiter, maxCaptureBytes: env.EARMARK_MAX_CAPTURE_BYTES, verdictWaits, maxConcurrentUploads: env.EARMARK_MAX_CONCURRENT_UPLOADS });
   routes.push(...docsRoutes(() => routes, env.EARMARK_PUBLIC_URL));
   const api = express.Router();
   mountRoutes(api, routes, orm, signer);

@@ -39,12 +39,26 @@ const Env = z.object({
     }),
   EARMARK_LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
   EARMARK_DB_POOL_MAX: z.coerce.number().int().min(1).default(10),
+  /** Requests held at once by `GET /api/v1/captures/:id?wait=N` (per process); beyond it they answer at once. */
+  EARMARK_VERDICT_WAIT_MAX_HELD: z.coerce.number().int().min(0).default(1000),
   EARMARK_S3_ENDPOINT: z.url().default('http://127.0.0.1:4312'),
   EARMARK_S3_BUCKET: z.string().min(3).default('earmark-captures'),
   EARMARK_S3_ACCESS_KEY: z.string().default('S3RVER'),
   EARMARK_S3_SECRET_KEY: z.string().default('S3RVER'),
   /** Largest capture upload accepted. */
   EARMARK_MAX_CAPTURE_BYTES: z.coerce.number().int().min(1024).default(64 * 1024 * 1024),
+  /** Capture uploads read and decoded at once by this process; past it, 503 with Retry-After before the body is read. */
+  EARMARK_MAX_CONCURRENT_UPLOADS: z.coerce.number().int().min(1).default(8),
+  /** Compute threads of the API (decoding, plots, WAV rendering): the CPU heavy requests may take. */
+  EARMARK_API_COMPUTE_THREADS: z.coerce.number().int().min(1).default(1),
+  /** Tasks that may wait for a compute thread; past it, 503 with Retry-After. */
+  EARMARK_API_COMPUTE_QUEUE: z.coerce.number().int().min(0).default(16),
+  /**
+   * V8 heap limit per compute thread (MB). A capture at the decoded-sample limit (2^25 samples) is
+   * decoded and plotted within it (docs/architecture.md, "Compute threads"); a task that outgrows
+   * it ends only its thread.
+   */
+  EARMARK_API_COMPUTE_MEMORY_MB: z.coerce.number().int().min(64).default(1536),
   /** Base URL of the dashboard, for links in API answers, JUnit XML and e-mail. */
   EARMARK_PUBLIC_URL: z.url().default('http://127.0.0.1:4310'),
 });

@@ -1,10 +1,14 @@
-import { initOrm } from '@earmark/db';
-import { createGate, createJobProducer, createLinks, type Gate } from '@earmark/domain';
-import { ObjectStore, startBoss } from '@earmark/platform';
+import { initOrm, NOTIFY_CHANNELS } from '@earmark/db';
+import { VIEWS_THREAD_MODULE, createGate, createJobProducer, createLinks, poolViewsCompute, type Gate } from '@earmark/domain';
+import { ObjectStore, createComputePool, startBoss, type ComputePool } from '@earmark/platform';
 import type { MikroORM } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
+import pg from 'pg';
 import type { Logger } from 'pino';
 import type { ApiEnv } from './env.js';
+import { threadedPasswordChecks, type PasswordChecks } from './auth/password-checks.js';
+import { startPgListener } from './waits/pg-listener.js';
+import { VerdictWaits } from './waits/verdict-waits.js';
 
 /** Everything the API process holds: built once, here, and closed together. */
 export interface ApiRuntime {
@@ -15,6 +19,14 @@ export interface ApiRuntime {
   /** Producer side of the job queue (queues created at start-up). */
   boss: PgBoss;
   gate: Gate;
+  /** Threads for every CPU-heavy step of a request (decode, plot, WAV), so the event loop keeps answering. */
+  compute: ComputePool;
+  /** Requests waiting for a verdict, woken by this process's one LISTEN connection. */
+  verdictWaits: VerdictWaits;
+  /** A small pool beside the ORM's for the sign-in limiter: short connect timeout, so it fails fast (503) when the database is away. */
+  limiterPool: pg.Pool;
+  /** bcrypt on worker threads, so sign-ins do not hold up other requests. */
+  passwords: PasswordChecks;
   close(): Promise<void>;
 }
 
@@ -36,7 +48,28 @@ export async function createApiRuntime(env: ApiEnv, logger: Logger, existing: { 
   });
   await objectStore.ensureBucket().catch((error: unknown) => logger.warn({ err: error }, 'object store not reachable at start-up; uploads answer 503 until it is'));
   const boss = await startBoss(env.EARMARK_DATABASE_URL, logger);
-  const gate = createGate({ objectStore, jobs: createJobProducer(boss), links: createLinks(env.EARMARK_PUBLIC_URL), logger });
+  const compute = createComputePool({
+    module: VIEWS_THREAD_MODULE,
+    threads: env.EARMARK_API_COMPUTE_THREADS,
+    maxQueue: env.EARMARK_API_COMPUTE_QUEUE,
+    memoryMbPerThread: env.EARMARK_API_COMPUTE_MEMORY_MB,
+  });
+  const gate = createGate({ objectStore, jobs: createJobProducer(boss), links: createLinks(env.EARMARK_PUBLIC_URL), logger, compute: poolViewsCompute(compute) });
+  let listening = () => false;
+  const verdictWaits = new VerdictWaits(env.EARMARK_VERDICT_WAIT_MAX_HELD, () => listening());
+  const listener = startPgListener({
+    connectionString: env.EARMARK_DATABASE_URL,
+    channel: NOTIFY_CHANNELS.verdictRecorded,
+    onNotify: (captureId) => verdictWaits.announce(captureId),
+    onListening: () => verdictWaits.wakeAll(),
+    logger,
+  });
+  listening = () => listener.listening;
+  await listener.ready;
+  const limiterPool = new pg.Pool({ connectionString: env.EARMARK_DATABASE_URL, max: 2, connectionTimeoutMillis: 2_000, application_name: 'earmark-api-limits' });
+  // An idle client that loses its connection emits here; the next query reconnects.
+  limiterPool.on('error', (error) => logger.warn({ err: error }, 'sign-in limiter connection lost'));
+  const passwords = threadedPasswordChecks(env.EARMARK_PASSWORD_WORK_CONCURRENCY, env.EARMARK_PASSWORD_WORK_QUEUE);
   return {
     env,
     logger,
@@ -44,8 +77,17 @@ export async function createApiRuntime(env: ApiEnv, logger: Logger, existing: { 
     objectStore,
     boss,
     gate,
+    compute,
+    verdictWaits,
+    limiterPool,
+    passwords,
     async close() {
+      await listener.close();
+      verdictWaits.wakeAll();
+      await limiterPool.end();
+      await passwords.close();
       await boss.stop({ graceful: true, wait: true, timeout: 5000 });
+      await compute.destroy();
       objectStore.destroy();
       await orm.close();
     },

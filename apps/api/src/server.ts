@@ -15,9 +15,18 @@ server.on('error', (error: NodeJS.ErrnoException) => {
   process.exit(1);
 });
 
+/** How long requests in flight may take to finish after SIGTERM before their connections are cut. */
+const DRAIN_MS = 25_000;
+
 async function shutdown(signal: string) {
   logger.info({ signal }, 'shutting down');
-  server.close();
+  // Stop accepting, let requests in flight finish (an upload half-way must still reach its row
+  // and its answer), and only then close the database and the queue under them.
+  const drained = new Promise<void>((resolve) => server.close(() => resolve()));
+  server.closeIdleConnections();
+  const deadline = setTimeout(() => server.closeAllConnections(), DRAIN_MS);
+  await drained;
+  clearTimeout(deadline);
   await runtime.close();
   process.exit(0);
 }

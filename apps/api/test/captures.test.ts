@@ -33,7 +33,8 @@ async function storedState() {
 }
 
 beforeAll(async () => {
-  api = await startTestApi({ EARMARK_MAX_CAPTURE_BYTES: String(256 * 1024) });
+  // 16 parallel first uploads below race to create one build: all of them must be let in at once.
+  api = await startTestApi({ EARMARK_MAX_CAPTURE_BYTES: String(256 * 1024), EARMARK_MAX_CONCURRENT_UPLOADS: '16' });
   const em = api.orm.em.fork();
   const { project, otherProject, users } = api.fixture;
   em.create(TestCase, { project: project.id, key: 'tone.997', name: 'tone', stimulus: { kind: 'sine', sampleRate: 48000, seconds: 0.1, frequency: 997, levelDbfs: -12 } });

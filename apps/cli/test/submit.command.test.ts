@@ -171,6 +171,32 @@ describe.concurrent('earmark submit', { timeout: 30_000 }, () => {
     expect(Date.now() - started).toBeLessThan(10_000);
   });
 
+  it('--wait holds one request per capture until its verdict (?wait=N) instead of polling', async () => {
+    const s = await server({ verdictAfterMs: 2_500 });
+    const r = await run([...common(s), 'pass.wav', 'fail.wav', '--wait', '--timeout', '20']);
+    expect(r.code, r.stderr).toBe(1);
+    expect(s.violations).toEqual([]);
+    const reads = s.requests.filter((q) => q.method === 'GET' && q.path.startsWith('/api/v1/captures/'));
+    // One held read each: the verdicts arrived within the first hold (the old loop polled 3 times each).
+    expect(reads).toHaveLength(2);
+    for (const read of reads) {
+      const wait = Number(read.query.get('wait'));
+      expect(wait).toBeGreaterThanOrEqual(15);
+      expect(wait).toBeLessThanOrEqual(20);
+    }
+  });
+
+  it('--wait asks for holds that end before --timeout, then one last plain read', async () => {
+    const s = await server();
+    const r = await run([...common(s), 'slow.wav', '--wait', '--timeout', '3']);
+    expect(r.code).toBe(3);
+    expect(s.violations).toEqual([]);
+    const waits = s.requests.filter((q) => q.method === 'GET' && q.path.startsWith('/api/v1/captures/')).map((q) => Number(q.query.get('wait') ?? 0));
+    // Held for 2 s (whole seconds before the deadline), then one plain read in the last second.
+    expect(waits[0]).toBe(2);
+    expect(waits.length).toBeLessThanOrEqual(3);
+  });
+
   it('--junit writes the JUnit XML the server renders', async () => {
     const s = await server();
     const r = await run([...common(s), 'fail.wav', '--wait', '--junit', 'report.xml']);

@@ -1,7 +1,7 @@
 import { AnalyzeCaptureJob, QUEUES } from '@earmark/contracts';
 import { initOrm } from '@earmark/db';
-import { createGate, createJobProducer, createLinks, type Gate } from '@earmark/domain';
-import { ObjectStore, startBoss } from '@earmark/platform';
+import { ANALYSIS_THREAD_MODULE, createGate, createJobProducer, createLinks, type Gate } from '@earmark/domain';
+import { ObjectStore, createComputePool, startBoss, type ComputePool } from '@earmark/platform';
 import type { MikroORM } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
 import type { Logger } from 'pino';
@@ -18,6 +18,8 @@ export interface Worker {
   boss: PgBoss;
   gate: Gate;
   mailer: Mailer;
+  /** The analysis threads: one per slot (EARMARK_ANALYSIS_SLOTS). */
+  analysisPool: ComputePool;
   /** Subscribes one handler per queue (and the dead-letter queue) and starts the sweep. */
   start(): Promise<void>;
   stop(): Promise<void>;
@@ -28,7 +30,8 @@ export interface Worker {
  * and the gate's services, built once. `worker.ts` and in-process tests both use it.
  */
 export async function createWorker(env: WorkerEnv, logger: Logger): Promise<Worker> {
-  const orm = await initOrm({ url: env.EARMARK_DATABASE_URL, poolMax: env.EARMARK_WORKER_CONCURRENCY + 2 });
+  const slots = env.EARMARK_ANALYSIS_SLOTS;
+  const orm = await initOrm({ url: env.EARMARK_DATABASE_URL, poolMax: slots + 2 });
   const boss = await startBoss(env.EARMARK_DATABASE_URL, logger, {
     analyzeExpireSeconds: env.EARMARK_ANALYSIS_EXPIRE_S,
     retryDelaySeconds: env.EARMARK_JOB_RETRY_DELAY_S,
@@ -45,7 +48,10 @@ export async function createWorker(env: WorkerEnv, logger: Logger): Promise<Work
   const links = createLinks(env.EARMARK_PUBLIC_URL);
   const jobs = createJobProducer(boss);
   const gate = createGate({ objectStore, jobs, links, logger });
-  const analyzeDeps = { orm, objectStore, jobs, logger, links, maxAttempts: env.EARMARK_ANALYSIS_MAX_ATTEMPTS, delayMs: env.EARMARK_ANALYSIS_DELAY_MS };
+  // One thread per slot, started at once; fetching is sized to the slots, so the queue is only a margin.
+  const analysisPool = createComputePool({ module: ANALYSIS_THREAD_MODULE, threads: slots, minThreads: slots, maxQueue: slots, memoryMbPerThread: env.EARMARK_ANALYSIS_MEMORY_MB });
+  const analysis = { pool: analysisPool, memoryMb: env.EARMARK_ANALYSIS_MEMORY_MB };
+  const analyzeDeps = { orm, objectStore, jobs, logger, links, maxAttempts: env.EARMARK_ANALYSIS_MAX_ATTEMPTS, delayMs: env.EARMARK_ANALYSIS_DELAY_MS, analysis };
   let sweepTimer: NodeJS.Timeout | undefined;
 
   return {
@@ -53,11 +59,21 @@ export async function createWorker(env: WorkerEnv, logger: Logger): Promise<Work
     boss,
     gate,
     mailer,
+    analysisPool,
     async start() {
-      // One work() per unit of concurrency; each job gets its own EntityManager fork.
-      for (let i = 0; i < env.EARMARK_WORKER_CONCURRENCY; i++) {
-        await boss.work(QUEUES.analyzeCapture, { batchSize: 1, includeMetadata: true, pollingIntervalSeconds: 0.5 }, async ([job]) => {
-          if (job) await analyzeCapture(job, analyzeDeps);
+      // Each thread loads the engine now rather than during its first capture.
+      await Promise.all(Array.from({ length: slots }, () => analysisPool.run('warm', {})));
+      // One fetch loop per slot, one job each, so every slot takes the next job the moment it is free
+      // and the pool never has more analyses than threads. Each job gets its own EntityManager fork.
+      for (let i = 0; i < slots; i++) {
+        const loop: string = await boss.work(QUEUES.analyzeCapture, { batchSize: 1, includeMetadata: true, pollingIntervalSeconds: 0.5 }, async ([job]) => {
+          if (!job) return;
+          try {
+            await analyzeCapture(job, analyzeDeps);
+          } finally {
+            // Fetch again at once instead of after the rest of the polling interval.
+            boss.notifyWorker(loop);
+          }
         });
       }
       // Jobs that ran out of retries: the capture is judged `error`, never left pending.
@@ -71,7 +87,7 @@ export async function createWorker(env: WorkerEnv, logger: Logger): Promise<Work
       });
       // Impact of a mask revision on past builds (ImpactRun): one run at a time, progress in the row.
       await boss.work(QUEUES.evaluateImpact, { batchSize: 1, pollingIntervalSeconds: 1 }, async ([job]) => {
-        if (job) await evaluateImpact(job, { orm, objectStore, logger });
+        if (job) await evaluateImpact(job, { orm, objectStore, logger, analysis });
       });
       sweepTimer = setInterval(() => {
         sweep({ orm, jobs, logger, links, queuedAfterSeconds: env.EARMARK_SWEEP_INTERVAL_S * 2, analysisExpireSeconds: env.EARMARK_ANALYSIS_EXPIRE_S }).catch((error: unknown) => logger.warn({ err: error }, 'sweep failed'));
@@ -80,6 +96,7 @@ export async function createWorker(env: WorkerEnv, logger: Logger): Promise<Work
     async stop() {
       clearInterval(sweepTimer);
       await boss.stop({ graceful: true, wait: true, timeout: 10_000 });
+      await analysisPool.destroy();
       mailer.close();
       objectStore.destroy();
       await orm.close();

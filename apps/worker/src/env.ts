@@ -1,8 +1,18 @@
+import { availableParallelism } from 'node:os';
 import { z } from 'zod';
 
 const Env = z.object({
   EARMARK_DATABASE_URL: z.string().startsWith('postgres'),
-  EARMARK_WORKER_CONCURRENCY: z.coerce.number().int().min(1).max(16).default(2),
+  /** Analyses at once in this process, each in its own thread (one core each); default: one per core. */
+  EARMARK_ANALYSIS_SLOTS: z.coerce.number().int().min(1).max(64).optional(),
+  /** The old name of EARMARK_ANALYSIS_SLOTS, still read when the new one is unset. */
+  EARMARK_WORKER_CONCURRENCY: z.coerce.number().int().min(1).max(64).optional(),
+  /**
+   * Memory budget of one analysis slot (MiB): its thread's V8 heap limit, and the bound a capture's
+   * analysis is checked against before it starts. Fits a capture at the decoded-sample limit plus
+   * the thread's stimulus cache (docs/capture-formats.md, "Memory of one analysis").
+   */
+  EARMARK_ANALYSIS_MEMORY_MB: z.coerce.number().int().min(16).max(65536).default(3584),
   EARMARK_LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
   EARMARK_S3_ENDPOINT: z.url().default('http://127.0.0.1:4312'),
   EARMARK_S3_BUCKET: z.string().min(3).default('earmark-captures'),
@@ -25,7 +35,7 @@ const Env = z.object({
   /** Fault injection for recovery tests only: hold each analysis this long after it starts. */
   EARMARK_ANALYSIS_DELAY_MS: z.coerce.number().int().min(0).default(0),
 });
-export type WorkerEnv = z.infer<typeof Env>;
+export type WorkerEnv = Omit<z.infer<typeof Env>, 'EARMARK_ANALYSIS_SLOTS' | 'EARMARK_WORKER_CONCURRENCY'> & { EARMARK_ANALYSIS_SLOTS: number };
 
 /** The only place the worker reads process.env. */
 export function loadWorkerEnv(env: NodeJS.ProcessEnv = process.env): WorkerEnv {
@@ -33,5 +43,7 @@ export function loadWorkerEnv(env: NodeJS.ProcessEnv = process.env): WorkerEnv {
   if (!parsed.success) {
     throw new Error(`Invalid worker environment: ${parsed.error.issues.map((i) => `${i.path.join('.')}: ${i.message}`).join('; ')}`);
   }
-  return parsed.data;
+  const { EARMARK_ANALYSIS_SLOTS, EARMARK_WORKER_CONCURRENCY, ...rest } = parsed.data;
+  // Every core: the event loop only polls jobs and writes verdicts while the threads analyse.
+  return { ...rest, EARMARK_ANALYSIS_SLOTS: EARMARK_ANALYSIS_SLOTS ?? EARMARK_WORKER_CONCURRENCY ?? Math.max(1, availableParallelism()) };
 }

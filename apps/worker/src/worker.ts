@@ -7,7 +7,7 @@ const env = loadWorkerEnv();
 const logger = pino({ name: 'worker', level: env.EARMARK_LOG_LEVEL });
 const worker = await createWorker(env, logger);
 await worker.start();
-logger.info({ concurrency: env.EARMARK_WORKER_CONCURRENCY, engineVersion: ENGINE_VERSION }, 'worker ready');
+logger.info({ analysisSlots: env.EARMARK_ANALYSIS_SLOTS, analysisMemoryMb: env.EARMARK_ANALYSIS_MEMORY_MB, engineVersion: ENGINE_VERSION }, 'worker ready');
 
 async function shutdown(signal: string) {
   logger.info({ signal }, 'worker stopping');

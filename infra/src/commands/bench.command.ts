@@ -8,11 +8,19 @@ const BENCHES = {
   dsp: { script: 'packages/dsp/bench/run.ts', cwd: 'packages/dsp' },
   /** The builds API over 100k captures. */
   api: { script: 'tests/bench/builds-api.bench.ts', cwd: 'tests' },
+  /** API CPU per verdict wait answered (`?wait=30`) against once-a-second polls. */
+  wait: { script: 'tests/bench/verdict-wait.bench.ts', cwd: 'tests' },
+  /** /api/health latency while 16 sign-ins check passwords at once. */
+  signin: { script: 'tests/bench/sign-in-health.bench.ts', cwd: 'tests' },
+  /** API CPU per 1 MiB capture upload (auth, decode in a thread, store, rows, job). */
+  ingest: { script: 'apps/api/bench/ingest-cpu.bench.ts', cwd: 'apps/api' },
   /** The capture page's spectrum draw time in Chromium. */
   plot: { script: 'tests/bench/capture-plot.bench.ts', cwd: 'tests' },
+  /** The worker's analysis slots: verdicts/s with 1 and 2 slots against the engine alone. */
+  worker: { script: 'tests/bench/analysis-slots.bench.ts', cwd: 'tests' },
 } as const;
 
-/** `npm run bench [-- dsp|api]`: speed and memory targets, measured (docs/performance.md). */
+/** `npm run bench [-- dsp|api|plot|worker]`: speed and memory targets, measured (docs/performance.md). */
 export async function benchCommand(args: string[]): Promise<number> {
   const [which, ...rest] = args;
   const selected = which && which in BENCHES ? [which as keyof typeof BENCHES] : (Object.keys(BENCHES) as (keyof typeof BENCHES)[]);

@@ -61,7 +61,7 @@ export async function startCommand(): Promise<number> {
     EARMARK_API_PORT: String(settings.EARMARK_API_PORT),
     EARMARK_WEB_DIST: webDist,
     EARMARK_LOG_LEVEL: settings.EARMARK_LOG_LEVEL,
-    EARMARK_WORKER_CONCURRENCY: String(settings.EARMARK_WORKER_CONCURRENCY),
+    ...(settings.EARMARK_ANALYSIS_SLOTS ? { EARMARK_ANALYSIS_SLOTS: String(settings.EARMARK_ANALYSIS_SLOTS) } : {}),
     EARMARK_S3_ENDPOINT: s3.endpoint,
     EARMARK_S3_BUCKET: 'earmark-captures',
     EARMARK_SMTP_HOST: '127.0.0.1',

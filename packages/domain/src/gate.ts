@@ -1,6 +1,9 @@
 import type { ObjectStore } from '@earmark/platform';
 import type { Logger } from 'pino';
+import { inlineViewsCompute } from './compute/views-compute.js';
+import type { ViewsCompute } from './compute/views-tasks.js';
 import type { JobProducer } from './jobs/job-producer.js';
+import { StimulusFiles } from './services/stimulus-files.js';
 import { CaptureIngestService } from './services/capture-ingest.service.js';
 import { CaptureViewService } from './services/capture-view.service.js';
 import { CatalogService } from './services/catalog.service.js';
@@ -21,6 +24,8 @@ export interface GateDeps {
   jobs: JobProducer;
   links: Links;
   logger: Logger;
+  /** Where decoding, plots and WAV rendering run; without it, on the calling thread (`inlineViewsCompute`). */
+  compute?: ViewsCompute;
 }
 
 /**
@@ -32,7 +37,9 @@ export function createGate(deps: GateDeps) {
   const catalog = new CatalogService();
   const masks = new MaskService(links);
   const findings = new FindingsService();
-  const views = new CaptureViewService(objectStore, findings, links);
+  const compute = deps.compute ?? inlineViewsCompute();
+  const stimuli = new StimulusFiles(objectStore, compute);
+  const views = new CaptureViewService(objectStore, findings, links, compute, stimuli);
   return {
     links,
     jobs,
@@ -40,12 +47,13 @@ export function createGate(deps: GateDeps) {
     masks,
     findings,
     views,
+    stimuli,
     projects: new ProjectService(),
     subscriptions: new SubscriptionService(),
     tokens: new TokenService(),
     workflow: new MaskWorkflowService(masks, links),
     waivers: new WaiverService(links),
-    ingest: new CaptureIngestService({ objectStore, jobs, links, logger }),
+    ingest: new CaptureIngestService({ objectStore, jobs, links, logger, compute }),
     derivation: new MaskDerivationService(views.audioLoader),
     impact: new ImpactService(jobs),
     drift: new DriftService(),

@@ -7,7 +7,7 @@ export * from './stimulus/index.js';
 
 // FFT
 export { createComplexFftPlan, type ComplexFftPlan } from './fft/complex-fft.js';
-export { createRealFftPlan, type RealFftPlan } from './fft/real-fft.js';
+export { createRealFftPlan, releaseFftPlans, type RealFftPlan } from './fft/real-fft.js';
 // Spectra
 export { WINDOW_KINDS, applyWindow, coherentGain, createWindow, equivalentNoiseBandwidth, type WindowKind, type WindowSymmetry } from './spectrum/windows.js';
 export { extractZeroPhase, placeZeroPhase, zeroPhaseCentre } from './spectrum/zero-phase.js';

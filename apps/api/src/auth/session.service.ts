@@ -1,8 +1,9 @@
 import { randomUUID } from 'node:crypto';
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type { CurrentUser, Session } from '@earmark/contracts';
-import { BCRYPT_COST, Membership, RefreshSession, User, hashPassword, verifyPassword } from '@earmark/db';
+import { BCRYPT_COST, Membership, RefreshSession, User, hashPassword } from '@earmark/db';
 import type { TokenSigner } from '../auth/jwt.js';
+import { inlinePasswordChecks, type PasswordChecks } from './password-checks.js';
 
 import { AuthError } from '../errors.js';
 import { recordAudit } from '@earmark/domain';
@@ -23,7 +24,10 @@ const getDummyHash = () => (dummyHash ??= hashPassword('no such user', BCRYPT_CO
 
 /** Sign-in, refresh and sign-out over short-lived JWTs. */
 export class SessionService {
-  constructor(private readonly signer: TokenSigner) {}
+  constructor(
+    private readonly signer: TokenSigner,
+    private readonly passwords: PasswordChecks = inlinePasswordChecks,
+  ) {}
 
   /** Issues a session whose refresh token is the current one of `family`. */
   private async issue(em: EntityManager, user: User, family: RefreshSession): Promise<Session> {
@@ -39,7 +43,7 @@ export class SessionService {
   /** @throws AuthError with one message for unknown e-mail and wrong password alike. */
   async login(em: EntityManager, email: string, password: string): Promise<Session> {
     const user = await em.findOne(User, { email: email.toLowerCase() });
-    const ok = await verifyPassword(password, user?.passwordHash ?? (await getDummyHash()));
+    const ok = await this.passwords.verify(password, user?.passwordHash ?? (await getDummyHash()));
     if (!user || !ok || user.disabled) {
       recordAudit(em, { actor: `anonymous`, action: 'auth.login_failed', subject: `user:${email.toLowerCase()}` });
       await em.flush();

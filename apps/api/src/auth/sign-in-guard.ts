@@ -1,8 +1,11 @@
 import type { Request, RequestHandler } from 'express';
-import { ipKeyGenerator, rateLimit } from 'express-rate-limit';
+import { ipKeyGenerator, rateLimit, type Store } from 'express-rate-limit';
 import type { ApiEnv } from '../env.js';
 import { sendProblem } from '../http/problem.js';
 import { WorkGate } from './work-gate.js';
+
+/** Makes the counter store of one limiter; `name` tells the limiters' keys apart in a shared store. */
+export type LimitStoreFactory = (name: string) => Store;
 
 const FIFTEEN_MINUTES = 15 * 60 * 1000;
 
@@ -16,8 +19,9 @@ const tooMany = (detail: string, retryAfterS?: number): RequestHandler => (req, 
     retryAfterS === undefined ? {} : { 'Retry-After': String(retryAfterS) },
   );
 
-function limiter(opts: { windowMs: number; limit: number; failedOnly: boolean; key: (req: Request) => string; detail: string }): RequestHandler {
+function limiter(opts: { windowMs: number; limit: number; failedOnly: boolean; key: (req: Request) => string; detail: string; store: Store }): RequestHandler {
   return rateLimit({
+    store: opts.store,
     windowMs: opts.windowMs,
     limit: opts.limit,
     standardHeaders: 'draft-8',
@@ -60,16 +64,21 @@ function passwordWork(gate: WorkGate): RequestHandler {
 
 /**
  * Everything a sign-in passes before its password is checked: a global cap, failed attempts per
- * address, per e-mail and per both, then a bounded slot for the bcrypt work. Limiter state is held
- * in this process's memory; with several API processes each keeps its own counts.
+ * address, per e-mail and per both, then a bounded slot for the bcrypt work. The counts live where
+ * `stores` puts them: PostgreSQL in the API (shared-limit-store.ts), so every API process enforces
+ * the same limits; the password-work slots are per process (they bound this process's CPU).
  */
-export function signInGuard(env: ApiEnv, gate = new WorkGate(env.EARMARK_PASSWORD_WORK_CONCURRENCY, env.EARMARK_PASSWORD_WORK_QUEUE)): RequestHandler {
+export function signInGuard(
+  env: ApiEnv,
+  stores: LimitStoreFactory,
+  gate = new WorkGate(env.EARMARK_PASSWORD_WORK_CONCURRENCY, env.EARMARK_PASSWORD_WORK_QUEUE),
+): RequestHandler {
   const wait = 'Wait a few minutes before trying again.';
   return inSequence([
-    limiter({ windowMs: 60 * 1000, limit: env.EARMARK_LOGIN_GLOBAL_PER_MINUTE, failedOnly: false, key: () => 'all', detail: 'Too many sign-ins right now; try again in a minute.' }),
-    limiter({ windowMs: FIFTEEN_MINUTES, limit: env.EARMARK_LOGIN_RATE_LIMIT_PER_ADDRESS, failedOnly: true, key: (req) => `addr|${addressOf(req)}`, detail: wait }),
-    limiter({ windowMs: FIFTEEN_MINUTES, limit: env.EARMARK_LOGIN_RATE_LIMIT_PER_EMAIL, failedOnly: true, key: (req) => `email|${emailOf(req)}`, detail: wait }),
-    limiter({ windowMs: FIFTEEN_MINUTES, limit: env.EARMARK_LOGIN_RATE_LIMIT, failedOnly: true, key: (req) => `${addressOf(req)}|${emailOf(req)}`, detail: wait }),
+    limiter({ windowMs: 60 * 1000, limit: env.EARMARK_LOGIN_GLOBAL_PER_MINUTE, failedOnly: false, key: () => 'all', detail: 'Too many sign-ins right now; try again in a minute.', store: stores('global') }),
+    limiter({ windowMs: FIFTEEN_MINUTES, limit: env.EARMARK_LOGIN_RATE_LIMIT_PER_ADDRESS, failedOnly: true, key: (req) => `addr|${addressOf(req)}`, detail: wait, store: stores('address') }),
+    limiter({ windowMs: FIFTEEN_MINUTES, limit: env.EARMARK_LOGIN_RATE_LIMIT_PER_EMAIL, failedOnly: true, key: (req) => `email|${emailOf(req)}`, detail: wait, store: stores('email') }),
+    limiter({ windowMs: FIFTEEN_MINUTES, limit: env.EARMARK_LOGIN_RATE_LIMIT, failedOnly: true, key: (req) => `${addressOf(req)}|${emailOf(req)}`, detail: wait, store: stores('address-email') }),
     passwordWork(gate),
   ]);
 }

@@ -2,7 +2,12 @@ import type { ErrorRequestHandler, RequestHandler, Response } from 'express';
 import type { Logger } from 'pino';
 import { PROBLEM_CONTENT_TYPE, type Problem } from '@earmark/contracts';
 import { DomainError, ServiceUnavailableError, type DomainErrorKind } from '@earmark/domain';
+import { ComputePoolBusyError, ComputeTaskError, ComputeThreadError } from '@earmark/platform';
 import { HttpError } from '../errors.js';
+import { DATABASE_RETRY_AFTER_S, isDatabaseUnavailable } from './database-unavailable.js';
+
+/** Seconds a client waits before retrying work refused because every compute thread is busy. */
+const BUSY_RETRY_AFTER_S = 2;
 
 /** How each kind of domain error reads over HTTP: the only place that knows. */
 const DOMAIN_STATUS: Record<DomainErrorKind, { status: number; title: string }> = {
@@ -64,6 +69,30 @@ export function errorHandler(logger: Logger): ErrorRequestHandler {
       );
       return;
     }
+    if (err instanceof ComputePoolBusyError) {
+      sendProblem(
+        res,
+        { type: typeFor(503), title: 'Busy', status: 503, detail: 'Every compute thread is busy and the queue is full; retry shortly.', instance: req.originalUrl },
+        { 'Retry-After': String(BUSY_RETRY_AFTER_S) },
+      );
+      return;
+    }
+    if (err instanceof ComputeTaskError && err.taskErrorName === 'AudioDecodeError') {
+      const code = typeof err.props.code === 'string' ? err.props.code : undefined;
+      sendProblem(res, { type: typeFor(422), title: DOMAIN_STATUS.unsupported_capture.title, status: 422, detail: err.message, instance: req.originalUrl, ...(code ? { code } : {}) });
+      return;
+    }
+    if (err instanceof ComputeThreadError) {
+      logger.error({ err, method: req.method, url: req.originalUrl }, 'compute thread stopped');
+      sendProblem(res, {
+        type: typeFor(500),
+        title: 'Computation failed',
+        status: 500,
+        detail: 'The computation for this request stopped (it needed more memory than a compute thread may use); the server itself is fine.',
+        instance: req.originalUrl,
+      });
+      return;
+    }
     const parserError = err as BodyParserError;
     if (parserError.type === 'entity.parse.failed') {
       sendProblem(res, { type: typeFor(400), title: 'Malformed JSON', status: 400, detail: 'The request body is not valid JSON.', instance: req.originalUrl });
@@ -75,6 +104,15 @@ export function errorHandler(logger: Logger): ErrorRequestHandler {
     }
     if (parserError.expose && parserError.status && parserError.status < 500) {
       sendProblem(res, { type: typeFor(parserError.status), title: 'Bad request', status: parserError.status, detail: parserError.message ?? 'Bad request', instance: req.originalUrl });
+      return;
+    }
+    if (isDatabaseUnavailable(err)) {
+      logger.warn({ err, method: req.method, url: req.originalUrl }, 'database unavailable');
+      sendProblem(
+        res,
+        { type: typeFor(503), title: 'Service unavailable', status: 503, detail: 'The database cannot be reached right now. Retry shortly (an upload with the same Idempotency-Key is stored once).', instance: req.originalUrl },
+        { 'Retry-After': String(DATABASE_RETRY_AFTER_S) },
+      );
       return;
     }
     logger.error({ err, method: req.method, url: req.originalUrl }, 'unhandled error');

@@ -9,9 +9,9 @@ import {
   UpdateTargetRequest,
   UpdateTestCaseRequest,
 } from '@earmark/contracts';
-import { encodeWav, generateStimulus } from '@earmark/dsp';
 import { z } from 'zod';
-import { type CatalogService, parseWith, toTargetDto, toTestCaseDto } from '@earmark/domain';
+import { type CatalogService, parseWith, type StimulusFiles, toTargetDto, toTestCaseDto } from '@earmark/domain';
+import { sendWav } from '../http/send-wav.js';
 import { requireProject, type RouteContext, route, type RouteDef } from '../http/route.js';
 
 const TargetParams = z.object({ targetKey: TargetKey });
@@ -20,22 +20,16 @@ const CaseParams = z.object({ caseKey: TestCaseKey });
 export const LOUDNESS_CAUTION =
   'Test signals can be loud: playing them through loudspeakers or headphones can damage hearing and drivers. Start at a low level.';
 
-async function sendStimulus(ctx: RouteContext, catalog: CatalogService): Promise<void> {
+/** The stored stimulus of a test case (generated in a compute thread the first time), streamed. */
+async function sendStimulus(ctx: RouteContext, catalog: CatalogService, stimuli: StimulusFiles): Promise<void> {
   const { caseKey } = parseWith(CaseParams, ctx.req.params, 'params');
   const testCase = await catalog.getTestCase(ctx.em, requireProject(ctx), caseKey);
-  const spec = StimulusSpec.parse(testCase.stimulus);
-  const { sampleRate, channels } = generateStimulus(spec);
   // 32-bit float: what the rig plays matches the generated signal to about −150 dB, far below any mask.
-  const wav = encodeWav(channels, sampleRate, { encoding: 'float', bitsPerSample: 32 });
-  ctx.res
-    .status(200)
-    .type('audio/wav')
-    .setHeader('Content-Disposition', `attachment; filename="${testCase.key}.wav"`)
-    .setHeader('X-Earmark-Caution', LOUDNESS_CAUTION)
-    .send(Buffer.from(wav.buffer, wav.byteOffset, wav.byteLength));
+  const wav = await stimuli.open(StimulusSpec.parse(testCase.stimulus));
+  await sendWav(ctx.res, wav, { 'Content-Disposition': `attachment; filename="${testCase.key}.wav"`, 'X-Earmark-Caution': LOUDNESS_CAUTION });
 }
 
-export function catalogRoutes(catalog: CatalogService): RouteDef[] {
+export function catalogRoutes(catalog: CatalogService, stimuli: StimulusFiles): RouteDef[] {
   const presentOne = async (ctx: RouteContext, testCase: Parameters<typeof toTestCaseDto>[0]) => (await catalog.presentTestCases(ctx.em, [testCase]))[0]!;
   return [
     route({
@@ -130,7 +124,7 @@ export function catalogRoutes(catalog: CatalogService): RouteDef[] {
       access: { kind: 'project', permission: 'project.read' },
       summary: 'The exact stimulus a rig must play, as 32-bit float WAV (loud: see the caution header)',
       doc: { responseContentType: 'audio/wav' },
-      handle: (ctx) => sendStimulus(ctx, catalog),
+      handle: (ctx) => sendStimulus(ctx, catalog, stimuli),
     }),
     route({
       method: 'get',
@@ -138,7 +132,7 @@ export function catalogRoutes(catalog: CatalogService): RouteDef[] {
       access: { kind: 'ci', permission: 'build.read' },
       summary: 'The stimulus for rigs and pipelines (CI token)',
       doc: { responseContentType: 'audio/wav' },
-      handle: (ctx) => sendStimulus(ctx, catalog),
+      handle: (ctx) => sendStimulus(ctx, catalog, stimuli),
     }),
   ];
 }

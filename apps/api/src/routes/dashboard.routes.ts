@@ -18,6 +18,7 @@ import {
 } from '@earmark/contracts';
 import { z } from 'zod';
 import { buildMatrix, buildTrend, type Gate, queryBuilds } from '@earmark/domain';
+import { sendWav } from '../http/send-wav.js';
 import { requireProject, requireUser, route, type RouteDef } from '../http/route.js';
 import { LOUDNESS_CAUTION } from './catalog.routes.js';
 
@@ -97,7 +98,7 @@ export function dashboardRoutes(gate: Gate): RouteDef[] {
       async handle(ctx) {
         const { id, kind } = ctx.params;
         const wav = await views.audio(ctx.em, requireProject(ctx), id, kind);
-        ctx.res.type('audio/wav').setHeader('X-Earmark-Caution', LOUDNESS_CAUTION).setHeader('Cache-Control', 'private, max-age=300').send(Buffer.from(wav.buffer, wav.byteOffset, wav.byteLength));
+        await sendWav(ctx.res, wav, { 'X-Earmark-Caution': LOUDNESS_CAUTION, 'Cache-Control': 'private, max-age=300' });
       },
     }),
     route({

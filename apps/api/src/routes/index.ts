@@ -15,29 +15,34 @@ import { maskWorkflowRoutes } from './mask-workflow.routes.js';
 import { projectRoutes } from './projects.routes.js';
 import { subscriptionRoutes } from './subscription.routes.js';
 import { tokenRoutes } from './tokens.routes.js';
+import type { VerdictWaits } from '../waits/verdict-waits.js';
+import { UploadSlots } from '../http/upload-slots.js';
 
 export interface RouteDeps {
   gate: Gate;
   sessions: SessionService;
   loginLimiter: RequestHandler;
   maxCaptureBytes: number;
+  verdictWaits: VerdictWaits;
+  /** Capture uploads this process reads at once (EARMARK_MAX_CONCURRENT_UPLOADS). */
+  maxConcurrentUploads: number;
 }
 
 /** Every API route; the app mounts exactly these, and the role test walks them all. */
-export function allRoutes({ gate, sessions, loginLimiter, maxCaptureBytes }: RouteDeps): RouteDef[] {
+export function allRoutes({ gate, sessions, loginLimiter, maxCaptureBytes, verdictWaits, maxConcurrentUploads }: RouteDeps): RouteDef[] {
   return [
     ...healthRoutes(),
     ...authRoutes(sessions, loginLimiter),
     ...projectRoutes(gate.projects),
     ...subscriptionRoutes(gate.subscriptions),
     ...tokenRoutes(gate.tokens),
-    ...catalogRoutes(gate.catalog),
+    ...catalogRoutes(gate.catalog, gate.stimuli),
     ...maskRoutes(gate.masks, gate.catalog, gate.jobs),
     ...maskWorkflowRoutes(gate),
     ...maskDerivationRoutes(gate),
     ...adminRoutes(),
     ...dashboardRoutes(gate),
     ...ciBuildRoutes(gate.links),
-    ...ciCaptureRoutes(gate.ingest, gate.links, maxCaptureBytes),
+    ...ciCaptureRoutes(gate.ingest, gate.links, maxCaptureBytes, verdictWaits, new UploadSlots(maxConcurrentUploads)),
   ];
 }

@@ -11,7 +11,7 @@ import { createTestDatabase } from '@earmark/db/testing';
 import type { MikroORM } from '@mikro-orm/postgresql';
 import type { Express } from 'express';
 import { pino } from 'pino';
-import { createApiRuntime, createApp, loadApiEnv, type ApiEnv, type RouteDef } from '../../src/index.js';
+import { createApiRuntime, createApp, loadApiEnv, type ApiEnv, type ApiRuntime, type RouteDef } from '../../src/index.js';
 
 export const TEST_JWT_SECRET = 'test-secret-that-is-long-enough-for-hs256-0123456789';
 
@@ -24,6 +24,8 @@ export interface TestApi {
   routes: RouteDef[];
   objectStore: ObjectStore;
   boss: PgBoss;
+  /** The composition root itself (its compute pool, for tests that count tasks). */
+  runtime: ApiRuntime;
   /** The S3 fake; tests stop and restart it to simulate an outage. */
   s3: { fake: S3Fake; directory: string; stop(): Promise<void>; restart(): Promise<void> };
   /** Every log line the app wrote, for checks that secrets stay out of logs. */
@@ -91,6 +93,7 @@ export async function startTestApi(envOverrides: Record<string, string> = {}): P
     orm,
     objectStore,
     boss,
+    runtime,
     s3: {
       get fake() {
         return fake;

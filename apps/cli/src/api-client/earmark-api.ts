@@ -49,9 +49,18 @@ export class EarmarkApi {
     return { reused: status === 200, capture: data };
   }
 
-  async getCapture(id: string, deadline?: number): Promise<CaptureDto> {
-    const request = { method: 'GET' as const, path: `/api/v1/captures/${seg(id)}` };
-    return (await this.client.json(CaptureDto, deadline === undefined ? request : { ...request, deadline })).data;
+  /**
+   * The capture as it stands. With `waitS` the server holds the answer until the verdict is there
+   * or that many seconds (at most 30) pass, so one request replaces many polls.
+   */
+  async getCapture(id: string, options: { deadline?: number; waitS?: number } = {}): Promise<CaptureDto> {
+    const request = {
+      method: 'GET' as const,
+      path: `/api/v1/captures/${seg(id)}`,
+      ...(options.waitS ? { query: { wait: String(options.waitS) } } : {}),
+      ...(options.deadline === undefined ? {} : { deadline: options.deadline }),
+    };
+    return (await this.client.json(CaptureDto, request)).data;
   }
 
   /** The build with its verdict counts, captures and links. */

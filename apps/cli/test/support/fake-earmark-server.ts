@@ -38,6 +38,8 @@ export interface StoredCapture {
   /** The outcome the analysis will reach, or `never` for one that stays in the queue. */
   planned: VerdictOutcome | 'never';
   polls: number;
+  /** Date.now() at upload (for verdictAfterMs). */
+  uploadedAt: number;
 }
 
 export interface FakeOptions {
@@ -47,6 +49,8 @@ export interface FakeOptions {
   outcomeFor?: (sha256: string) => VerdictOutcome | 'never';
   /** GET polls a capture answers `analysing` before its verdict appears. */
   pollsUntilDone?: number;
+  /** Instead of counting polls: the verdict appears this long after the upload, waking a held `?wait=` request as the real server does. */
+  verdictAfterMs?: number;
   /** Answer the first N requests to this route with 503 and this Retry-After. */
   unavailable?: { route: 'builds' | 'captures'; times: number; retryAfter: string };
 }
@@ -196,15 +200,43 @@ export async function startFakeEarmarkServer(options: FakeOptions = {}): Promise
       verdict: null,
       links: { self: `${base}/api/v1/captures/${id}`, build: `${base}/api/v1/projects/${project}/builds/${sha}`, dashboard: `${base}/projects/${project}/builds/${sha}/captures/${id}` },
     });
-    captures.set(key, { key, dto, bytes: body, planned: options.outcomeFor?.(sha256) ?? 'pass', polls: 0 });
+    captures.set(key, { key, dto, bytes: body, planned: options.outcomeFor?.(sha256) ?? 'pass', polls: 0, uploadedAt: Date.now() });
     sendJson(res, 202, dto);
   }
 
-  function pollCapture(id: string, res: ServerResponse): void {
+  /** `?wait=N` as the real server reads it: whole seconds 0–30, else 422. */
+  function waitSeconds(query: URLSearchParams): number {
+    const raw = query.get('wait');
+    if (raw === null) return 0;
+    if (!/^\d+$/.test(raw) || Number(raw) > 30) {
+      violations.push(`wait=${raw} is not whole seconds from 0 to 30`);
+      refuse(422, 'Invalid request', `wait must be whole seconds from 0 to 30; got ${raw}`);
+    }
+    return Number(raw);
+  }
+
+  function pollCapture(id: string, query: URLSearchParams, res: ServerResponse): void {
     const stored = [...captures.values()].find((c) => c.dto.id === id);
     if (!stored) return refuse(404, 'Not found', `There is no capture ${id}.`);
+    const waitS = waitSeconds(query);
+    if (waitS > 0 && stored.dto.verdict === null && stored.planned !== 'never' && options.verdictAfterMs !== undefined) {
+      // Held until the verdict is due or the wait ends, whichever comes first.
+      const dueIn = stored.uploadedAt + options.verdictAfterMs - Date.now();
+      if (dueIn > 0) {
+        setTimeout(() => answerPoll(stored, res), Math.min(dueIn, waitS * 1000)).unref();
+        return;
+      }
+    } else if (waitS > 0 && stored.planned === 'never') {
+      setTimeout(() => answerPoll(stored, res), waitS * 1000).unref();
+      return;
+    }
+    answerPoll(stored, res);
+  }
+
+  function answerPoll(stored: StoredCapture, res: ServerResponse): void {
     stored.polls += 1;
-    if (stored.planned !== 'never' && stored.polls >= (options.pollsUntilDone ?? 1) && stored.dto.verdict === null) {
+    const due = options.verdictAfterMs === undefined ? stored.polls >= (options.pollsUntilDone ?? 1) : Date.now() >= stored.uploadedAt + options.verdictAfterMs;
+    if (stored.planned !== 'never' && due && stored.dto.verdict === null) {
       const outcome = stored.planned;
       stored.dto = CaptureDto.parse({ ...stored.dto, status: outcome === 'error' ? 'error' : 'done', verdict: verdictFor(outcome) });
     } else if (stored.dto.verdict === null) {
@@ -249,7 +281,7 @@ export async function startFakeEarmarkServer(options: FakeOptions = {}): Promise
         const sha = parts[6] ?? '';
         if (is(/^POST \/api\/v1\/projects\/[^/]+\/builds$/)) return upsertBuild(project, body, req, res);
         if (is(/^POST \/api\/v1\/projects\/[^/]+\/builds\/[^/]+\/captures$/)) return uploadCapture(project, sha, url.searchParams, body, req, res);
-        if (is(/^GET \/api\/v1\/captures\/[^/]+$/)) return pollCapture(parts[4] ?? '', res);
+        if (is(/^GET \/api\/v1\/captures\/[^/]+$/)) return pollCapture(parts[4] ?? '', url.searchParams, res);
         if (is(/^GET \/api\/v1\/projects\/[^/]+\/builds\/[^/]+\/junit\.xml$/)) {
           if (!builds.has(sha)) refuse(404, 'Not found', `There is no build ${sha}.`);
           res.writeHead(200, { 'content-type': 'application/xml' }).end(junitXml(sha));

@@ -1,11 +1,12 @@
 import { AnalyzeCaptureJob } from '@earmark/contracts';
 import { Build, Capture, MaskRevision } from '@earmark/db';
-import { ObjectStoreUnavailableError, type ObjectStore } from '@earmark/platform';
+import { ComputePoolBusyError, ComputeThreadError, ObjectStoreUnavailableError, type ObjectStore } from '@earmark/platform';
 import { ENGINE_VERSION } from '@earmark/dsp';
 import { LockMode, type MikroORM } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
 import type { Logger } from 'pino';
-import { computeBuildStatus, errorJudgement, maskInForce, judgeCapture, noteDrift, recordVerdict, type JobProducer, type RecordDeps, type RecordResult } from '@earmark/domain';
+import { computeBuildStatus, errorJudgement, maskInForce, noteDrift, recordVerdict, type JobProducer, type RecordDeps, type RecordResult } from '@earmark/domain';
+import { judgeInThread, type AnalysisSlots } from './judge-in-thread.js';
 
 export interface AnalyzeDeps {
   orm: MikroORM;
@@ -16,12 +17,15 @@ export interface AnalyzeDeps {
   maxAttempts: number;
   /** Fault injection for recovery tests (EARMARK_ANALYSIS_DELAY_MS); 0 in production. */
   delayMs: number;
+  /** Where the engine runs: never on this event loop, which also serves the other slots' jobs. */
+  analysis: AnalysisSlots;
 }
 
 /**
- * One capture: load, analyse against the mask in force, record the verdict. Transient
- * faults (object store, database) throw so pg-boss retries with backoff; from the last
- * attempt on, the capture is judged `error` so no job stays stuck.
+ * One capture: load, analyse against the mask in force (in an analysis thread), record the
+ * verdict. Transient faults (object store, database, a busy pool or a thread that crashed)
+ * throw so pg-boss retries with backoff; from the last attempt on, the capture is judged
+ * `error` so no job stays stuck.
  */
 export async function analyzeCapture(job: PgBoss.JobWithMetadata<unknown>, deps: AnalyzeDeps): Promise<void> {
   const { captureId, maskRevisionId } = AnalyzeCaptureJob.parse(job.data);
@@ -59,9 +63,13 @@ export async function analyzeCapture(job: PgBoss.JobWithMetadata<unknown>, deps:
     return;
   }
   const started = performance.now();
-  const judgement = judgeCapture(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength), capture, mask);
+  const { judgement, run } = await judgeInThread(bytes, capture, mask, deps.analysis).catch((error: unknown) => {
+    if (error instanceof ComputePoolBusyError || error instanceof ComputeThreadError) log.warn({ err: error }, 'analysis thread unavailable; the job will retry');
+    throw error;
+  });
   const result = await recordVerdict(em, captureId, mask, judgement, deps.links);
-  log.info({ outcome: judgement.outcome, ms: Math.round(performance.now() - started), written: result.written }, 'capture judged');
+  const thread = run ? { threadStartedAt: run.startedAt, threadEndedAt: run.endedAt, threadMs: run.endedAt - run.startedAt, stimulus: run.stimulus } : {};
+  log.info({ outcome: judgement.outcome, ms: Math.round(performance.now() - started), ...thread, written: result.written }, 'capture judged');
   const driftMails = result.written && judgement.outcome === 'pass' ? await noteDrift(deps.orm.em.fork(), captureId, deps.links).catch((error: unknown) => {
     // Drift mail is advisory: a failure here must not fail (and re-run) a recorded verdict.
     log.warn({ err: error }, 'drift check failed');

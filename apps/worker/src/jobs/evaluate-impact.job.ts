@@ -1,15 +1,18 @@
 import { EvaluateImpactJob, aggregateVerdicts, type ImpactBuildRow, type ImpactCaptureRow, type ImpactCheckRow, type ImpactResult, type VerdictFlip, type VerdictOutcome } from '@earmark/contracts';
 import { Capture, CheckResult, ImpactRun, type MaskRevision } from '@earmark/db';
-import { ObjectStoreUnavailableError, type ObjectStore } from '@earmark/platform';
+import { ComputePoolBusyError, ComputeThreadError, ObjectStoreUnavailableError, type ObjectStore } from '@earmark/platform';
 import type { EntityManager, MikroORM } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
 import type { Logger } from 'pino';
-import { capturesGovernedBy, errorJudgement, judgeCapture, type Judgement, newestVerdict, recentBuilds } from '@earmark/domain';
+import { capturesGovernedBy, errorJudgement, type Judgement, newestVerdict, recentBuilds } from '@earmark/domain';
+import { judgeInThread, type AnalysisSlots } from './judge-in-thread.js';
 
 export interface ImpactDeps {
   orm: MikroORM;
   objectStore: ObjectStore;
   logger: Logger;
+  /** The analysis threads the capture jobs use: an impact run waits for a free slot like any capture. */
+  analysis: AnalysisSlots;
 }
 
 /** Progress is written every this many captures (and at the end). */
@@ -137,9 +140,9 @@ export async function evaluateImpact(job: PgBoss.Job<unknown>, deps: ImpactDeps)
       let draft: Judgement;
       try {
         const bytes = await deps.objectStore.get(capture.objectKey);
-        draft = judgeCapture(new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength), capture, mask);
+        draft = (await judgeInThread(bytes, capture, mask, deps.analysis)).judgement;
       } catch (error) {
-        if (error instanceof ObjectStoreUnavailableError) throw error;
+        if (error instanceof ObjectStoreUnavailableError || error instanceof ComputePoolBusyError || error instanceof ComputeThreadError) throw error;
         draft = errorJudgement(`The stored capture cannot be read: ${(error as Error).message}`, '');
       }
       evaluated.push({ capture, current: await currentVerdict(em, capture), draft });
@@ -149,8 +152,8 @@ export async function evaluateImpact(job: PgBoss.Job<unknown>, deps: ImpactDeps)
     await update(deps.orm, run.id, { state: 'done', progress: evaluated.length, result: result as unknown as Record<string, unknown>, finishedAt: new Date() });
     log.info({ captures: evaluated.length, passToFail: result.summary.passToFail, failToPass: result.summary.failToPass }, 'impact run done');
   } catch (error) {
-    if (error instanceof ObjectStoreUnavailableError) {
-      log.warn({ err: error }, 'object store unavailable; the impact run will retry');
+    if (error instanceof ObjectStoreUnavailableError || error instanceof ComputePoolBusyError || error instanceof ComputeThreadError) {
+      log.warn({ err: error }, 'object store or analysis threads unavailable; the impact run will retry');
       throw error;
     }
     log.error({ err: error }, 'impact run failed');

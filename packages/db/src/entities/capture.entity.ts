@@ -46,5 +46,10 @@ export const CaptureSchema = new EntitySchema<Capture, BaseEntity>({
   // An Idempotency-Key names one capture per project, never a duplicate.
   uniques: [{ properties: ['project', 'idempotencyKey'] }],
   // The builds table's target filter, and "last passing capture" look-ups.
-  indexes: [{ name: 'capture_target_build_idx', properties: ['target', 'build'] }, { name: 'capture_test_case_target_idx', properties: ['testCase', 'target'] }],
+  indexes: [
+    { name: 'capture_target_build_idx', properties: ['target', 'build'] },
+    { name: 'capture_test_case_target_idx', properties: ['testCase', 'target'] },
+    // A project's waiting captures in order: the job producer's fair priority counts them (domain jobs/fair-priority.ts).
+    { name: 'capture_queued_project_idx', expression: `create index "capture_queued_project_idx" on "capture" ("project_id", "created_at", "id") where "status" = 'queued'` },
+  ],
 });

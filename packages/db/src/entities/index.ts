@@ -11,6 +11,7 @@ import { MembershipSchema } from './membership.entity.js';
 import { NotificationSchema } from './notification.entity.js';
 import { ProjectSchema } from './project.entity.js';
 import { RefreshSessionSchema } from './refresh-session.entity.js';
+import { SignInLimitSchema } from './sign-in-limit.entity.js';
 import { TargetSchema } from './target.entity.js';
 import { TestCaseSchema } from './test-case.entity.js';
 import { UserSchema } from './user.entity.js';
@@ -31,6 +32,7 @@ export * from './membership.entity.js';
 export * from './notification.entity.js';
 export * from './project.entity.js';
 export * from './refresh-session.entity.js';
+export * from './sign-in-limit.entity.js';
 export * from './target.entity.js';
 export * from './test-case.entity.js';
 export * from './user.entity.js';
@@ -41,5 +43,5 @@ export const entitySchemas = [
   UserSchema, ProjectSchema, MembershipSchema, TargetSchema, TestCaseSchema, MaskRevisionSchema,
   BuildSchema, CaptureSchema, VerdictSchema, CheckResultSchema, FindingSchema, CommentSchema,
   WaiverSchema, ApiTokenSchema, AuditEventSchema, NotificationSchema, ImpactRunSchema,
-  RefreshSessionSchema,
+  RefreshSessionSchema, SignInLimitSchema,
 ];

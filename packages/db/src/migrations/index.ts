@@ -11,6 +11,7 @@ import { Migration20261202180300 } from './migration-20261202180300.js';
 import { Migration20261202180400 } from './migration-20261202180400.js';
 import { Migration20261202190000 } from './migration-20261202190000.js';
 import { Migration20261202190100 } from './migration-20261202190100.js';
+import { Migration20261202220200 } from './migration-20261202220200.js';
 
 /** Every migration, oldest first. Add each new file here (see DEVELOPERS.md). */
 export const migrationsList: MigrationObject[] = [
@@ -26,4 +27,5 @@ export const migrationsList: MigrationObject[] = [
   { name: 'migration-20261202180400', class: Migration20261202180400 },
   { name: 'migration-20261202190000', class: Migration20261202190000 },
   { name: 'migration-20261202190100', class: Migration20261202190100 },
+  { name: 'migration-20261202220200', class: Migration20261202220200 },
 ];

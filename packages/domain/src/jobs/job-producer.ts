@@ -1,8 +1,11 @@
 import { QUEUES, type AnalyzeCaptureJob, type EvaluateImpactJob } from '@earmark/contracts';
+import { QUEUED_AHEAD_SQL, REEVALUATION_PRIORITY, freshCapturePriority } from './fair-priority.js';
 
-/** The one method of a queue the domain needs (pg-boss's `send`). */
+/** What the domain needs of a queue (pg-boss's `send` and `getDb`). */
 export interface QueueSender {
-  send(name: string, data: object): Promise<string | null>;
+  send(name: string, data: object, options?: { priority?: number }): Promise<string | null>;
+  /** The database the queue lives in (the application's): read for each project's backlog. */
+  getDb(): { executeSql(text: string, values?: unknown[]): Promise<{ rows: unknown[] }> };
 }
 
 /**
@@ -18,8 +21,14 @@ export interface JobProducer {
 }
 
 export function createJobProducer(queue: QueueSender): JobProducer {
+  // Fair across projects (fair-priority.ts): a project's n-th waiting capture yields to any project's first.
+  const priorityOf = async (job: AnalyzeCaptureJob): Promise<number> => {
+    if (job.maskRevisionId) return REEVALUATION_PRIORITY;
+    const { rows } = await queue.getDb().executeSql(QUEUED_AHEAD_SQL, [job.captureId]);
+    return freshCapturePriority((rows[0] as { ahead?: number } | undefined)?.ahead ?? 0);
+  };
   return {
-    analyzeCapture: (job) => queue.send(QUEUES.analyzeCapture, job),
+    analyzeCapture: async (job) => queue.send(QUEUES.analyzeCapture, job, { priority: await priorityOf(job) }),
     evaluateImpact: (job) => queue.send(QUEUES.evaluateImpact, job),
     sendMail: (reason) => queue.send(QUEUES.sendNotifications, { reason }),
   };

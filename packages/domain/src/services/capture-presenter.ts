@@ -9,6 +9,7 @@ import { verdictWaiver, waiverMarkOf } from '../judging/waiver-coverage.js';
 export async function latestVerdicts(em: EntityManager, captures: Capture[]): Promise<Map<string, VerdictDto>> {
   if (captures.length === 0) return new Map();
   const newest = await newestVerdicts(em, captures.map((c) => c.id), ['maskRevision', 'previous', 'previous.maskRevision']);
+  if (newest.size === 0) return new Map(); // no verdict yet (a fresh upload): no check results to look for
   const previousIds = [...newest.values()].flatMap((v) => (v.previous ? [v.previous.id] : []));
   const checks = await em.find(CheckResult, { verdict: { $in: [...newest.values()].map((v) => v.id) } }, { orderBy: { checkId: 'asc' } });
   const previousChecks = previousIds.length ? await em.find(CheckResult, { verdict: { $in: previousIds } }) : [];

@@ -1,16 +1,25 @@
+import { Readable } from 'node:stream';
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { CapturePlot, JudgingSettings, MaskCheck, type AudioKind, type CaptureDetail, type MagnitudeEnvelopeCheck, type PlotQuery } from '@earmark/contracts';
-import { Capture, type MaskRevision, type Project } from '@earmark/db';
+import { JudgingSettings, MaskCheck, type AudioKind, type CaptureDetail, type CapturePlot, type PlotQuery } from '@earmark/contracts';
+import { Capture, type MaskRevision, type Project, type Verdict } from '@earmark/db';
 import { type ObjectStore } from '@earmark/platform';
-import { ENGINE_VERSION, MaskCheckError, captureCurves, encodeWav, listeningResidual, maskPlotData, stimulusAsPlayed, type DecodedAudio } from '@earmark/dsp';
-import { NotFoundError } from '../errors.js';
+import { decodeRefusalOf, plotRefusalOf } from '../compute/compute-errors.js';
+import { ownBuffer } from '../compute/views-compute.js';
+import type { ViewsCompute } from '../compute/views-tasks.js';
+import { NotFoundError, UnsupportedCaptureError } from '../errors.js';
 import { storedSettingsFor } from '../judging/judging-settings.js';
+import { plotKey, readStoredPlot, writeStoredPlot, type PlotIdentity, type StoredPlot } from '../plots/plot-store.js';
+import { plotChannel, type CapturePlotCore } from '../plots/render-capture-plot.js';
+import { SingleFlight } from '../util/single-flight.js';
+import { storedFormatOf } from '../judging/judge-capture.js';
 import { CaptureAudioLoader } from './capture-audio.js';
+import type { StimulusFiles, WavStream } from './stimulus-files.js';
 import { buildSummary } from './builds-query.service.js';
 import { presentCaptures } from './capture-presenter.js';
 import type { FindingsService } from './findings.service.js';
 import type { Links } from './links.js';
-import { newestVerdict, newestVerdictSql } from '../repositories/verdicts.js';
+import { newestVerdict } from '../repositories/verdicts.js';
+import { lastPassingCapture } from '../repositories/last-passing.js';
 
 type LoadedCapture = Capture;
 
@@ -19,10 +28,15 @@ export class CaptureViewService {
   /** Shared with other services that decode stored captures (mask derivation). */
   readonly audioLoader: CaptureAudioLoader;
 
+  /** Plots being computed in this process, so two views of a new capture compute it once. */
+  private readonly computing = new SingleFlight<StoredPlot>();
+
   constructor(
     private readonly objectStore: ObjectStore,
     private readonly findings: FindingsService,
     private readonly links: Links,
+    private readonly compute: ViewsCompute,
+    private readonly stimuli: StimulusFiles,
   ) {
     this.audioLoader = new CaptureAudioLoader(objectStore);
   }
@@ -48,16 +62,8 @@ export class CaptureViewService {
     return JudgingSettings.parse(verdict?.settings ?? storedSettingsFor(capture.testCase, verdict?.maskRevision ?? null));
   }
 
-  private async lastPassing(em: EntityManager, capture: Capture): Promise<CaptureDetail['lastPassing']> {
-    const rows = await em.getConnection().execute<{ id: string; sha: string; created_at: Date }[]>(
-      `select c.id, b.sha, c.created_at from capture c join build b on b.id = c.build_id
-        where c.test_case_id = ? and c.target_id = ? and b.created_at < ? and c.status = 'done'
-          and ${newestVerdictSql('c.id')} = 'pass'
-        order by b.created_at desc limit 1`,
-      [capture.testCase.id, capture.target.id, capture.build.createdAt],
-    );
-    const row = rows[0];
-    return row ? { captureId: row.id, buildSha: row.sha, createdAt: new Date(row.created_at).toISOString() } : null;
+  private lastPassing(em: EntityManager, capture: Capture): Promise<CaptureDetail['lastPassing']> {
+    return lastPassingCapture(em, { projectId: capture.project.id, testCaseId: capture.testCase.id, targetId: capture.target.id, before: capture.build.createdAt });
   }
 
   async detail(em: EntityManager, project: Project, id: string, me: Parameters<FindingsService['list']>[3]): Promise<CaptureDetail> {
@@ -76,108 +82,75 @@ export class CaptureViewService {
     };
   }
 
-  private audioOf(capture: Capture): Promise<DecodedAudio> {
-    return this.audioLoader.load(capture);
-  }
-
   /**
-   * Plot data, cached in the object store: the key names everything the answer depends on
-   * (capture, mask revision judged against, engine version, columns, channel, overlay
-   * capture), so a new verdict or a newer passing capture simply misses the cache. The
-   * cache is shared by every API process and is only an optimisation: any failure to read
-   * or write it falls back to computing.
+   * Plot data, stored in the object store under a key naming everything it depends on (capture,
+   * mask revision judged against, engine version, columns, channel): a view reads the stored plot
+   * and computes (in a compute thread) only on a miss. A capture that cannot be plotted stores
+   * its refusal, so the next view answers the same 422 at once. The last-passing overlay is the
+   * other capture's own stored plot, looked up only after the main plot is in hand.
    */
   async plot(em: EntityManager, project: Project, id: string, q: PlotQuery): Promise<CapturePlot> {
     const capture = await this.load(em, project, id);
-    const mask = await this.judgedMask(em, capture);
-    const passing = q.overlay === 'last-passing' ? await this.lastPassing(em, capture) : null;
-    const key = `plot-cache/${capture.id}/${ENGINE_VERSION}-${mask?.id ?? 'none'}-${q.columns}-${q.channel ?? 'd'}-${passing?.captureId ?? 'none'}.json`;
-    const cached = await this.objectStore
-      .get(key)
-      .then((bytes) => CapturePlot.parse(JSON.parse(bytes.toString('utf8'))))
-      .catch(() => null);
-    if (cached) return cached;
-    const plot = await this.computePlot(em, project, id, q);
-    void this.objectStore.put(key, Buffer.from(JSON.stringify(plot)), 'application/json').catch(() => {});
-    return plot;
+    const main = await this.storedPlot(capture, await newestVerdict(em, capture, ['maskRevision']), q.columns, q.channel);
+    const overlay = q.overlay === 'last-passing' ? await this.overlayFor(em, project, capture, main, q.columns) : null;
+    return { ...main, overlay };
   }
 
-  private async computePlot(em: EntityManager, project: Project, id: string, q: PlotQuery): Promise<CapturePlot> {
-    const capture = await this.load(em, project, id);
-    const audio = await this.audioOf(capture);
-    const { stimulus: spec, analysis: settings, channelMap } = await this.judgedSettings(em, capture);
-    const hasSignal = spec.kind !== 'silence';
-    const reference = hasSignal ? stimulusAsPlayed(spec) : undefined;
-    const channel = Math.min(q.channel ?? channelMap[0] ?? 0, audio.channels.length - 1);
-    const mask = await this.judgedMask(em, capture);
-    const envelope = (mask?.checks ?? []).map((c) => MaskCheck.parse(c)).find((c): c is MagnitudeEnvelopeCheck => c.kind === 'magnitude-envelope') ?? null;
-    const nyquist = audio.sampleRate / 2;
-    // Without an envelope check, draw the plain spectrum over the audio band (a limit far out of view).
-    const check: MagnitudeEnvelopeCheck =
-      envelope ??
-      MaskCheck.parse({ id: 'spectrum', kind: 'magnitude-envelope', measure: reference ? 'transfer' : 'level', upper: [{ hz: 20, db: 400 }, { hz: Math.min(20000, nyquist * 0.98), db: 400 }] }) as MagnitudeEnvelopeCheck;
-    const transferMethod = settings.transferMethod ?? (spec.kind === 'sweep' ? 'deconvolution' : 'h1');
-    const input = { capture: audio, ...(reference ? { reference } : {}), transferMethod } as const;
-    // One capture context: the spectrum, phase and group delay drawn are what the verdict used.
-    // When no transfer function can be estimated (the capture misses part of the stimulus), the
-    // verdict says why; the page still draws the capture's own level spectrum.
-    let drawn: MagnitudeEnvelopeCheck | null = envelope;
-    let plotted = check;
-    let curves: ReturnType<typeof captureCurves>;
+  private async overlayFor(em: EntityManager, project: Project, capture: Capture, main: CapturePlotCore, columns: number): Promise<CapturePlot['overlay']> {
+    const passing = await this.lastPassing(em, capture);
+    if (!passing) return null;
+    const other = await this.load(em, project, passing.captureId);
     try {
-      curves = captureCurves(input, check, { columns: q.columns, channel });
+      const plot = await this.storedPlot(other, await newestVerdict(em, other, ['maskRevision']), columns, main.channel);
+      // Curves in different units (one drew its level, the other its transfer) do not share an axis.
+      return plot.unit === main.unit ? { captureId: other.id, buildSha: passing.buildSha, spectrum: plot.spectrum } : null;
     } catch (error) {
-      if (!(error instanceof MaskCheckError)) throw error;
-      drawn = null;
-      const level = MaskCheck.parse({ id: 'spectrum', kind: 'magnitude-envelope', measure: 'level', upper: [{ hz: 20, db: 400 }, { hz: Math.min(20000, nyquist * 0.98), db: 400 }] }) as MagnitudeEnvelopeCheck;
-      plotted = level;
-      curves = captureCurves(input, level, { columns: q.columns, channel });
-    }
-    const data = curves.spectrum;
-    const series = (d: typeof data) => ({ hz: d.hz, min: d.measuredMin, max: d.measuredMax });
-
-    let overlay: CapturePlot['overlay'] = null;
-    const passing = q.overlay === 'last-passing' ? await this.lastPassing(em, capture) : null;
-    if (passing) {
-      const other = await this.load(em, project, passing.captureId);
       // The last pass is drawn the same way; when it cannot be, the page simply has no overlay.
-      const otherData = await this.audioOf(other).then((audio) => maskPlotData({ ...input, capture: audio }, plotted, { columns: q.columns, channel: Math.min(channel, other.channelCount - 1) })).catch((error: unknown) => {
-        if (error instanceof MaskCheckError) return null;
-        throw error;
-      });
-      if (otherData) overlay = { captureId: other.id, buildSha: passing.buildSha, spectrum: series(otherData) };
+      if (error instanceof UnsupportedCaptureError || error instanceof NotFoundError) return null;
+      throw error;
     }
-
-    let worst: CapturePlot['worst'] = null;
-    for (const r of data.failingRegions) if (!worst || r.worstMarginDb < worst.margin) worst = { hz: r.worstHz, db: r.worstDb, margin: r.worstMarginDb };
-    return {
-      channel,
-      checkId: drawn ? drawn.id : null,
-      unit: data.unit,
-      spectrum: series(data),
-      upper: drawn ? data.upper : null,
-      lower: drawn ? data.lower : null,
-      failingRegions: data.failingRegions.map((r) => ({ fromHz: r.fromHz, toHz: r.toHz, worstHz: r.worstHz, worstMargin: r.worstMarginDb })),
-      worst,
-      overlay,
-      phase: curves.phase,
-      groupDelay: curves.groupDelay,
-      waveform: curves.waveform,
-      engineVersion: ENGINE_VERSION,
-    };
   }
 
-  /** WAV (32-bit float) of the capture, its stimulus, or the residual: what the firmware changed. */
-  async audio(em: EntityManager, project: Project, id: string, kind: AudioKind): Promise<Uint8Array> {
+  /** The stored plot of a capture, computed and stored first on a miss. @throws UnsupportedCaptureError (stored refusal) */
+  private async storedPlot(capture: Capture, verdict: Verdict | null, columns: number, askedChannel: number | undefined): Promise<CapturePlotCore> {
+    const settings = JudgingSettings.parse(verdict?.settings ?? storedSettingsFor(capture.testCase, verdict?.maskRevision ?? null));
+    const mask = verdict?.maskRevision ?? null;
+    const identity: PlotIdentity = { captureId: capture.id, maskRevisionId: mask?.id ?? null, columns, channel: plotChannel(askedChannel, settings, capture.channelCount) };
+    const stored = (await readStoredPlot(this.objectStore, identity)) ?? (await this.computing.run(plotKey(identity), () => this.computePlot(capture, identity, settings, mask)));
+    if ('refusal' in stored) throw new UnsupportedCaptureError(stored.refusal.detail, stored.refusal.code);
+    return stored.plot;
+  }
+
+  private async computePlot(capture: Capture, identity: PlotIdentity, settings: JudgingSettings, mask: MaskRevision | null): Promise<StoredPlot> {
+    const bytes = await this.audioLoader.bytes(capture);
+    const checks = (mask?.checks ?? []).map((c) => MaskCheck.parse(c));
+    let stored: StoredPlot;
+    try {
+      const input = { bytes, format: storedFormatOf(capture), settings, checks, columns: identity.columns, channel: identity.channel };
+      stored = { plot: await this.compute.run('renderPlot', input, ownBuffer(bytes)) };
+    } catch (error) {
+      const refusal = plotRefusalOf(error, capture.id);
+      if (!refusal) throw error;
+      stored = { refusal };
+    }
+    await writeStoredPlot(this.objectStore, identity, stored);
+    return stored;
+  }
+
+  /**
+   * WAV (32-bit float) of the capture, its stimulus, or the residual: what the firmware changed.
+   * The stimulus is the stored file; the others are rendered in a compute thread.
+   */
+  async audio(em: EntityManager, project: Project, id: string, kind: AudioKind): Promise<WavStream> {
     const capture = await this.load(em, project, id);
     const spec = (await this.judgedSettings(em, capture)).stimulus;
-    if (kind === 'stimulus') {
-      const s = stimulusAsPlayed(spec);
-      return encodeWav(s.channels, s.sampleRate, { encoding: 'float', bitsPerSample: 32 });
-    }
-    const audio = await this.audioOf(capture);
-    if (kind === 'capture') return encodeWav(audio.channels, audio.sampleRate, { encoding: 'float', bitsPerSample: 32 });
-    const residual = listeningResidual(audio, spec.kind === 'silence' ? null : stimulusAsPlayed(spec), spec.kind);
-    return encodeWav(residual, audio.sampleRate, { encoding: 'float', bitsPerSample: 32 });
+    if (kind === 'stimulus') return this.stimuli.open(spec);
+    const bytes = await this.audioLoader.bytes(capture);
+    const wav = await this.compute
+      .run('renderCaptureWav', { bytes, format: storedFormatOf(capture), kind, stimulus: kind === 'residual' ? spec : null }, ownBuffer(bytes))
+      .catch((error: unknown) => {
+        throw decodeRefusalOf(error, (m) => `Capture ${capture.id} cannot be analysed: ${m}`) ?? error;
+      });
+    return { body: Readable.from([Buffer.from(wav.buffer, wav.byteOffset, wav.byteLength)]), size: wav.byteLength };
   }
 }

@@ -56,6 +56,14 @@ export function createRealFftPlan(size: number): RealFftPlan {
 const PLAN_CACHE_SIZES = 6;
 const planCache = new Map<number, RealFftPlan>();
 
+/**
+ * Drops every cached plan. For a long-lived thread after a large task: the plans of a long
+ * capture hold hundreds of MiB that would otherwise stay resident until six other sizes push them out.
+ */
+export function releaseFftPlans(): void {
+  planCache.clear();
+}
+
 function buildRealFftPlan(size: number): RealFftPlan {
   const half = size / 2;
   const bins = half + 1;

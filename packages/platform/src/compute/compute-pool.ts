@@ -13,6 +13,8 @@ export interface ComputePoolOptions {
   maxQueue: number;
   /** V8 old-generation limit per thread: one task that outgrows it kills only its thread. */
   memoryMbPerThread: number;
+  /** Threads started at once and kept while idle (default 1): a pool whose every thread is always wanted. */
+  minThreads?: number;
 }
 
 /** The pool's queue is full: the caller should answer "busy, retry" rather than wait. */
@@ -35,6 +37,13 @@ export class ComputeTaskError extends Error {
 /** A thread that died (out of memory, crash) rather than a task that threw. */
 export class ComputeThreadError extends Error {
   override readonly name = 'ComputeThreadError';
+  constructor(
+    message: string,
+    /** The thread outgrew `memoryMbPerThread` (rather than crashing or being stopped). */
+    readonly outOfMemory = false,
+  ) {
+    super(message);
+  }
 }
 
 export interface ComputePool {
@@ -56,7 +65,7 @@ export function createComputePool(options: ComputePoolOptions): ComputePool {
   const module = options.module.href;
   const piscina = new Piscina({
     filename: fileURLToPath(new URL('./compute-thread.mjs', import.meta.url)),
-    minThreads: 1,
+    minThreads: Math.min(options.minThreads ?? 1, options.threads),
     maxThreads: options.threads,
     maxQueue: options.maxQueue,
     idleTimeout: 60_000,
@@ -76,7 +85,7 @@ export function createComputePool(options: ComputePoolOptions): ComputePool {
         if (error instanceof ComputeTaskError) throw error;
         const message = error instanceof Error ? error.message : String(error);
         if (/queue is at limit/i.test(message)) throw new ComputePoolBusyError(`All ${options.threads} compute threads are busy and ${options.maxQueue} tasks wait.`);
-        throw new ComputeThreadError(`A compute thread stopped during "${task}": ${message}`);
+        throw new ComputeThreadError(`A compute thread stopped during "${task}": ${message}`, (error as { code?: unknown }).code === 'ERR_WORKER_OUT_OF_MEMORY');
       } finally {
         running--;
       }

@@ -55,10 +55,23 @@ export class ObjectStore {
     });
   }
 
-  async put(key: string, body: Buffer | Uint8Array, contentType: string, metadata: Record<string, string> = {}): Promise<void> {
-    await this.wrap(() =>
-      this.client.send(new PutObjectCommand({ Bucket: this.config.bucket, Key: key, Body: body, ContentType: contentType, ContentLength: body.byteLength, Metadata: metadata })),
-    );
+  /**
+   * @param options.payloadSha256 the body's SHA-256 (hex) when the caller has it already (computed
+   *   off the event loop): the request signature uses it instead of hashing the body here again
+   */
+  async put(key: string, body: Buffer | Uint8Array, contentType: string, metadata: Record<string, string> = {}, options: { payloadSha256?: string } = {}): Promise<void> {
+    const command = new PutObjectCommand({ Bucket: this.config.bucket, Key: key, Body: body, ContentType: contentType, ContentLength: body.byteLength, Metadata: metadata });
+    const { payloadSha256 } = options;
+    if (payloadSha256) {
+      command.middlewareStack.add(
+        (next) => (args) => {
+          (args.request as { headers: Record<string, string> }).headers['x-amz-content-sha256'] = payloadSha256;
+          return next(args);
+        },
+        { step: 'build', name: 'earmarkKnownPayloadHash' },
+      );
+    }
+    await this.wrap(() => this.client.send(command));
   }
 
   /** @throws ObjectMissingError when there is no such object; ObjectStoreUnavailableError when the store is down */
@@ -71,6 +84,20 @@ export class ObjectStore {
       const chunks: Buffer[] = [];
       for await (const chunk of res.Body as Readable) chunks.push(Buffer.from(chunk as Uint8Array));
       return Buffer.concat(chunks);
+    });
+  }
+
+  /**
+   * The object as a stream with its length, for answers that must not hold it in memory.
+   * @throws ObjectMissingError when there is no such object; ObjectStoreUnavailableError when the store is down
+   */
+  async getStream(key: string): Promise<{ body: Readable; size: number }> {
+    return this.wrap(async () => {
+      const res = await this.client.send(new GetObjectCommand({ Bucket: this.config.bucket, Key: key })).catch((error: unknown) => {
+        if (error instanceof S3ServiceException && (error.name === 'NoSuchKey' || error.$metadata.httpStatusCode === 404)) throw new ObjectMissingError(`no object ${key}`);
+        throw error;
+      });
+      return { body: res.Body as Readable, size: res.ContentLength ?? 0 };
     });
   }
 

@@ -1,0 +1,40 @@
+/**
+ * The worker's analysis thread: judges one capture per task from plain data (the stored bytes,
+ * transferred, and the mask revision's settings and checks), so N threads keep N cores busy
+ * while the worker's event loop only polls jobs and writes verdicts. Loaded by
+ * `createComputePool` (packages/platform).
+ */
+import { threadId } from 'node:worker_threads';
+import { JudgingSettings, MaskDocument } from '@earmark/contracts';
+import { decodeCapture } from '@earmark/dsp';
+import { defineComputeTasks } from '@earmark/platform';
+import { analysisFailed, judgeAudio, type JudgeRequest } from '../judging/judge-capture.js';
+import { analysisMemoryRefusal } from '../judging/analysis-memory.js';
+import { StimulusCache } from '../judging/stimulus-cache.js';
+import type { AnalysisTasks, JudgeOutcome } from './analysis-tasks.js';
+
+/** One per thread: captures of a test case share their stimulus. */
+const stimuli = new StimulusCache();
+
+const tasks = {
+  judge(input: AnalysisTasks['judge']['input']): JudgeOutcome {
+    const startedAt = Date.now();
+    let stimulus: JudgeOutcome['stimulus'] = null;
+    const done = (judgement: JudgeOutcome['judgement']): JudgeOutcome => ({ judgement, stimulus, startedAt, endedAt: Date.now() });
+    try {
+      const request: JudgeRequest = { format: input.request.format, settings: JudgingSettings.parse(input.request.settings), mask: MaskDocument.parse(input.request.mask) };
+      const audio = decodeCapture(input.bytes, request.format);
+      const refusal = analysisMemoryRefusal(audio.frames * audio.channels.length, input.memoryBudgetMb);
+      if (refusal) return done(refusal);
+      const played = stimuli.get(request.settings.stimulus);
+      stimulus = played.cached ? 'cached' : 'built';
+      // `audio` stays in scope for the whole task: later work on the decoded capture belongs here.
+      return done(judgeAudio(audio, played.stimulus, request));
+    } catch (error) {
+      return done(analysisFailed(error));
+    }
+  },
+  warm: (): number => threadId,
+};
+
+export const { judge, warm } = defineComputeTasks(tasks);
