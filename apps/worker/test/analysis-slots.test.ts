@@ -23,7 +23,10 @@ const checks: MaskCheckInput[] = [
 
 /** Stored objects in memory: the object store as the job reads it. */
 const objects = new Map<string, Buffer>();
-const objectStore = { get: async (key: string) => Buffer.from(objects.get(key)!) } as unknown as ObjectStore;
+const objectStore = {
+  get: async (key: string) => Buffer.from(objects.get(key)!),
+  put: async (key: string, bytes: Buffer) => void objects.set(key, bytes),
+} as unknown as ObjectStore;
 const jobs: JobProducer = { analyzeCapture: async (_: AnalyzeCaptureJob) => 'job', evaluateImpact: async (_: EvaluateImpactJob) => 'job', sendMail: async () => 'job' };
 const pools: ComputePool[] = [];
 afterAll(() => Promise.all(pools.map((p) => p.destroy())));
@@ -112,6 +115,21 @@ describe('analysis slots', () => {
     const measured = await Promise.all(ids.slice(0, 3).map(async (id) => (await seeded.orm.em.fork().find(CheckResult, { verdict: await verdictOf(id) }, { orderBy: { checkId: 'asc' } })).map((c) => [c.checkId, c.measured])));
     expect(measured[1]).toEqual(measured[0]);
     expect(measured[2]).toEqual(measured[0]);
+  }, 60_000);
+
+  it("stores the capture page's default plot from the thread, drawn against the mask that judged it", async () => {
+    const { deps } = depsWith(1, 1024);
+    const id = await queuedCapture(shortSweep);
+    await analyzeCapture(jobFor(id), deps);
+    const verdict = await verdictOf(id);
+    const key = [...objects.keys()].find((k) => k.startsWith(`plot-cache/${id}/`));
+    expect(key).toContain(`-${verdict.maskRevision!.id}-`);
+    const stored = JSON.parse(objects.get(key!)!.toString('utf8')) as { plot: { checkId: string; unit: string; spectrum: { hz: number[] }; worst: unknown } };
+    // The envelope check drawn, in dB, over the audio band; a passing capture has no worst failing point.
+    expect(stored.plot.checkId).toBe('response');
+    expect(stored.plot.unit).toBe('dB');
+    expect(stored.plot.spectrum.hz.length).toBeGreaterThan(100);
+    expect(stored.plot.worst).toBeNull();
   }, 60_000);
 
   it('judges error, once, a capture whose thread outgrows its memory budget', async () => {

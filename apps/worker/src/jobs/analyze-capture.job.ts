@@ -5,7 +5,7 @@ import { ENGINE_VERSION } from '@earmark/dsp';
 import { LockMode, type MikroORM } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
 import type { Logger } from 'pino';
-import { computeBuildStatus, errorJudgement, maskInForce, noteDrift, recordVerdict, type JobProducer, type RecordDeps, type RecordResult } from '@earmark/domain';
+import { computeBuildStatus, errorJudgement, writeStoredPlot, maskInForce, noteDrift, recordVerdict, type JobProducer, type RecordDeps, type RecordResult } from '@earmark/domain';
 import { judgeInThread, type AnalysisSlots } from './judge-in-thread.js';
 
 export interface AnalyzeDeps {
@@ -68,6 +68,8 @@ export async function analyzeCapture(job: PgBoss.JobWithMetadata<unknown>, deps:
     throw error;
   });
   const result = await recordVerdict(em, captureId, mask, judgement, deps.links);
+  // After the verdict: a plot stored for a verdict that never committed would only be unused. Advisory, like drift.
+  if (run?.plot) await writeStoredPlot(deps.objectStore, run.plot.identity, run.plot.stored);
   const thread = run ? { threadStartedAt: run.startedAt, threadEndedAt: run.endedAt, threadMs: run.endedAt - run.startedAt, stimulus: run.stimulus } : {};
   log.info({ outcome: judgement.outcome, ms: Math.round(performance.now() - started), ...thread, written: result.written }, 'capture judged');
   const driftMails = result.written && judgement.outcome === 'pass' ? await noteDrift(deps.orm.em.fork(), captureId, deps.links).catch((error: unknown) => {

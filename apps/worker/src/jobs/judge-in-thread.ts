@@ -21,7 +21,8 @@ export async function judgeInThread(bytes: Buffer, capture: Capture, mask: MaskR
   if (isJudgement(request)) return { judgement: request, run: null };
   const view = new Uint8Array(bytes.buffer, bytes.byteOffset, bytes.byteLength);
   try {
-    const run = await slots.pool.run<JudgeOutcome>('judge', { bytes: view, request, memoryBudgetMb: slots.memoryMb }, ownBuffer(view));
+    const plotFor = { captureId: capture.id, maskRevisionId: mask?.id ?? null };
+    const run = await slots.pool.run<JudgeOutcome>('judge', { bytes: view, request, memoryBudgetMb: slots.memoryMb, plotFor }, ownBuffer(view));
     return { judgement: run.judgement, run };
   } catch (error) {
     if (error instanceof ComputeThreadError && error.outOfMemory) return { judgement: analysisOutOfMemory(slots.memoryMb), run: null };

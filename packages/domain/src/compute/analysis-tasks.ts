@@ -1,5 +1,6 @@
 import type { JudgeRequest } from '../judging/judge-capture.js';
 import type { Judgement } from '../judging/judgement.js';
+import type { PlotIdentity, StoredPlot } from '../plots/plot-store.js';
 
 /** What the `judge` task answers: the judgement, whether the stimulus came from the thread's cache, and when the thread worked on it. */
 export interface JudgeOutcome {
@@ -9,12 +10,14 @@ export interface JudgeOutcome {
   /** Wall-clock ms (Date.now()) in the thread: queue wait and overlap show in the logs. */
   startedAt: number;
   endedAt: number;
+  /** The capture page's default plot, drawn from the audio the thread already decoded; the worker stores it once the verdict is recorded. */
+  plot: { identity: PlotIdentity; stored: StoredPlot } | null;
 }
 
 /** The tasks of `analysis.thread.ts`: their inputs and answers, shared by the worker and the thread. */
 export interface AnalysisTasks {
   /** Decode, stimulus (cached per thread), mask evaluation. `bytes` should be transferred. */
-  judge: { input: { bytes: Uint8Array; request: JudgeRequest; memoryBudgetMb: number }; output: JudgeOutcome };
+  judge: { input: { bytes: Uint8Array; request: JudgeRequest; memoryBudgetMb: number; plotFor?: { captureId: string; maskRevisionId: string | null } }; output: JudgeOutcome };
   /** Loads the thread's modules, so the first capture does not pay for it. Answers the thread id. */
   warm: { input: Record<string, never>; output: number };
 }

@@ -11,6 +11,7 @@ import { defineComputeTasks } from '@earmark/platform';
 import { analysisFailed, judgeAudio, type JudgeRequest } from '../judging/judge-capture.js';
 import { analysisMemoryRefusal } from '../judging/analysis-memory.js';
 import { StimulusCache } from '../judging/stimulus-cache.js';
+import { renderDefaultPlot } from '../plots/plot-store.js';
 import type { AnalysisTasks, JudgeOutcome } from './analysis-tasks.js';
 
 /** One per thread: captures of a test case share their stimulus. */
@@ -20,7 +21,8 @@ const tasks = {
   judge(input: AnalysisTasks['judge']['input']): JudgeOutcome {
     const startedAt = Date.now();
     let stimulus: JudgeOutcome['stimulus'] = null;
-    const done = (judgement: JudgeOutcome['judgement']): JudgeOutcome => ({ judgement, stimulus, startedAt, endedAt: Date.now() });
+    let plot: JudgeOutcome['plot'] = null;
+    const done = (judgement: JudgeOutcome['judgement']): JudgeOutcome => ({ judgement, stimulus, startedAt, endedAt: Date.now(), plot });
     try {
       const request: JudgeRequest = { format: input.request.format, settings: JudgingSettings.parse(input.request.settings), mask: MaskDocument.parse(input.request.mask) };
       const audio = decodeCapture(input.bytes, request.format);
@@ -28,8 +30,10 @@ const tasks = {
       if (refusal) return done(refusal);
       const played = stimuli.get(request.settings.stimulus);
       stimulus = played.cached ? 'cached' : 'built';
-      // `audio` stays in scope for the whole task: later work on the decoded capture belongs here.
-      return done(judgeAudio(audio, played.stimulus, request));
+      const judgement = judgeAudio(audio, played.stimulus, request);
+      // The capture page's first view reads this plot instead of decoding and transforming again on the API.
+      if (input.plotFor) plot = renderDefaultPlot({ ...input.plotFor, settings: request.settings, checks: request.mask.checks, audio, played: played.stimulus });
+      return done(judgement);
     } catch (error) {
       return done(analysisFailed(error));
     }

@@ -3,6 +3,7 @@ import { ENGINE_VERSION, type DecodedAudio } from '@earmark/dsp';
 import type { ObjectStore } from '@earmark/platform';
 import { z } from 'zod';
 import { plotChannel, renderCapturePlot, type CapturePlotCore } from './render-capture-plot.js';
+import type { PlayedStimulus } from '../judging/stimulus-cache.js';
 
 /**
  * A stored plot: the curves, or why the capture cannot be drawn — a refusal is stored too, so
@@ -51,6 +52,8 @@ export interface DefaultPlotInput {
   settings: JudgingSettings;
   checks: readonly MaskCheck[];
   audio: DecodedAudio;
+  /** The stimulus as played, when the caller already holds it. */
+  played?: PlayedStimulus;
 }
 
 /**
@@ -65,7 +68,7 @@ export function renderDefaultPlot(input: DefaultPlotInput): { identity: PlotIden
     channel: plotChannel(undefined, input.settings, input.audio.channels.length),
   };
   try {
-    return { identity, stored: { plot: renderCapturePlot(input.audio, input.settings, input.checks, identity) } };
+    return { identity, stored: { plot: renderCapturePlot(input.audio, input.settings, input.checks, identity, input.played) } };
   } catch (error) {
     return { identity, stored: { refusal: { code: 'cannot-plot', detail: `Capture ${input.captureId} cannot be plotted: ${error instanceof Error ? error.message : String(error)}` } } };
   }

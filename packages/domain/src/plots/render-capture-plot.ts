@@ -1,5 +1,6 @@
 import { MaskCheck, type CapturePlot, type JudgingSettings, type MagnitudeEnvelopeCheck } from '@earmark/contracts';
 import { ENGINE_VERSION, MaskCheckError, captureCurves, stimulusAsPlayed, type DecodedAudio } from '@earmark/dsp';
+import type { PlayedStimulus } from '../judging/stimulus-cache.js';
 
 /** What one plot is drawn for: the columns asked for and the channel already resolved. */
 export interface PlotShape {
@@ -24,9 +25,16 @@ const farLimit = (measure: 'transfer' | 'level', nyquist: number): MagnitudeEnve
  * One capture context: the spectrum, phase and group delay drawn are what the verdict used.
  * @throws EngineInputError / RangeError when the engine cannot draw this audio at all
  */
-export function renderCapturePlot(audio: DecodedAudio, judged: JudgingSettings, checks: readonly MaskCheck[], shape: PlotShape): CapturePlotCore {
+export function renderCapturePlot(
+  audio: DecodedAudio,
+  judged: JudgingSettings,
+  checks: readonly MaskCheck[],
+  shape: PlotShape,
+  // The analysis thread passes the stimulus it already holds (its cache) rather than playing it again.
+  played?: PlayedStimulus,
+): CapturePlotCore {
   const { stimulus: spec, analysis: settings } = judged;
-  const reference = spec.kind !== 'silence' ? stimulusAsPlayed(spec) : undefined;
+  const reference = spec.kind !== 'silence' ? (played ?? stimulusAsPlayed(spec)) : undefined;
   const channel = Math.min(shape.channel, audio.channels.length - 1);
   const envelope = checks.find((c): c is MagnitudeEnvelopeCheck => c.kind === 'magnitude-envelope') ?? null;
   const nyquist = audio.sampleRate / 2;
