@@ -115,10 +115,11 @@ describe('dashboard API', () => {
     expect(plot.waveform.seconds.length).toBeLessThanOrEqual(512);
 
     // The plot is stored under a key naming what it depends on (capture, mask revision, engine,
-    // columns, channel); the overlay is the passing capture's own stored plot.
+    // columns, channel): the worker stored the default one (1024 columns) with the verdict, the
+    // view added the 512-column one; the overlay is the passing capture's own stored plot.
     const mask = (await call<CaptureDetail>(`/api/projects/alpha-dsp/captures/${failing.id}`)).body.mask!;
-    expect(await stack.objectStore.list(`plot-cache/${failing.id}/`)).toEqual([`plot-cache/${failing.id}/${plot.engineVersion}-${mask.id}-512-0.json`]);
-    expect(await stack.objectStore.list(`plot-cache/${passing.id}/`)).toHaveLength(1);
+    expect(await stack.objectStore.list(`plot-cache/${failing.id}/`)).toEqual([1024, 512].map((columns) => `plot-cache/${failing.id}/${plot.engineVersion}-${mask.id}-${columns}-0.json`));
+    expect(await stack.objectStore.list(`plot-cache/${passing.id}/`)).toHaveLength(2);
     const again = await call<unknown>(`/api/projects/alpha-dsp/captures/${failing.id}/plot?columns=512`);
     expect(again.body).toEqual(res.body);
   });

@@ -130,7 +130,7 @@ describe('earmark analyze', () => {
       expect(run.code).toBe(3);
       expect(run.stderr.trim().split('\n')).toHaveLength(1);
     }
-  });
+  }, 20_000); // three CLI processes, each starting Node and the engine
 
   it("a usage error (unknown option) exits 3: commander's line, then the help", async () => {
     const usage = await earmark('analyze', 'any.wav', '--frobnicate');

@@ -28,6 +28,8 @@ export interface WaitResult {
 
 /** An answer this much sooner than the hold asked for did not wait for anything. */
 const EARLY_SLACK_MS = 500;
+/** Time kept for a held answer to travel back before the deadline. */
+const ANSWER_MARGIN_MS = 250;
 
 /**
  * Waits for every capture's verdict with one held request per capture at a time
@@ -54,8 +56,9 @@ export async function waitForVerdicts(api: EarmarkApi, uploaded: CaptureDto[], o
     while (!isSettled(captures[i]!)) {
       const left = deadline - Date.now();
       if (left <= 0) return;
-      // Whole seconds that end before the deadline; under a second left, one last plain read.
-      const waitS = Math.min(maxHoldS, Math.floor(left / 1000));
+      // Whole seconds that end before the deadline, leaving the answer time to arrive; under a
+      // second left, one last plain read.
+      const waitS = Math.min(maxHoldS, Math.max(0, Math.floor((left - ANSWER_MARGIN_MS) / 1000)));
       const asked = Date.now();
       captures[i] = await api.getCapture(captures[i]!.id, { deadline, waitS });
       report();
