@@ -59,6 +59,8 @@ const Env = z.object({
    * it ends only its thread.
    */
   EARMARK_API_COMPUTE_MEMORY_MB: z.coerce.number().int().min(64).default(1536),
+  /** Decoded samples a plot other than the worker-drawn default may be drawn from on the API (packages/domain views-tasks.ts). */
+  EARMARK_API_PLOT_MAX_SAMPLES: z.coerce.number().int().min(48_000).default(2 ** 22),
   /** Base URL of the dashboard, for links in API answers, JUnit XML and e-mail. */
   EARMARK_PUBLIC_URL: z.url().default('http://127.0.0.1:4310'),
 });

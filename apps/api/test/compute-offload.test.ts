@@ -158,6 +158,18 @@ describe('plots are stored and read', () => {
 });
 
 describe('the event loop stays free', () => {
+  it('refuses, without drawing, a view the worker did not draw of a capture past the plot sample budget', async () => {
+    // 2 × 2.4 M samples > 2^22 (EARMARK_API_PLOT_MAX_SAMPLES' default): minutes and gigabytes at the limit of what uploads accept.
+    const { id } = await upload('f000002', wav([tone(50, 997), tone(50, 1200)]));
+    const tasks = countTasks();
+    const res = await plot(id, '?overlay=none&columns=512');
+    expect(res.status).toBe(422);
+    expect(res.contentType).toContain('application/problem+json');
+    expect(res.body).toMatchObject({ code: 'plot-too-large' });
+    expect(res.body.detail).toMatch(/has 4,800,000 samples; plots other than the default one are drawn for captures of up to 4,194,304 samples/);
+    expect(tasks()).toEqual([]);
+  }, 60_000);
+
   it('answers /api/health quickly while a long capture is plotted', async () => {
     const { id } = await upload('f000001', wav([tone(40, 997), tone(40, 1200)]));
     const took = await healthWhile(plot(id, '?overlay=none').then((res) => expect(res.status, res.text).toBe(200)));

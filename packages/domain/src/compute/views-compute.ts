@@ -2,8 +2,8 @@ import { ComputeTaskError, type ComputePool } from '@earmark/platform';
 import type { ViewsCompute, ViewsTasks } from './views-tasks.js';
 
 /** The views' tasks on a compute pool built from `VIEWS_THREAD_MODULE`. */
-export function poolViewsCompute(pool: Pick<ComputePool, 'run'>): ViewsCompute {
-  return { run: (task, input, transfer) => pool.run(task, input, transfer) };
+export function poolViewsCompute(pool: Pick<ComputePool, 'run'>, options: { maxPlotSamples?: number } = {}): ViewsCompute {
+  return { run: (task, input, transfer) => pool.run(task, input, transfer), ...options };
 }
 
 type WrappedTask = (input: unknown) => Promise<{ ok: true; value: unknown } | { ok: false; error: { name: string; message: string; props: Record<string, unknown> } }>;

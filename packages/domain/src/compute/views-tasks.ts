@@ -27,4 +27,13 @@ export const VIEWS_THREAD_MODULE = new URL('./views.thread.ts', import.meta.url)
 export interface ViewsCompute {
   /** `transfer` moves buffers the caller gives up (see `ownBuffer`) instead of copying them. */
   run<K extends keyof ViewsTasks>(task: K, input: ViewsTasks[K]['input'], transfer?: ArrayBuffer[]): Promise<ViewsTasks[K]['output']>;
+  /**
+   * Decoded samples (frames × channels) a plot may be drawn from here. Larger captures get their
+   * default plot from the worker's analysis thread only (it has the memory for them); other
+   * views of them are refused rather than held for minutes at gigabytes.
+   */
+  maxPlotSamples?: number;
 }
+
+/** 2^22 samples (87 s mono or 44 s stereo at 48 kHz): about 350 MB at the ~84 bytes a sample drawing takes. */
+export const DEFAULT_MAX_PLOT_SAMPLES = 2 ** 22;

@@ -5,7 +5,7 @@ import { Capture, type MaskRevision, type Project, type Verdict } from '@earmark
 import { type ObjectStore } from '@earmark/platform';
 import { decodeRefusalOf, plotRefusalOf } from '../compute/compute-errors.js';
 import { ownBuffer } from '../compute/views-compute.js';
-import type { ViewsCompute } from '../compute/views-tasks.js';
+import { DEFAULT_MAX_PLOT_SAMPLES, type ViewsCompute } from '../compute/views-tasks.js';
 import { NotFoundError, UnsupportedCaptureError } from '../errors.js';
 import { storedSettingsFor } from '../judging/judging-settings.js';
 import { plotKey, readStoredPlot, writeStoredPlot, type PlotIdentity, type StoredPlot } from '../plots/plot-store.js';
@@ -122,6 +122,17 @@ export class CaptureViewService {
   }
 
   private async computePlot(capture: Capture, identity: PlotIdentity, settings: JudgingSettings, mask: MaskRevision | null): Promise<StoredPlot> {
+    const samples = capture.frames * capture.channelCount;
+    const maxSamples = this.compute.maxPlotSamples ?? DEFAULT_MAX_PLOT_SAMPLES;
+    if (samples > maxSamples) {
+      // Not stored: the worker's default plot may still arrive under another key, and a raised limit should apply at once.
+      return {
+        refusal: {
+          code: 'plot-too-large',
+          detail: `Capture ${capture.id} has ${samples.toLocaleString('en-US')} samples; plots other than the default one are drawn for captures of up to ${maxSamples.toLocaleString('en-US')} samples (EARMARK_API_PLOT_MAX_SAMPLES).`,
+        },
+      };
+    }
     const bytes = await this.audioLoader.bytes(capture);
     const checks = (mask?.checks ?? []).map((c) => MaskCheck.parse(c));
     let stored: StoredPlot;
