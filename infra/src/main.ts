@@ -1,4 +1,5 @@
 import { benchCommand } from './commands/bench.command.js';
+import { buildCommand } from './commands/build.command.js';
 import { dbCommand } from './commands/db.command.js';
 import { reliabilityCommand } from './commands/reliability.command.js';
 import { startCommand } from './commands/start.command.js';
@@ -8,6 +9,7 @@ import { testCommand } from './commands/test.command.js';
 const [command, ...args] = process.argv.slice(2);
 const commands: Record<string, (args: string[]) => Promise<number>> = {
   bench: benchCommand,
+  build: () => buildCommand(),
   db: dbCommand,
   reliability: reliabilityCommand,
   start: () => startCommand(),

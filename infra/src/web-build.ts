@@ -16,14 +16,14 @@ function newestMtime(dir: string): number {
 }
 
 /** Builds the web app with Vite when dist/ is missing or older than its sources. */
-export function ensureWebBuilt(log: (l: string) => void): void {
+export function ensureWebBuilt(log: (l: string) => void, opts: { force?: boolean } = {}): void {
   const index = path.join(webDist, 'index.html');
   const sources = Math.max(
     newestMtime(path.join(webDir, 'src')),
     ...['index.html', 'vite.config.ts'].map((f) => fs.statSync(path.join(webDir, f)).mtimeMs),
     newestMtime(path.join(repoRoot, 'packages', 'contracts', 'src')),
   );
-  if (fs.existsSync(index) && fs.statSync(index).mtimeMs >= sources) return;
+  if (!opts.force && fs.existsSync(index) && fs.statSync(index).mtimeMs >= sources) return;
   log('Building the web app (vite build)…');
   run(process.execPath, [path.join(webDir, 'node_modules', 'vite', 'bin', 'vite.js'), 'build', '--logLevel', 'warn'], { cwd: webDir });
 }

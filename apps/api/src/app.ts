@@ -14,6 +14,7 @@ import { allRoutes } from './routes/index.js';
 import { SessionService } from './auth/session.service.js';
 import { signInGuard } from './auth/sign-in-guard.js';
 import { SharedLimitStore } from './auth/shared-limit-store.js';
+import { requestMetrics } from './metrics/request-metrics.js';
 
 export interface EarmarkApp {
   app: express.Express;
@@ -21,8 +22,10 @@ export interface EarmarkApp {
 }
 
 /** Builds the Express app; tests boot it on an ephemeral port. */
-export function createApp({ orm, env, logger, gate, verdictWaits, limiterPool, passwords }: ApiRuntime): EarmarkApp {
+export function createApp({ orm, env, logger, gate, verdictWaits, limiterPool, passwords, apiMetrics, health }: ApiRuntime): EarmarkApp {
   const app = express();
+  // First, so every answer is counted, those of the middleware below included.
+  app.use(requestMetrics(apiMetrics));
   app.disable('x-powered-by');
   // Off unless configured: otherwise any client could pick its own address for the limiters.
   app.set('trust proxy', env.EARMARK_TRUST_PROXY);
@@ -51,7 +54,7 @@ export function createApp({ orm, env, logger, gate, verdictWaits, limiterPool, p
 
   const signer = createTokenSigner(env.EARMARK_JWT_SECRET, { access: env.EARMARK_ACCESS_TOKEN_TTL_S, refresh: env.EARMARK_REFRESH_TOKEN_TTL_S });
   const loginLimiter = signInGuard(env, (name) => new SharedLimitStore(limiterPool, `sign-in:${name}`, logger));
-  const routes: RouteDef[] = allRoutes({ gate, sessions: new SessionService(signer, passwords), loginLimiter, maxCaptureBytes: env.EARMARK_MAX_CAPTURE_BYTES, verdictWaits, maxConcurrentUploads: env.EARMARK_MAX_CONCURRENT_UPLOADS });
+  const routes: RouteDef[] = allRoutes({ gate, sessions: new SessionService(signer, passwords), loginLimiter, maxCaptureBytes: env.EARMARK_MAX_CAPTURE_BYTES, verdictWaits, maxConcurrentUploads: env.EARMARK_MAX_CONCURRENT_UPLOADS, uploadMetrics: apiMetrics.uploads, health });
   routes.push(...docsRoutes(() => routes, env.EARMARK_PUBLIC_URL));
   const api = express.Router();
   mountRoutes(api, routes, orm, signer);

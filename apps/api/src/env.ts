@@ -1,11 +1,22 @@
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
+import {
+  SHARED_SECRETS,
+  checkObjectStoreVars,
+  databaseVars,
+  loadConfig,
+  loggingVars,
+  objectStoreVars,
+  processVars,
+  publicUrlVars,
+  type EnvRecord,
+  type RuntimeMode,
+} from '@earmark/platform';
 import { z } from 'zod';
 
 const defaultWebDist = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../../web/dist');
 
-const Env = z.object({
-  EARMARK_DATABASE_URL: z.string().startsWith('postgres'),
+const apiVars = {
   EARMARK_JWT_SECRET: z.string().min(32, 'must be at least 32 characters'),
   EARMARK_API_HOST: z.string().default('127.0.0.1'),
   EARMARK_API_PORT: z.coerce.number().int().min(0).max(65535).default(4310),
@@ -37,14 +48,8 @@ const Env = z.object({
       if (v === 'true') return true;
       return /^\d+$/.test(v) ? Number(v) : v;
     }),
-  EARMARK_LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
-  EARMARK_DB_POOL_MAX: z.coerce.number().int().min(1).default(10),
   /** Requests held at once by `GET /api/v1/captures/:id?wait=N` (per process); beyond it they answer at once. */
   EARMARK_VERDICT_WAIT_MAX_HELD: z.coerce.number().int().min(0).default(1000),
-  EARMARK_S3_ENDPOINT: z.url().default('http://127.0.0.1:4312'),
-  EARMARK_S3_BUCKET: z.string().min(3).default('earmark-captures'),
-  EARMARK_S3_ACCESS_KEY: z.string().default('S3RVER'),
-  EARMARK_S3_SECRET_KEY: z.string().default('S3RVER'),
   /** Largest capture upload accepted. */
   EARMARK_MAX_CAPTURE_BYTES: z.coerce.number().int().min(1024).default(64 * 1024 * 1024),
   /** Capture uploads read and decoded at once by this process; past it, 503 with Retry-After before the body is read. */
@@ -61,17 +66,29 @@ const Env = z.object({
   EARMARK_API_COMPUTE_MEMORY_MB: z.coerce.number().int().min(64).default(1536),
   /** Decoded samples a plot other than the worker-drawn default may be drawn from on the API (packages/domain views-tasks.ts). */
   EARMARK_API_PLOT_MAX_SAMPLES: z.coerce.number().int().min(48_000).default(2 ** 22),
-  /** Base URL of the dashboard, for links in API answers, JUnit XML and e-mail. */
-  EARMARK_PUBLIC_URL: z.url().default('http://127.0.0.1:4310'),
-});
-export type ApiEnv = z.infer<typeof Env>;
+};
 
-/** The only place the API reads process.env. */
-export function loadApiEnv(env: NodeJS.ProcessEnv = process.env): ApiEnv {
-  const parsed = Env.safeParse(env);
-  if (!parsed.success) {
-    const issues = parsed.error.issues.map((i) => `${i.path.join('.')}: ${i.message}`).join('; ');
-    throw new Error(`Invalid API environment: ${issues}`);
-  }
-  return parsed.data;
+function apiSchema(mode: RuntimeMode) {
+  return z
+    .object({
+      ...databaseVars,
+      ...objectStoreVars(mode),
+      ...publicUrlVars(mode),
+      ...loggingVars,
+      ...processVars(mode === 'production' ? 9464 : undefined),
+      ...apiVars,
+    })
+    .superRefine(checkObjectStoreVars);
+}
+export type ApiEnv = z.infer<ReturnType<typeof apiSchema>> & { EARMARK_MODE: RuntimeMode };
+
+export const API_SECRETS = [...SHARED_SECRETS, 'EARMARK_JWT_SECRET'] as const;
+
+/**
+ * The only place the API reads its configuration: the environment, the optional env file
+ * (EARMARK_ENV_FILE) and secret files (`NAME_FILE`). A wrong or missing value throws a
+ * ConfigError naming the variable.
+ */
+export function loadApiEnv(env: EnvRecord = process.env): ApiEnv {
+  return loadConfig(apiSchema, env, { processName: 'API', secrets: API_SECRETS });
 }

@@ -1,6 +1,7 @@
-import { pino, type Logger } from 'pino';
+import { createProcessLogger } from '@earmark/platform';
+import type { Logger } from 'pino';
 
-/** Structured JSON logs; request bodies are never logged, credentials are redacted. */
-export function createLogger(level: string, name: string): Logger {
-  return pino({ name, level, redact: { paths: ['password', '*.password', 'secret', '*.secret', 'token', '*.token'], censor: '[redacted]' } });
+/** Structured logs (JSON lines, or pretty with EARMARK_LOG_FORMAT=pretty); request bodies are never logged, credentials are redacted. */
+export function createLogger(level: string, name: string, opts: { format?: 'json' | 'pretty'; instance?: string } = {}): Logger {
+  return createProcessLogger({ name, level, ...opts });
 }

@@ -1,6 +1,7 @@
-import { initOrm, NOTIFY_CHANNELS } from '@earmark/db';
-import { VIEWS_THREAD_MODULE, createGate, createJobProducer, createLinks, poolViewsCompute, type Gate } from '@earmark/domain';
-import { ObjectStore, createComputePool, startBoss, type ComputePool } from '@earmark/platform';
+import os from 'node:os';
+import { assertMigrated, initOrm, NOTIFY_CHANNELS } from '@earmark/db';
+import { VIEWS_THREAD_MODULE, createGate, createJobProducer, createLinks, poolViewsCompute, registerSharedGauges, type Gate } from '@earmark/domain';
+import { ObjectStore, createComputePool, createMetricsRegistry, dependencyChecks, healthProbes, objectStoreConfigOf, startBoss, type ComputePool, type HealthProbes, type Lifecycle, type Registry, type RunSql } from '@earmark/platform';
 import type { MikroORM } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
 import pg from 'pg';
@@ -9,6 +10,7 @@ import type { ApiEnv } from './env.js';
 import { threadedPasswordChecks, type PasswordChecks } from './auth/password-checks.js';
 import { startPgListener } from './waits/pg-listener.js';
 import { VerdictWaits } from './waits/verdict-waits.js';
+import { createApiMetrics, type ApiMetrics } from './metrics/api-metrics.js';
 
 /** Everything the API process holds: built once, here, and closed together. */
 export interface ApiRuntime {
@@ -27,6 +29,14 @@ export interface ApiRuntime {
   limiterPool: pg.Pool;
   /** bcrypt on worker threads, so sign-ins do not hold up other requests. */
   passwords: PasswordChecks;
+  /** This process's Prometheus registry: serve it with startMetricsServer on the metrics port. */
+  metrics: Registry;
+  /** The API's own series in `metrics` (HTTP requests, capture uploads). */
+  apiMetrics: ApiMetrics;
+  /** Set `lifecycle.draining = true` when shutdown begins: readiness then answers 503 on both ports. */
+  lifecycle: Lifecycle;
+  /** Liveness and readiness (database, queue, object store), for /livez, /readyz and /api/health/*. */
+  health: HealthProbes;
   close(): Promise<void>;
 }
 
@@ -34,18 +44,17 @@ export interface ApiRuntime {
  * The API's composition root: the ORM, the queue, the object store, the links and every
  * service of the gate. `server.ts` and the tests both start the API through it.
  * @param existing.orm an ORM the caller already opened (tests that seed first); closed with the runtime
+ * @param existing.instanceName the `instance` label of every series (EARMARK_INSTANCE_NAME); default `hostname:pid`
  */
-export async function createApiRuntime(env: ApiEnv, logger: Logger, existing: { orm?: MikroORM } = {}): Promise<ApiRuntime> {
+export async function createApiRuntime(env: ApiEnv, logger: Logger, existing: { orm?: MikroORM; instanceName?: string } = {}): Promise<ApiRuntime> {
   const orm = existing.orm ?? (await initOrm({ url: env.EARMARK_DATABASE_URL, poolMax: env.EARMARK_DB_POOL_MAX }));
-  if (await orm.getMigrator().checkMigrationNeeded()) {
-    logger.warn('the database schema differs from the entities; run the migrations (npm start does)');
+  try {
+    await assertMigrated(orm);
+  } catch (error) {
+    if (!existing.orm) await orm.close();
+    throw error;
   }
-  const objectStore = new ObjectStore({
-    endpoint: env.EARMARK_S3_ENDPOINT,
-    bucket: env.EARMARK_S3_BUCKET,
-    accessKeyId: env.EARMARK_S3_ACCESS_KEY,
-    secretAccessKey: env.EARMARK_S3_SECRET_KEY,
-  });
+  const objectStore = new ObjectStore(objectStoreConfigOf(env));
   await objectStore.ensureBucket().catch((error: unknown) => logger.warn({ err: error }, 'object store not reachable at start-up; uploads answer 503 until it is'));
   const boss = await startBoss(env.EARMARK_DATABASE_URL, logger);
   const compute = createComputePool({
@@ -70,6 +79,12 @@ export async function createApiRuntime(env: ApiEnv, logger: Logger, existing: { 
   // An idle client that loses its connection emits here; the next query reconnects.
   limiterPool.on('error', (error) => logger.warn({ err: error }, 'sign-in limiter connection lost'));
   const passwords = threadedPasswordChecks(env.EARMARK_PASSWORD_WORK_CONCURRENCY, env.EARMARK_PASSWORD_WORK_QUEUE);
+  const metrics = createMetricsRegistry('api', existing.instanceName ?? `${os.hostname()}:${process.pid}`);
+  const apiMetrics = createApiMetrics(metrics);
+  const sql: RunSql = (query, params) => orm.em.fork().getConnection().execute(query, params);
+  registerSharedGauges(metrics, sql);
+  const lifecycle: Lifecycle = { draining: false };
+  const health = healthProbes(dependencyChecks({ sql, boss, objectStore }), lifecycle);
   return {
     env,
     logger,
@@ -81,6 +96,10 @@ export async function createApiRuntime(env: ApiEnv, logger: Logger, existing: { 
     verdictWaits,
     limiterPool,
     passwords,
+    metrics,
+    apiMetrics,
+    lifecycle,
+    health,
     async close() {
       await listener.close();
       verdictWaits.wakeAll();

@@ -1,22 +1,30 @@
+import { exitOnStartupFailure } from '@earmark/platform';
 import { createApp } from './app.js';
-import { loadApiEnv } from './env.js';
+import { loadApiEnv, type ApiEnv } from './env.js';
 import { createLogger } from './logger.js';
-import { createApiRuntime } from './runtime.js';
+import { createApiRuntime, type ApiRuntime } from './runtime.js';
 
-const env = loadApiEnv();
-const logger = createLogger(env.EARMARK_LOG_LEVEL, 'api');
-const runtime = await createApiRuntime(env, logger);
+/** How long requests in flight may take to finish after SIGTERM before their connections are cut. */
+const DRAIN_MS = 25_000;
+
+let env: ApiEnv;
+let runtime: ApiRuntime;
+try {
+  env = loadApiEnv();
+  const logger = createLogger(env.EARMARK_LOG_LEVEL, 'api', { format: env.EARMARK_LOG_FORMAT, instance: env.EARMARK_INSTANCE_NAME });
+  runtime = await createApiRuntime(env, logger);
+} catch (error) {
+  exitOnStartupFailure('api', error);
+}
+const { logger } = runtime;
 const { app } = createApp(runtime);
 const server = app.listen(env.EARMARK_API_PORT, env.EARMARK_API_HOST, () => {
-  logger.info({ url: `http://${env.EARMARK_API_HOST}:${env.EARMARK_API_PORT}` }, 'api listening');
+  logger.info({ url: `http://${env.EARMARK_API_HOST}:${env.EARMARK_API_PORT}`, mode: env.EARMARK_MODE, instance: env.EARMARK_INSTANCE_NAME }, 'api listening');
 });
 server.on('error', (error: NodeJS.ErrnoException) => {
   logger.fatal(error.code === 'EADDRINUSE' ? `port ${env.EARMARK_API_PORT} is already in use (set EARMARK_API_PORT)` : error.message);
   process.exit(1);
 });
-
-/** How long requests in flight may take to finish after SIGTERM before their connections are cut. */
-const DRAIN_MS = 25_000;
 
 async function shutdown(signal: string) {
   logger.info({ signal }, 'shutting down');
@@ -30,5 +38,5 @@ async function shutdown(signal: string) {
   await runtime.close();
   process.exit(0);
 }
-process.on('SIGTERM', () => void shutdown('SIGTERM'));
-process.on('SIGINT', () => void shutdown('SIGINT'));
+process.once('SIGTERM', () => void shutdown('SIGTERM'));
+process.once('SIGINT', () => void shutdown('SIGINT'));

@@ -23,6 +23,8 @@ const CI_SUBMITTERS: Caller[] = [...CONFIGURERS, 'token:full', 'token:submit'];
 
 const MATRIX: Record<string, Caller[] | typeof PUBLIC> = {
   'GET /api/health': PUBLIC,
+  'GET /api/health/live': PUBLIC,
+  'GET /api/health/ready': PUBLIC,
   'GET /api/v1/openapi.json': PUBLIC,
   'GET /api/docs': PUBLIC,
   'POST /api/auth/login': PUBLIC,

@@ -13,20 +13,19 @@ export interface Mailer {
   close(): void;
 }
 
+/** Where mail goes: the relay's URL (production), or the local fake's address (development). */
+export type MailRelay = { url: string } | { host: string; port: number };
+
 /**
  * SMTP through nodemailer (locally the SMTP fake; in production the organisation's relay).
  * `from` is EARMARK_MAIL_FROM, e.g. `Earmark <earmark@example.com>`.
  */
-export function createMailer(opts: { host: string; port: number; from: string }): Mailer {
-  const transport: Transporter = nodemailer.createTransport({
-    host: opts.host,
-    port: opts.port,
-    secure: false,
-    ignoreTLS: true,
-    connectionTimeout: 5000,
-    greetingTimeout: 5000,
-    socketTimeout: 10000,
-  });
+export function createMailer(opts: MailRelay & { from: string }): Mailer {
+  const timeouts = { connectionTimeout: 5000, greetingTimeout: 5000, socketTimeout: 10000 };
+  // A relay URL keeps nodemailer's defaults: TLS for smtps://, STARTTLS whenever the relay offers it.
+  // The local fake speaks plain SMTP only.
+  const transport: Transporter =
+    'url' in opts ? nodemailer.createTransport({ url: opts.url, ...timeouts }) : nodemailer.createTransport({ host: opts.host, port: opts.port, secure: false, ignoreTLS: true, ...timeouts });
   return {
     async send({ to, subject, text, html }) {
       // With both parts nodemailer sends multipart/alternative: clients that show no HTML read the text.

@@ -3,12 +3,15 @@ import type { MikroORM } from '@mikro-orm/postgresql';
 import type { Logger } from 'pino';
 import { expireWaivers, type JobProducer, type RecordDeps } from '@earmark/domain';
 import { judgeAbandoned } from './jobs/abandon-capture.js';
+import type { JudgingMetrics } from './worker-metrics.js';
 
 export interface SweepDeps {
   orm: MikroORM;
   jobs: JobProducer;
   logger: Logger;
   links: RecordDeps;
+  /** Counts the `error` verdicts of captures judged abandoned here. */
+  judging?: JudgingMetrics;
   /** A queued capture without a job is re-queued once it is this old. */
   queuedAfterSeconds: number;
   /** EARMARK_ANALYSIS_EXPIRE_S: an analysing capture without a job is re-queued once this old. */

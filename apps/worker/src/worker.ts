@@ -1,18 +1,24 @@
 import { ENGINE_VERSION } from '@earmark/dsp';
-import { pino } from 'pino';
-import { createWorker } from './create-worker.js';
-import { loadWorkerEnv } from './env.js';
+import { createProcessLogger, exitOnStartupFailure } from '@earmark/platform';
+import { createWorker, type Worker } from './create-worker.js';
+import { loadWorkerEnv, type WorkerEnv } from './env.js';
 
-const env = loadWorkerEnv();
-const logger = pino({ name: 'worker', level: env.EARMARK_LOG_LEVEL });
-const worker = await createWorker(env, logger);
-await worker.start();
-logger.info({ analysisSlots: env.EARMARK_ANALYSIS_SLOTS, analysisMemoryMb: env.EARMARK_ANALYSIS_MEMORY_MB, engineVersion: ENGINE_VERSION }, 'worker ready');
+let env: WorkerEnv;
+let worker: Worker;
+try {
+  env = loadWorkerEnv();
+  const logger = createProcessLogger({ name: 'worker', level: env.EARMARK_LOG_LEVEL, format: env.EARMARK_LOG_FORMAT, instance: env.EARMARK_INSTANCE_NAME });
+  worker = await createWorker(env, logger);
+  await worker.start();
+  logger.info({ analysisSlots: env.EARMARK_ANALYSIS_SLOTS, analysisMemoryMb: env.EARMARK_ANALYSIS_MEMORY_MB, engineVersion: ENGINE_VERSION, mode: env.EARMARK_MODE }, 'worker ready');
+} catch (error) {
+  exitOnStartupFailure('worker', error);
+}
 
 async function shutdown(signal: string) {
-  logger.info({ signal }, 'worker stopping');
+  worker.logger.info({ signal }, 'worker stopping');
   await worker.stop();
   process.exit(0);
 }
-process.on('SIGTERM', () => void shutdown('SIGTERM'));
-process.on('SIGINT', () => void shutdown('SIGINT'));
+process.once('SIGTERM', () => void shutdown('SIGTERM'));
+process.once('SIGINT', () => void shutdown('SIGINT'));

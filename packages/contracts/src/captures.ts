@@ -92,6 +92,8 @@ export const CaptureDto = z.object({
   channels: z.number().int(),
   frames: z.number().int(),
   createdAt: z.string(),
+  /** When the retention policy removed the audio (null while it is stored); the verdict stays. */
+  purgedAt: z.string().nullable(),
   verdict: VerdictDto.nullable(),
   links: z.object({ self: z.string(), build: z.string(), dashboard: z.string() }),
 });

@@ -17,3 +17,5 @@ export * from './mask-workflow.js';
 export * from './mask-derivation.js';
 export * from './build-status-rule.js';
 export * from './subscriptions.js';
+export * from './health.js';
+export * from './data-lifecycle.js';

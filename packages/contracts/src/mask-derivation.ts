@@ -222,6 +222,8 @@ export const ReevaluateResponse = z.object({
   /** Captures queued for a new verdict (those already judged under this revision are skipped). */
   queued: z.number().int(),
   captureIds: z.array(z.string()),
+  /** Selected captures skipped because the retention policy removed their audio (their verdicts stay). */
+  purged: z.number().int().default(0),
 });
 export type ReevaluateResponse = z.infer<typeof ReevaluateResponse>;
 

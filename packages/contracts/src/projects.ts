@@ -18,6 +18,12 @@ export const Project = z.object({
   targetCount: z.number().int(),
   testCaseCount: z.number().int(),
   buildCount: z.number().int(),
+  /** Bytes of capture audio the project stores now (captures whose audio was purged do not count). */
+  storageUsedBytes: z.number().int(),
+  /** The quota in force, bytes; null: unlimited. */
+  storageQuotaBytes: z.number().int().nullable(),
+  /** Where the quota comes from: the project's own setting, or the server's default (EARMARK_PROJECT_QUOTA_BYTES). */
+  storageQuotaSource: z.enum(['project', 'default']),
 });
 export type Project = z.infer<typeof Project>;
 

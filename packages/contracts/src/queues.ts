@@ -6,6 +6,8 @@ export const QUEUES = {
   sendNotifications: 'send-notifications',
   /** Evaluating a mask revision against past builds' captures (ImpactRun). */
   evaluateImpact: 'evaluate-impact',
+  /** Hourly (scheduled): the retention policy and the orphan clean-up of the object store. */
+  applyRetention: 'apply-retention',
 } as const;
 
 export const AnalyzeCaptureJob = z.object({
@@ -20,3 +22,7 @@ export type SendNotificationsJob = z.infer<typeof SendNotificationsJob>;
 
 export const EvaluateImpactJob = z.object({ impactRunId: z.uuid() });
 export type EvaluateImpactJob = z.infer<typeof EvaluateImpactJob>;
+
+/** The scheduled run sends `{}`; a manual run may say why. */
+export const ApplyRetentionJob = z.object({ reason: z.string().max(200).optional() });
+export type ApplyRetentionJob = z.infer<typeof ApplyRetentionJob>;

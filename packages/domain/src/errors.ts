@@ -3,7 +3,7 @@
  * edge maps each kind to a status and problem+json (apps/api/src/http/problem.ts); the worker
  * records them on a verdict or logs them.
  */
-export type DomainErrorKind = 'not_found' | 'forbidden' | 'conflict' | 'invalid' | 'unsupported_capture' | 'unavailable';
+export type DomainErrorKind = 'not_found' | 'forbidden' | 'conflict' | 'invalid' | 'unsupported_capture' | 'unavailable' | 'gone' | 'quota_exceeded';
 
 export interface FieldError {
   path: string;
@@ -53,6 +53,22 @@ export class ValidationError extends DomainError {
 /** The upload is not a capture Earmark can judge (format, channels, rate, samples). */
 export class UnsupportedCaptureError extends DomainError {
   readonly kind = 'unsupported_capture';
+  constructor(detail: string, code: string) {
+    super(detail, { code });
+  }
+}
+
+/** It existed, but what was asked for was removed for good (capture audio purged by the retention policy). */
+export class GoneError extends DomainError {
+  readonly kind = 'gone';
+  constructor(detail: string, code: string) {
+    super(detail, { code });
+  }
+}
+
+/** Storing this would take the project past its storage quota; nothing was stored. */
+export class QuotaExceededError extends DomainError {
+  readonly kind = 'quota_exceeded';
   constructor(detail: string, code: string) {
     super(detail, { code });
   }

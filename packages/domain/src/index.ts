@@ -36,6 +36,11 @@ export * from './services/subscription.service.js';
 export * from './services/mask-decision-mail.js';
 export * from './services/token.service.js';
 export * from './services/waiver.service.js';
+// Data lifecycle: the retention policy, orphaned objects, per-project storage quotas.
+export * from './lifecycle/retention.js';
+export * from './lifecycle/orphans.js';
+export * from './lifecycle/storage-quota.js';
+export * from './lifecycle/purged-capture.js';
 export * from './judging/build-aggregate.js';
 export * from './judging/build-failure-notice.js';
 export * from './judging/drift-notice.js';
@@ -68,3 +73,5 @@ export * from './mail/waiver-decision.mail.js';
 export * from './mail/waiver-expired.mail.js';
 export * from './mail/waiver-revoked.mail.js';
 export * from './mail/drift.mail.js';
+// Operations: the gauges every process serves on its metrics port.
+export * from './metrics/shared-gauges.js';

@@ -3,3 +3,5 @@ export * from './object-store/index.js';
 export * from './queue/index.js';
 export * from './secrets/index.js';
 export * from './compute/index.js';
+export * from './config/index.js';
+export * from './metrics/index.js';

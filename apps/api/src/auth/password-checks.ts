@@ -7,7 +7,7 @@ export interface PasswordChecks {
   close(): Promise<void>;
 }
 
-const PASSWORD_THREAD_MODULE = new URL('./password.thread.ts', import.meta.url);
+const PASSWORD_THREAD_MODULE = new URL(`./password.thread.${import.meta.url.endsWith('.ts') ? 'ts' : 'js'}`, import.meta.url);
 
 /**
  * Password checks on their own worker threads, one per slot of the sign-in work gate

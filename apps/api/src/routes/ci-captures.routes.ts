@@ -8,6 +8,7 @@ import type { UploadSlots } from '../http/upload-slots.js';
 import { requireProject, route, type RouteDef } from '../http/route.js';
 import { etagOf, matchesIfNoneMatch } from '../http/etag.js';
 import type { VerdictWaits } from '../waits/verdict-waits.js';
+import type { UploadMetrics } from '../metrics/api-metrics.js';
 
 const ShaParams = z.object({ sha: CommitSha });
 const CaptureParams = z.object({ id: z.uuid('a capture id (UUID)') });
@@ -22,7 +23,7 @@ const CaptureQuery = z.object({
     .default(0),
 });
 
-export function ciCaptureRoutes(ingest: CaptureIngestService, links: Links, maxCaptureBytes: number, verdictWaits: VerdictWaits, uploadSlots: UploadSlots): RouteDef[] {
+export function ciCaptureRoutes(ingest: CaptureIngestService, links: Links, maxCaptureBytes: number, verdictWaits: VerdictWaits, uploadSlots: UploadSlots, uploads: UploadMetrics): RouteDef[] {
   return [
     route({
       method: 'post',
@@ -42,6 +43,7 @@ export function ciCaptureRoutes(ingest: CaptureIngestService, links: Links, maxC
         try {
           release = uploadSlots.take();
         } catch (error) {
+          uploads.refused();
           ctx.req.resume();
           throw error;
         }
@@ -49,7 +51,12 @@ export function ciCaptureRoutes(ingest: CaptureIngestService, links: Links, maxC
           let resolved: ResolvedDestination | undefined;
           const upload = await readCaptureUpload(ctx.req, maxCaptureBytes, async (destination) => (resolved = await ingest.resolveCaseAndTarget(ctx.em, project, destination)));
           const result = await ingest.ingest(ctx.em, project, sha, upload, ctx.principal!, resolved);
+          if (result.created) uploads.accepted(upload.bytes.byteLength);
+          else uploads.replayed();
           ctx.res.status(result.created ? 202 : 200).setHeader('Location', result.capture.links.self).json(result.capture);
+        } catch (error) {
+          uploads.refused();
+          throw error;
         } finally {
           release();
         }

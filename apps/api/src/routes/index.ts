@@ -1,4 +1,5 @@
 import type { Gate } from '@earmark/domain';
+import type { HealthProbes } from '@earmark/platform';
 import type { RequestHandler } from 'express';
 import type { SessionService } from '../auth/session.service.js';
 import type { RouteDef } from '../http/route.js';
@@ -17,6 +18,7 @@ import { subscriptionRoutes } from './subscription.routes.js';
 import { tokenRoutes } from './tokens.routes.js';
 import type { VerdictWaits } from '../waits/verdict-waits.js';
 import { UploadSlots } from '../http/upload-slots.js';
+import type { UploadMetrics } from '../metrics/api-metrics.js';
 
 export interface RouteDeps {
   gate: Gate;
@@ -26,12 +28,16 @@ export interface RouteDeps {
   verdictWaits: VerdictWaits;
   /** Capture uploads this process reads at once (EARMARK_MAX_CONCURRENT_UPLOADS). */
   maxConcurrentUploads: number;
+  /** Counts capture uploads by outcome (the metrics port). */
+  uploadMetrics: UploadMetrics;
+  /** Liveness and readiness, also served on the metrics port. */
+  health: HealthProbes;
 }
 
 /** Every API route; the app mounts exactly these, and the role test walks them all. */
-export function allRoutes({ gate, sessions, loginLimiter, maxCaptureBytes, verdictWaits, maxConcurrentUploads }: RouteDeps): RouteDef[] {
+export function allRoutes({ gate, sessions, loginLimiter, maxCaptureBytes, verdictWaits, maxConcurrentUploads, uploadMetrics, health }: RouteDeps): RouteDef[] {
   return [
-    ...healthRoutes(),
+    ...healthRoutes(health),
     ...authRoutes(sessions, loginLimiter),
     ...projectRoutes(gate.projects),
     ...subscriptionRoutes(gate.subscriptions),
@@ -43,6 +49,6 @@ export function allRoutes({ gate, sessions, loginLimiter, maxCaptureBytes, verdi
     ...adminRoutes(),
     ...dashboardRoutes(gate),
     ...ciBuildRoutes(gate.links),
-    ...ciCaptureRoutes(gate.ingest, gate.links, maxCaptureBytes, verdictWaits, new UploadSlots(maxConcurrentUploads)),
+    ...ciCaptureRoutes(gate.ingest, gate.links, maxCaptureBytes, verdictWaits, new UploadSlots(maxConcurrentUploads), uploadMetrics),
   ];
 }

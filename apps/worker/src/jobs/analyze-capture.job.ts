@@ -1,4 +1,4 @@
-import { AnalyzeCaptureJob } from '@earmark/contracts';
+import { AnalyzeCaptureJob, type VerdictOutcome } from '@earmark/contracts';
 import { Build, Capture, MaskRevision } from '@earmark/db';
 import { ComputePoolBusyError, ComputeThreadError, ObjectStoreUnavailableError, type ObjectStore } from '@earmark/platform';
 import { ENGINE_VERSION } from '@earmark/dsp';
@@ -7,6 +7,7 @@ import type PgBoss from 'pg-boss';
 import type { Logger } from 'pino';
 import { computeBuildStatus, errorJudgement, writeStoredPlot, maskInForce, noteDrift, recordVerdict, type JobProducer, type RecordDeps, type RecordResult } from '@earmark/domain';
 import { judgeInThread, type AnalysisSlots } from './judge-in-thread.js';
+import type { JudgingMetrics } from '../worker-metrics.js';
 
 export interface AnalyzeDeps {
   orm: MikroORM;
@@ -19,6 +20,8 @@ export interface AnalyzeDeps {
   delayMs: number;
   /** Where the engine runs: never on this event loop, which also serves the other slots' jobs. */
   analysis: AnalysisSlots;
+  /** Verdicts and analysis times for the metrics port (absent in tests that do not look). */
+  judging?: JudgingMetrics;
 }
 
 /**
@@ -43,7 +46,7 @@ export async function analyzeCapture(job: PgBoss.JobWithMetadata<unknown>, deps:
   if (attempt >= deps.maxAttempts && job.retryCount > 0) {
     // Earlier attempts crashed or timed out: stop trying rather than loop forever.
     const judgement = errorJudgement(`Analysis abandoned after ${job.retryCount} failed attempt${job.retryCount === 1 ? "" : "s"} (worker crash, timeout or storage outage).`, ENGINE_VERSION);
-    await wakeMailSender(deps, await recordVerdict(em, captureId, mask, judgement, deps.links));
+    await wakeMailSender(deps, countVerdict(deps, judgement.outcome, await recordVerdict(em, captureId, mask, judgement, deps.links)));
     log.error('capture judged error after repeated failures');
     return;
   }
@@ -59,7 +62,7 @@ export async function analyzeCapture(job: PgBoss.JobWithMetadata<unknown>, deps:
       log.warn({ err: error }, 'object store unavailable; the job will retry');
       throw error;
     }
-    await wakeMailSender(deps, await recordVerdict(em, captureId, mask, errorJudgement(`The stored capture cannot be read: ${(error as Error).message}`, ENGINE_VERSION), deps.links));
+    await wakeMailSender(deps, countVerdict(deps, 'error', await recordVerdict(em, captureId, mask, errorJudgement(`The stored capture cannot be read: ${(error as Error).message}`, ENGINE_VERSION), deps.links)));
     return;
   }
   const started = performance.now();
@@ -67,7 +70,8 @@ export async function analyzeCapture(job: PgBoss.JobWithMetadata<unknown>, deps:
     if (error instanceof ComputePoolBusyError || error instanceof ComputeThreadError) log.warn({ err: error }, 'analysis thread unavailable; the job will retry');
     throw error;
   });
-  const result = await recordVerdict(em, captureId, mask, judgement, deps.links);
+  const result = countVerdict(deps, judgement.outcome, await recordVerdict(em, captureId, mask, judgement, deps.links));
+  deps.judging?.analysisTimed(judgement.outcome, (performance.now() - started) / 1000);
   // After the verdict: a plot stored for a verdict that never committed would only be unused. Advisory, like drift.
   if (run?.plot) await writeStoredPlot(deps.objectStore, run.plot.identity, run.plot.stored);
   const thread = run ? { threadStartedAt: run.startedAt, threadEndedAt: run.endedAt, threadMs: run.endedAt - run.startedAt, stimulus: run.stimulus } : {};
@@ -78,6 +82,12 @@ export async function analyzeCapture(job: PgBoss.JobWithMetadata<unknown>, deps:
     return 0;
   }) : 0;
   if (result.notificationsQueued > 0 || driftMails > 0) await deps.jobs.sendMail(result.notificationsQueued > 0 ? 'build failed' : 'drift');
+}
+
+/** Counts a verdict that was written (a re-run job that found its verdict already there adds nothing). */
+function countVerdict(deps: AnalyzeDeps, outcome: VerdictOutcome, result: RecordResult): RecordResult {
+  if (result.written) deps.judging?.verdictRecorded(outcome);
+  return result;
 }
 
 /** An error verdict can complete a failing build: its mail goes out now rather than at the next sweep. */

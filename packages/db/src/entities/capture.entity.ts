@@ -9,7 +9,7 @@ export const captureStatuses = ['queued', 'analysing', 'done', 'error'] as const
 export type CaptureStatus = (typeof captureStatuses)[number];
 
 /** One uploaded buffer for (build, test case, target); the bytes live in object storage. */
-export class Capture extends BaseEntity<'format' | 'status' | 'idempotencyKey'> {
+export class Capture extends BaseEntity<'format' | 'status' | 'idempotencyKey' | 'purgedAt'> {
   project!: Project;
   build!: Build;
   testCase!: TestCase;
@@ -23,6 +23,8 @@ export class Capture extends BaseEntity<'format' | 'status' | 'idempotencyKey'> 
   frames!: number;
   status: CaptureStatus = 'queued';
   idempotencyKey: string | null = null;
+  /** When the retention policy deleted the stored audio (and plots); the row, verdicts and findings stay. */
+  purgedAt: Date | null = null;
 }
 
 export const CaptureSchema = new EntitySchema<Capture, BaseEntity>({
@@ -42,6 +44,7 @@ export const CaptureSchema = new EntitySchema<Capture, BaseEntity>({
     frames: { type: 'integer' },
     status: { enum: true, items: () => [...captureStatuses], type: 'string', default: 'queued' },
     idempotencyKey: { type: 'string', length: 200, nullable: true },
+    purgedAt: { type: 'datetime', nullable: true },
   },
   // An Idempotency-Key names one capture per project, never a duplicate.
   uniques: [{ properties: ['project', 'idempotencyKey'] }],
@@ -51,5 +54,9 @@ export const CaptureSchema = new EntitySchema<Capture, BaseEntity>({
     { name: 'capture_test_case_target_idx', properties: ['testCase', 'target'] },
     // A project's waiting captures in order: the job producer's fair priority counts them (domain jobs/fair-priority.ts).
     { name: 'capture_queued_project_idx', expression: `create index "capture_queued_project_idx" on "capture" ("project_id", "created_at", "id") where "status" = 'queued'` },
+    // A project's stored bytes in one index-only sum: the storage quota check at every upload (domain lifecycle/storage-quota.ts).
+    { name: 'capture_stored_size_idx', expression: `create index "capture_stored_size_idx" on "capture" ("project_id") include ("size_bytes") where "purged_at" is null` },
+    // "Does a row hold this object?": the orphan clean-up asks it for every object it lists.
+    { name: 'capture_object_key_idx', properties: ['objectKey'] },
   ],
 });

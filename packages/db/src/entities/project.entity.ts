@@ -1,8 +1,8 @@
-import { EntitySchema } from '@mikro-orm/core';
+import { BigIntType, EntitySchema } from '@mikro-orm/core';
 import { BaseEntity, baseProperties } from './base.js';
 
 /** One firmware product line. */
-export class Project extends BaseEntity<'description' | 'driftThresholdDb' | 'driftWindow'> {
+export class Project extends BaseEntity<'description' | 'driftThresholdDb' | 'driftWindow' | 'storageQuotaBytes'> {
   key!: string;
   name!: string;
   description = '';
@@ -10,6 +10,11 @@ export class Project extends BaseEntity<'description' | 'driftThresholdDb' | 'dr
   driftThresholdDb = 1;
   /** Builds on a branch that the drift of a check is measured over. */
   driftWindow = 10;
+  /**
+   * Bytes of stored (not purged) capture audio the project may hold; null: the server's default
+   * (EARMARK_PROJECT_QUOTA_BYTES), 0: unlimited for this project (domain lifecycle/storage-quota.ts).
+   */
+  storageQuotaBytes: number | null = null;
 }
 
 export const ProjectSchema = new EntitySchema<Project, BaseEntity>({
@@ -21,5 +26,6 @@ export const ProjectSchema = new EntitySchema<Project, BaseEntity>({
     description: { type: 'text', default: '' },
     driftThresholdDb: { type: 'double', default: 1 },
     driftWindow: { type: 'integer', default: 10 },
+    storageQuotaBytes: { type: new BigIntType('number'), nullable: true },
   },
 });

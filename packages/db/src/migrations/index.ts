@@ -12,6 +12,7 @@ import { Migration20261202180400 } from './migration-20261202180400.js';
 import { Migration20261202190000 } from './migration-20261202190000.js';
 import { Migration20261202190100 } from './migration-20261202190100.js';
 import { Migration20261202220200 } from './migration-20261202220200.js';
+import { Migration20261203030000 } from './migration-20261203030000.js';
 
 /** Every migration, oldest first. Add each new file here (see DEVELOPERS.md). */
 export const migrationsList: MigrationObject[] = [
@@ -28,4 +29,5 @@ export const migrationsList: MigrationObject[] = [
   { name: 'migration-20261202190000', class: Migration20261202190000 },
   { name: 'migration-20261202190100', class: Migration20261202190100 },
   { name: 'migration-20261202220200', class: Migration20261202220200 },
+  { name: 'migration-20261203030000', class: Migration20261203030000 },
 ];

@@ -23,4 +23,4 @@ export interface AnalysisTasks {
 }
 
 /** Where the pool loads the tasks from (TypeScript in development: the threads load it through tsx). */
-export const ANALYSIS_THREAD_MODULE = new URL('./analysis.thread.ts', import.meta.url);
+export const ANALYSIS_THREAD_MODULE = new URL(`./analysis.thread.${import.meta.url.endsWith('.ts') ? 'ts' : 'js'}`, import.meta.url);

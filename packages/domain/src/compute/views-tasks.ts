@@ -21,7 +21,7 @@ export interface ViewsTasks {
 }
 
 /** Where the pool loads the tasks from (TypeScript in development: the threads load it through tsx). */
-export const VIEWS_THREAD_MODULE = new URL('./views.thread.ts', import.meta.url);
+export const VIEWS_THREAD_MODULE = new URL(`./views.thread.${import.meta.url.endsWith('.ts') ? 'ts' : 'js'}`, import.meta.url);
 
 /** The part of a compute pool the services need: run a named task of `views.thread.ts`. */
 export interface ViewsCompute {

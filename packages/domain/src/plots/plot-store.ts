@@ -25,7 +25,11 @@ export interface PlotIdentity {
   channel: number;
 }
 
-export const plotKey = (p: PlotIdentity): string => `plot-cache/${p.captureId}/${ENGINE_VERSION}-${p.maskRevisionId ?? 'none'}-${p.columns}-${p.channel}.json`;
+/** Where every stored plot lives; one folder per capture, so its plots can be deleted together (retention). */
+export const PLOT_CACHE_PREFIX = 'plot-cache/';
+export const plotPrefixOf = (captureId: string): string => `${PLOT_CACHE_PREFIX}${captureId}/`;
+
+export const plotKey = (p: PlotIdentity): string => `${plotPrefixOf(p.captureId)}${ENGINE_VERSION}-${p.maskRevisionId ?? 'none'}-${p.columns}-${p.channel}.json`;
 
 /** The stored plot, or null when there is none (or it cannot be read: the store is only a cache). */
 export async function readStoredPlot(objectStore: ObjectStore, identity: PlotIdentity): Promise<StoredPlot | null> {

@@ -8,7 +8,7 @@ import { Verdict, type Capture } from '@earmark/db';
  */
 
 /** SQL: the newest verdict's `column` for the capture whose id is `captureIdSql` (a correlated sub-select). */
-export const newestVerdictSql = (captureIdSql: string, column: 'outcome' | 'id' = 'outcome') =>
+export const newestVerdictSql = (captureIdSql: string, column: 'outcome' | 'id' | 'waiver_basis' = 'outcome') =>
   `(select v.${column} from verdict v where v.capture_id = ${captureIdSql} order by v.created_at desc, v.id desc limit 1)`;
 
 /** SQL: a CTE body selecting the newest verdict (id, capture_id, mask_revision_id) of each capture in `capturesSql` (a relation with an `id`). */

@@ -101,6 +101,7 @@ export function toCaptureDto(capture: Capture, verdict: VerdictDto | null, links
     channels: capture.channelCount,
     frames: capture.frames,
     createdAt: capture.createdAt.toISOString(),
+    purgedAt: capture.purgedAt?.toISOString() ?? null,
     verdict,
     links: { self: links.captureApi(capture.id), build: links.buildApi(project, sha), dashboard: links.capturePage(project, sha, capture.id) },
   };

@@ -6,7 +6,8 @@ import { type ObjectStore } from '@earmark/platform';
 import { decodeRefusalOf, plotRefusalOf } from '../compute/compute-errors.js';
 import { ownBuffer } from '../compute/views-compute.js';
 import { DEFAULT_MAX_PLOT_SAMPLES, type ViewsCompute } from '../compute/views-tasks.js';
-import { NotFoundError, UnsupportedCaptureError } from '../errors.js';
+import { GoneError, NotFoundError, UnsupportedCaptureError } from '../errors.js';
+import { assertAudioStored } from '../lifecycle/purged-capture.js';
 import { storedSettingsFor } from '../judging/judging-settings.js';
 import { plotKey, readStoredPlot, writeStoredPlot, type PlotIdentity, type StoredPlot } from '../plots/plot-store.js';
 import { plotChannel, type CapturePlotCore } from '../plots/render-capture-plot.js';
@@ -106,7 +107,7 @@ export class CaptureViewService {
       return plot.unit === main.unit ? { captureId: other.id, buildSha: passing.buildSha, spectrum: plot.spectrum } : null;
     } catch (error) {
       // The last pass is drawn the same way; when it cannot be, the page simply has no overlay.
-      if (error instanceof UnsupportedCaptureError || error instanceof NotFoundError) return null;
+      if (error instanceof UnsupportedCaptureError || error instanceof NotFoundError || error instanceof GoneError) return null;
       throw error;
     }
   }
@@ -122,6 +123,8 @@ export class CaptureViewService {
   }
 
   private async computePlot(capture: Capture, identity: PlotIdentity, settings: JudgingSettings, mask: MaskRevision | null): Promise<StoredPlot> {
+    // A purged capture answers 410 for every plot not stored, however large it was.
+    assertAudioStored(capture);
     const samples = capture.frames * capture.channelCount;
     const maxSamples = this.compute.maxPlotSamples ?? DEFAULT_MAX_PLOT_SAMPLES;
     if (samples > maxSamples) {

@@ -1,8 +1,8 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { AnalysisSettings, StimulusSpec, type DeriveMaskRequest, type DeriveMaskResponse } from '@earmark/contracts';
+import { AnalysisSettings, CAPTURE_PURGED, StimulusSpec, type DeriveMaskRequest, type DeriveMaskResponse } from '@earmark/contracts';
 import { Capture, type Project, type TestCase } from '@earmark/db';
 import { ENGINE_VERSION, deriveEnvelope, stimulusAsPlayed } from '@earmark/dsp';
-import { ValidationError } from '../errors.js';
+import { GoneError, ValidationError } from '../errors.js';
 import type { CaptureAudioLoader } from './capture-audio.js';
 
 /** Default smoothing of a derived envelope (1/6 octave): per-bin scatter would otherwise set σ. */
@@ -27,6 +27,13 @@ export class MaskDerivationService {
       );
     }
     const ordered = req.captureIds.map((id) => found.get(id) as Capture);
+    const purged = ordered.filter((c) => c.purgedAt);
+    if (purged.length > 0) {
+      throw new GoneError(
+        `The audio of ${purged.length} of the captures was removed by the retention policy (${purged.map((c) => c.id).join(', ')}); their verdicts are kept, but limits can only be derived from stored audio.`,
+        CAPTURE_PURGED,
+      );
+    }
     const rates = new Set(ordered.map((c) => c.sampleRate));
     if (rates.size > 1) throw new ValidationError(`The golden captures must share one sample rate (got ${[...rates].join(', ')} Hz).`, [{ path: 'body.captureIds', message: 'mixed sample rates' }]);
 

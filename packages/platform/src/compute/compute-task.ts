@@ -30,3 +30,4 @@ export function defineComputeTasks<T extends Record<string, Task>>(tasks: T): { 
 }
 
 const isCloneable = (v: unknown) => v === null || ['string', 'number', 'boolean'].includes(typeof v) || (Array.isArray(v) && v.every((x) => typeof x !== 'function'));
+

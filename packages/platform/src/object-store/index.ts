@@ -1,1 +1,2 @@
 export * from './object-store.js';
+export * from './backup.js';

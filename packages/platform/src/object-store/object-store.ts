@@ -4,6 +4,7 @@ import {
   DeleteObjectCommand,
   GetObjectCommand,
   HeadBucketCommand,
+  HeadObjectCommand,
   ListObjectsV2Command,
   PutObjectCommand,
   S3Client,
@@ -11,11 +12,38 @@ import {
 } from '@aws-sdk/client-s3';
 
 export interface ObjectStoreConfig {
-  endpoint: string;
+  /** Unset: the AWS endpoint of `region`. */
+  endpoint?: string;
   bucket: string;
   region?: string;
-  accessKeyId: string;
-  secretAccessKey: string;
+  /** Both or neither; neither: the SDK's default credential chain (instance or task role, AWS_* variables). */
+  accessKeyId?: string;
+  secretAccessKey?: string;
+  /** endpoint/bucket/key URLs (default, what most on-premises stores need); false: bucket.endpoint/key. */
+  forcePathStyle?: boolean;
+  /** Asked for on every object written; unset: the bucket's default encryption applies. */
+  serverSideEncryption?: 'AES256' | 'aws:kms';
+  /** The KMS key for `aws:kms`; unset: the account's AWS-managed key. */
+  sseKmsKeyId?: string;
+  /** Keys per ListObjectsV2 request in `listAll` (S3 answers at most 1000); smaller only to test paging. */
+  listPageSize?: number;
+}
+
+/** One object as a listing reports it. */
+export interface ListedObject {
+  key: string;
+  size: number;
+  lastModified: Date;
+}
+
+/** What a HEAD of one object tells without its bytes. */
+export interface ObjectHead {
+  size: number;
+  contentType: string | undefined;
+  metadata: Record<string, string>;
+  /** Quoted as S3 sends it; the MD5 of the bytes only for single-part uploads without SSE-KMS. */
+  etag: string | undefined;
+  lastModified: Date | undefined;
 }
 
 // NOTE: the SDK warns on Node 20 at every start; the pinned release supports it.
@@ -27,21 +55,45 @@ export class ObjectStoreUnavailableError extends Error {}
 /** The object does not exist (deleted, or never stored). */
 export class ObjectMissingError extends Error {}
 
+/** One listed object: its key, when it was written and its size. */
+export interface StoredObject {
+  key: string;
+  lastModified: Date;
+  sizeBytes: number;
+}
+
 /** Capture bytes in S3-compatible storage; keys are chosen by the caller. */
 export class ObjectStore {
   private readonly client: S3Client;
+  /** For stream bodies: a retry would resend a stream already consumed, so it gets one attempt (the caller resumes). */
+  private readonly singleAttemptClient: S3Client;
 
   constructor(readonly config: ObjectStoreConfig) {
-    this.client = new S3Client({
+    const { accessKeyId, secretAccessKey } = config;
+    const settings = {
       region: config.region ?? 'us-east-1',
-      endpoint: config.endpoint,
-      forcePathStyle: true,
-      credentials: { accessKeyId: config.accessKeyId, secretAccessKey: config.secretAccessKey },
+      ...(config.endpoint ? { endpoint: config.endpoint } : {}),
+      forcePathStyle: config.forcePathStyle ?? true,
+      ...(accessKeyId && secretAccessKey ? { credentials: { accessKeyId, secretAccessKey } } : {}),
       // NOTE: without these two a streamed upload is stored with aws-chunked framing inside.
       requestChecksumCalculation: 'WHEN_REQUIRED',
       responseChecksumValidation: 'WHEN_REQUIRED',
-      maxAttempts: 2,
-    });
+    } as const;
+    this.client = new S3Client({ ...settings, maxAttempts: 2 });
+    this.singleAttemptClient = new S3Client({ ...settings, maxAttempts: 1 });
+  }
+
+  /**
+   * Readiness: the bucket answers a HEAD with these credentials.
+   * @throws ObjectStoreUnavailableError for any failure, a missing bucket or refused credentials included
+   */
+  async ping(): Promise<void> {
+    try {
+      await this.client.send(new HeadBucketCommand({ Bucket: this.config.bucket }));
+    } catch (error) {
+      const status = error instanceof S3ServiceException ? ` (HTTP ${error.$metadata.httpStatusCode ?? '?'})` : '';
+      throw new ObjectStoreUnavailableError(`bucket ${this.config.bucket} not reachable${status}: ${error instanceof Error ? error.name || error.message : String(error)}`);
+    }
   }
 
   /** Creates the bucket when it does not exist yet. */
@@ -60,8 +112,31 @@ export class ObjectStore {
    *   off the event loop): the request signature uses it instead of hashing the body here again
    */
   async put(key: string, body: Buffer | Uint8Array, contentType: string, metadata: Record<string, string> = {}, options: { payloadSha256?: string } = {}): Promise<void> {
-    const command = new PutObjectCommand({ Bucket: this.config.bucket, Key: key, Body: body, ContentType: contentType, ContentLength: body.byteLength, Metadata: metadata });
-    const { payloadSha256 } = options;
+    const command = this.putCommand(key, body, body.byteLength, contentType, metadata, options.payloadSha256);
+    await this.wrap(() => this.client.send(command));
+  }
+
+  /**
+   * Writes a stream of known length without holding it in memory (backups, restores).
+   * @param payloadSha256 the body's SHA-256 (hex): the request is signed with it, since a stream cannot be hashed twice
+   */
+  async putStream(key: string, body: Readable, size: number, contentType: string, metadata: Record<string, string>, payloadSha256: string): Promise<void> {
+    const command = this.putCommand(key, body, size, contentType, metadata, payloadSha256);
+    await this.wrap(() => this.singleAttemptClient.send(command));
+  }
+
+  private putCommand(key: string, body: Buffer | Uint8Array | Readable, size: number, contentType: string, metadata: Record<string, string>, payloadSha256: string | undefined): PutObjectCommand {
+    const { serverSideEncryption, sseKmsKeyId } = this.config;
+    const command = new PutObjectCommand({
+      Bucket: this.config.bucket,
+      Key: key,
+      Body: body,
+      ContentType: contentType,
+      ContentLength: size,
+      Metadata: metadata,
+      ...(serverSideEncryption ? { ServerSideEncryption: serverSideEncryption } : {}),
+      ...(serverSideEncryption === 'aws:kms' && sseKmsKeyId ? { SSEKMSKeyId: sseKmsKeyId } : {}),
+    });
     if (payloadSha256) {
       command.middlewareStack.add(
         (next) => (args) => {
@@ -71,7 +146,7 @@ export class ObjectStore {
         { step: 'build', name: 'earmarkKnownPayloadHash' },
       );
     }
-    await this.wrap(() => this.client.send(command));
+    return command;
   }
 
   /** @throws ObjectMissingError when there is no such object; ObjectStoreUnavailableError when the store is down */
@@ -88,17 +163,48 @@ export class ObjectStore {
   }
 
   /**
-   * The object as a stream with its length, for answers that must not hold it in memory.
+   * The object as a stream with its length (and type and metadata, from the same answer), for
+   * answers and copies that must not hold it in memory.
    * @throws ObjectMissingError when there is no such object; ObjectStoreUnavailableError when the store is down
    */
-  async getStream(key: string): Promise<{ body: Readable; size: number }> {
+  async getStream(key: string): Promise<{ body: Readable; size: number; contentType: string | undefined; metadata: Record<string, string> }> {
     return this.wrap(async () => {
       const res = await this.client.send(new GetObjectCommand({ Bucket: this.config.bucket, Key: key })).catch((error: unknown) => {
         if (error instanceof S3ServiceException && (error.name === 'NoSuchKey' || error.$metadata.httpStatusCode === 404)) throw new ObjectMissingError(`no object ${key}`);
         throw error;
       });
-      return { body: res.Body as Readable, size: res.ContentLength ?? 0 };
+      return { body: res.Body as Readable, size: res.ContentLength ?? 0, contentType: res.ContentType, metadata: res.Metadata ?? {} };
     });
+  }
+
+  /**
+   * Size, type and metadata of one object without its bytes.
+   * @throws ObjectMissingError when there is no such object; ObjectStoreUnavailableError when the store is down
+   */
+  async head(key: string): Promise<ObjectHead> {
+    return this.wrap(async () => {
+      const res = await this.client.send(new HeadObjectCommand({ Bucket: this.config.bucket, Key: key })).catch((error: unknown) => {
+        if (error instanceof S3ServiceException && error.$metadata.httpStatusCode === 404) throw new ObjectMissingError(`no object ${key}`);
+        throw error;
+      });
+      return { size: res.ContentLength ?? 0, contentType: res.ContentType, metadata: res.Metadata ?? {}, etag: res.ETag, lastModified: res.LastModified };
+    });
+  }
+
+  /**
+   * Every object under a prefix in key order, one listing page at a time (memory stays one page).
+   * @throws ObjectStoreUnavailableError when the store is down at any page
+   */
+  async *listAll(prefix = ''): AsyncGenerator<ListedObject> {
+    let continuationToken: string | undefined;
+    do {
+      const page = await this.wrap(() =>
+        this.client.send(new ListObjectsV2Command({ Bucket: this.config.bucket, Prefix: prefix, MaxKeys: this.config.listPageSize ?? 1000, ContinuationToken: continuationToken })),
+      );
+      for (const o of page.Contents ?? []) if (o.Key) yield { key: o.Key, size: o.Size ?? 0, lastModified: o.LastModified ?? new Date(0) };
+      // NOTE: a truncated page without a token would loop for ever; stop rather than trust it.
+      continuationToken = page.IsTruncated ? page.NextContinuationToken : undefined;
+    } while (continuationToken);
   }
 
   /** Keys under a prefix (first 1000; for tests and maintenance). */
@@ -109,12 +215,28 @@ export class ObjectStore {
     });
   }
 
+  /**
+   * Every object under a prefix, a page at a time (at most `pageSize`, ≤ 1000), following the
+   * store's continuation tokens, so a bucket of any size is walked without holding it all. An
+   * object listed without a time reads as written now (never "old enough" to clean up).
+   * @throws ObjectStoreUnavailableError when the store is down
+   */
+  async *listPages(prefix = '', pageSize = 1000): AsyncGenerator<StoredObject[]> {
+    let token: string | undefined;
+    do {
+      const res = await this.wrap(() => this.client.send(new ListObjectsV2Command({ Bucket: this.config.bucket, Prefix: prefix, ContinuationToken: token, MaxKeys: pageSize })));
+      yield (res.Contents ?? []).flatMap((o) => (o.Key ? [{ key: o.Key, lastModified: o.LastModified ?? new Date(), sizeBytes: o.Size ?? 0 }] : []));
+      token = res.IsTruncated ? res.NextContinuationToken : undefined;
+    } while (token);
+  }
+
   async delete(key: string): Promise<void> {
     await this.wrap(() => this.client.send(new DeleteObjectCommand({ Bucket: this.config.bucket, Key: key })));
   }
 
   destroy(): void {
     this.client.destroy();
+    this.singleAttemptClient.destroy();
   }
 
   private async wrap<T>(fn: () => Promise<T>): Promise<T> {

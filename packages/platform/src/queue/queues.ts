@@ -39,6 +39,16 @@ export async function createQueues(boss: PgBoss, settings: QueueSettings = {}): 
       expireInSeconds: 1800,
     },
     {
+      // One run at a time across every worker (the run claims its rows with SKIP LOCKED as well);
+      // an hour to finish, then the next scheduled run carries on where it stopped.
+      name: QUEUES.applyRetention,
+      policy: 'singleton',
+      retryLimit: 2,
+      retryDelay: settings.retryDelaySeconds ?? 60,
+      retryBackoff: true,
+      expireInSeconds: 3600,
+    },
+    {
       name: QUEUES.sendNotifications,
       policy: 'standard',
       retryLimit: 10,
@@ -72,4 +82,15 @@ async function createQueueOnce(boss: PgBoss, queue: PgBoss.Queue): Promise<void>
       if (await boss.getQueue(queue.name)) return;
     }
   }
+}
+
+/** When the retention run starts: hourly, at a minute past the hour's busy start (UTC). */
+export const RETENTION_CRON = '7 * * * *';
+
+/**
+ * Schedules the periodic jobs (pg-boss keeps one schedule per queue, so every worker calling this
+ * at start-up is harmless; its cron monitor sends each run once).
+ */
+export async function scheduleMaintenance(boss: PgBoss): Promise<void> {
+  await boss.schedule(QUEUES.applyRetention, RETENTION_CRON, {}, { tz: 'UTC' });
 }
