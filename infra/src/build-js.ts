@@ -54,3 +54,17 @@ export async function buildServerPackages(log: (line: string) => void): Promise<
   log(`transpiled ${written} files of ${SERVER_PACKAGES.length} packages to build/`);
   return written;
 }
+
+function newestMtime(dir: string): number {
+  return Math.max(0, ...filesUnder(dir).map((f) => fs.statSync(f).mtimeMs));
+}
+
+/** Builds the server packages when a build is missing or older than any of their sources (tests that run the built processes). */
+export async function ensureServerBuilt(log: (line: string) => void): Promise<void> {
+  const stale = SERVER_PACKAGES.some((pkg) => {
+    const marker = path.join(repoRoot, pkg, 'build', 'index.js');
+    const built = fs.existsSync(marker) ? fs.statSync(marker).mtimeMs : 0;
+    return built < newestMtime(path.join(repoRoot, pkg, 'src'));
+  });
+  if (stale) await buildServerPackages(log);
+}

@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import type { AddressInfo } from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
-import { createApiRuntime, createApp, loadApiEnv } from '@earmark/api';
+import { createApiRuntime, createApp, loadApiEnv, type ApiRuntime } from '@earmark/api';
 import { ApiToken, initOrm, seedDemo, seedRoles, type RoleFixture } from '@earmark/db';
 import { generateTokenSecret, type ObjectStore } from '@earmark/platform';
 import { createTestDatabase } from '@earmark/db/testing';
@@ -22,6 +22,8 @@ export interface Stack {
   workerEnv: Record<string, string>;
   /** The API's object store (captures, plot cache). */
   objectStore: ObjectStore;
+  /** The in-process API's composition root (its metrics registry and probes). */
+  apiRuntime: ApiRuntime;
   smtp: { inboxUrl: string; stop(): Promise<void>; restart(): Promise<void> };
   startWorker(extraEnv?: Record<string, string>): Promise<WorkerProcess>;
   close(): Promise<void>;
@@ -83,6 +85,7 @@ export async function startStack(opts: { seed?: 'roles' | 'demo'; database?: { u
     ciToken: secret.token,
     workerEnv,
     objectStore,
+    apiRuntime: runtime,
     smtp: {
       inboxUrl: smtp.inboxUrl,
       stop: () => smtp.close(),

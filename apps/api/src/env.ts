@@ -52,6 +52,11 @@ const apiVars = {
   EARMARK_VERDICT_WAIT_MAX_HELD: z.coerce.number().int().min(0).default(1000),
   /** Largest capture upload accepted. */
   EARMARK_MAX_CAPTURE_BYTES: z.coerce.number().int().min(1024).default(64 * 1024 * 1024),
+  /**
+   * Storage quota of projects without their own: bytes of stored capture audio, past which uploads
+   * answer 413; 0 = unlimited. An administrator sets a project's own (PATCH /api/projects/:project).
+   */
+  EARMARK_PROJECT_QUOTA_BYTES: z.coerce.number().int().min(0).default(0),
   /** Capture uploads read and decoded at once by this process; past it, 503 with Retry-After before the body is read. */
   EARMARK_MAX_CONCURRENT_UPLOADS: z.coerce.number().int().min(1).default(8),
   /** Compute threads of the API (decoding, plots, WAV rendering): the CPU heavy requests may take. */

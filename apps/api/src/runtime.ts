@@ -63,7 +63,7 @@ export async function createApiRuntime(env: ApiEnv, logger: Logger, existing: { 
     maxQueue: env.EARMARK_API_COMPUTE_QUEUE,
     memoryMbPerThread: env.EARMARK_API_COMPUTE_MEMORY_MB,
   });
-  const gate = createGate({ objectStore, jobs: createJobProducer(boss), links: createLinks(env.EARMARK_PUBLIC_URL), logger, compute: poolViewsCompute(compute, { maxPlotSamples: env.EARMARK_API_PLOT_MAX_SAMPLES }) });
+  const gate = createGate({ objectStore, jobs: createJobProducer(boss), links: createLinks(env.EARMARK_PUBLIC_URL), logger, compute: poolViewsCompute(compute, { maxPlotSamples: env.EARMARK_API_PLOT_MAX_SAMPLES }), storageQuotaDefaultBytes: env.EARMARK_PROJECT_QUOTA_BYTES });
   let listening = () => false;
   const verdictWaits = new VerdictWaits(env.EARMARK_VERDICT_WAIT_MAX_HELD, () => listening());
   const listener = startPgListener({

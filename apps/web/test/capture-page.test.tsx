@@ -53,6 +53,7 @@ function detail(overrides: { status?: CaptureDetail['capture']['status']; outcom
       channels: 2,
       frames: 480_000,
       createdAt: '2025-06-12T14:03:11.000Z',
+      purgedAt: null,
       verdict:
         status === 'done'
           ? {

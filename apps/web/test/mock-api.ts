@@ -58,6 +58,9 @@ export const kestrel: Project = {
   targetCount: 3,
   testCaseCount: 14,
   buildCount: 212,
+  storageUsedBytes: 1_610_612_736,
+  storageQuotaBytes: null,
+  storageQuotaSource: 'default',
 };
 
 export const heron: Project = {
@@ -69,6 +72,9 @@ export const heron: Project = {
   targetCount: 2,
   testCaseCount: 9,
   buildCount: 0,
+  storageUsedBytes: 0,
+  storageQuotaBytes: null,
+  storageQuotaSource: 'default',
 };
 
 export function seedSession(accessToken = 'access-1', refreshToken = 'refresh-1'): void {

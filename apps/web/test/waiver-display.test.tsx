@@ -67,7 +67,7 @@ describe('a waiver where it matters', () => {
     const detail = {
       capture: {
         id: 'cap-1', projectKey: 'kestrel-buds', buildSha: SHA, testCase: 'eq.music.sweep', target: 'evt2-48k', status: 'done', sha256: 'e'.repeat(64), sizeBytes: 1,
-        sampleRate: 48000, channels: 1, frames: 48000, createdAt: '2025-06-12T14:03:11.000Z',
+        sampleRate: 48000, channels: 1, frames: 48000, createdAt: '2025-06-12T14:03:11.000Z', purgedAt: null,
         verdict: {
           outcome: 'pass', reason: 'passed with waiver: hf-level', engineVersion: '1.0.0', maskRevisionId: 'mr-1', maskRevision: 1, createdAt: '2025-06-12T14:05:00.000Z',
           checks: [waivedCheck, passingCheck], waiver, previousOutcome: 'fail',

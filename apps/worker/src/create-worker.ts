@@ -2,13 +2,14 @@ import os from 'node:os';
 import { AnalyzeCaptureJob, QUEUES } from '@earmark/contracts';
 import { assertMigrated, initOrm } from '@earmark/db';
 import { ANALYSIS_THREAD_MODULE, createGate, createJobProducer, createLinks, registerSharedGauges, type Gate } from '@earmark/domain';
-import { ObjectStore, createComputePool, createMetricsRegistry, dependencyChecks, healthProbes, objectStoreConfigOf, startBoss, type ComputePool, type HealthProbes, type Lifecycle, type Registry, type RunSql } from '@earmark/platform';
+import { ObjectStore, createComputePool, createMetricsRegistry, dependencyChecks, healthProbes, objectStoreConfigOf, scheduleMaintenance, startBoss, type ComputePool, type HealthProbes, type Lifecycle, type Registry, type RunSql } from '@earmark/platform';
 import type { MikroORM } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
 import type { Logger } from 'pino';
 import type { WorkerEnv } from './env.js';
 import { analyzeCapture } from './jobs/analyze-capture.job.js';
 import { evaluateImpact } from './jobs/evaluate-impact.job.js';
+import { applyRetentionJob } from './jobs/apply-retention.job.js';
 import { sendNotifications } from './jobs/send-notifications.job.js';
 import { judgeAbandoned } from './jobs/abandon-capture.js';
 import { createMailer, type Mailer } from './mailer.js';
@@ -113,6 +114,11 @@ export async function createWorker(env: WorkerEnv, logger: Logger, options: { in
       // Impact of a mask revision on past builds (ImpactRun): one run at a time, progress in the row.
       await boss.work(QUEUES.evaluateImpact, { batchSize: 1, pollingIntervalSeconds: 1 }, async ([job]) => {
         if (job) await countJobs(QUEUES.evaluateImpact, evaluateImpact)(job, { orm, objectStore, logger, analysis });
+      });
+      // Data lifecycle, hourly: retention and orphaned objects (one run at a time across workers).
+      await scheduleMaintenance(boss);
+      await boss.work(QUEUES.applyRetention, { batchSize: 1, pollingIntervalSeconds: 30 }, async ([job]) => {
+        if (job) await applyRetentionJob(job, { orm, objectStore, logger, env });
       });
       sweepTimer = setInterval(() => {
         sweep({ orm, jobs, logger, links, judging, queuedAfterSeconds: env.EARMARK_SWEEP_INTERVAL_S * 2, analysisExpireSeconds: env.EARMARK_ANALYSIS_EXPIRE_S }).catch((error: unknown) => logger.warn({ err: error }, 'sweep failed'));

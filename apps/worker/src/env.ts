@@ -55,6 +55,12 @@ const workerVars = {
   EARMARK_JOB_MAINTENANCE_S: z.coerce.number().int().min(1).default(60),
   /** Seconds jobs in flight may take to finish after SIGTERM; then they go back to the queue. */
   EARMARK_WORKER_DRAIN_S: z.coerce.number().min(1).max(600).default(20),
+  /** Days a passing build's captures keep their audio and plots (verdicts are kept forever); 0 = forever. */
+  EARMARK_RETENTION_PASSED_DAYS: z.coerce.number().int().min(0).default(90),
+  /** Days the captures of a failing, erroring or waived build keep their audio and plots; 0 = forever. */
+  EARMARK_RETENTION_FAILED_DAYS: z.coerce.number().int().min(0).default(365),
+  /** Hours an object under captures/ or plot-cache/ that no row accounts for is left alone before it is deleted. */
+  EARMARK_ORPHAN_GRACE_HOURS: z.coerce.number().min(1).default(24),
   /** Fault injection for recovery tests only: hold each analysis this long after it starts. */
   EARMARK_ANALYSIS_DELAY_MS: z.coerce.number().int().min(0).default(0),
 };

@@ -56,6 +56,8 @@ export async function startCommand(): Promise<number> {
 
   const env = {
     ...process.env,
+    // The demo: development defaults (the fakes) even in a shell that exports NODE_ENV=production.
+    EARMARK_MODE: 'development',
     EARMARK_DATABASE_URL: url,
     EARMARK_JWT_SECRET: settings.EARMARK_JWT_SECRET ?? loadLocalSecrets().jwtSecret,
     EARMARK_API_PORT: String(settings.EARMARK_API_PORT),

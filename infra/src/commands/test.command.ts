@@ -1,4 +1,5 @@
 import path from 'node:path';
+import { buildServerPackages } from '../build-js.js';
 import { ensureChromium } from '../chromium.js';
 import { ensurePostgresInstalled } from '../postgres.js';
 import { repoRoot } from '../paths.js';
@@ -23,6 +24,9 @@ export async function testCommand(args: string[]): Promise<number> {
   if ((await runInherited(process.execPath, [bin('typescript', 'bin/tsc'), '-b'], { cwd: repoRoot })) !== 0) return 1;
   log('lint (eslint)…');
   if ((await runInherited(process.execPath, [bin('eslint', 'bin/eslint.js'), '.'], { cwd: repoRoot })) !== 0) return 1;
+  // The production tests run the built JavaScript, exactly what `npm run build` makes.
+  log('build (esbuild: the production processes)…');
+  await buildServerPackages(log);
   log('tests (vitest)…');
   try {
     return await runInherited(process.execPath, [bin('vitest', 'vitest.mjs'), 'run', ...args], { cwd: repoRoot });

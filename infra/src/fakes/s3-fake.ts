@@ -15,7 +15,9 @@ export interface S3Fake {
 export async function startS3Fake(opts: { port: number; directory: string; bucket: string }): Promise<S3Fake> {
   fs.mkdirSync(opts.directory, { recursive: true, mode: 0o700 });
   fs.chmodSync(opts.directory, 0o700); // a folder left by an older run may be world-readable
-  const child = fork(new URL('./s3-fake-process.mjs', import.meta.url), [JSON.stringify(opts)], { execArgv: [], stdio: ['ignore', 'inherit', 'inherit', 'ipc'] });
+  // s3rver seals ListObjectsV2 continuation tokens with DES, which OpenSSL 3 keeps in its legacy
+  // provider: without it every listing past the first page (1000 keys) fails with a 500.
+  const child = fork(new URL('./s3-fake-process.mjs', import.meta.url), [JSON.stringify(opts)], { execArgv: ['--openssl-legacy-provider'], stdio: ['ignore', 'inherit', 'inherit', 'ipc'] });
   const listening = await new Promise<{ address: string; port: number }>((resolve, reject) => {
     child.once('message', (m) => resolve(m as { address: string; port: number }));
     child.once('error', reject);

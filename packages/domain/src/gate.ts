@@ -26,6 +26,8 @@ export interface GateDeps {
   logger: Logger;
   /** Where decoding, plots and WAV rendering run; without it, on the calling thread (`inlineViewsCompute`). */
   compute?: ViewsCompute;
+  /** The storage quota of projects without their own (EARMARK_PROJECT_QUOTA_BYTES; 0 or unset: unlimited). */
+  storageQuotaDefaultBytes?: number;
 }
 
 /**
@@ -33,7 +35,7 @@ export interface GateDeps {
  * `createApiRuntime`, the worker's `createWorker`, the tests through either).
  */
 export function createGate(deps: GateDeps) {
-  const { objectStore, jobs, links, logger } = deps;
+  const { objectStore, jobs, links, logger, storageQuotaDefaultBytes } = deps;
   const catalog = new CatalogService();
   const masks = new MaskService(links);
   const findings = new FindingsService();
@@ -48,12 +50,12 @@ export function createGate(deps: GateDeps) {
     findings,
     views,
     stimuli,
-    projects: new ProjectService(),
+    projects: new ProjectService(storageQuotaDefaultBytes),
     subscriptions: new SubscriptionService(),
     tokens: new TokenService(),
     workflow: new MaskWorkflowService(masks, links),
     waivers: new WaiverService(links),
-    ingest: new CaptureIngestService({ objectStore, jobs, links, logger, compute }),
+    ingest: new CaptureIngestService({ objectStore, jobs, links, logger, compute, storageQuotaDefaultBytes }),
     derivation: new MaskDerivationService(views.audioLoader),
     impact: new ImpactService(jobs),
     drift: new DriftService(),

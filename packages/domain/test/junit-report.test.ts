@@ -40,6 +40,7 @@ const capture = (testCase: string, status: CaptureDto['status'], v: VerdictDto |
   channels: 1,
   frames: 1,
   createdAt: '2026-12-01T09:59:00.000Z',
+  purgedAt: null,
   verdict: v,
   links: { self: '', build: '', dashboard: '' },
 });

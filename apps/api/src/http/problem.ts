@@ -17,9 +17,14 @@ const DOMAIN_STATUS: Record<DomainErrorKind, { status: number; title: string }> 
   invalid: { status: 422, title: 'Invalid request' },
   unsupported_capture: { status: 422, title: 'Unsupported capture' },
   unavailable: { status: 503, title: 'Service unavailable' },
+  gone: { status: 410, title: 'Gone' },
+  quota_exceeded: { status: 413, title: 'Storage quota exceeded' },
 };
 
-const typeFor = (status: number) => `https://earmark.dev/problems/${status}`;
+/** Kinds whose problem `type` names the reason (`…/problems/capture-purged`) rather than the status: clients branch on it. */
+const TYPED_BY_CODE = new Set<DomainErrorKind>(['gone', 'quota_exceeded']);
+
+const typeFor = (status: number | string) => `https://earmark.dev/problems/${status}`;
 
 export function sendProblem(res: Response, problem: Problem, headers: Record<string, string> = {}): void {
   for (const [k, v] of Object.entries(headers)) res.setHeader(k, v);
@@ -56,7 +61,7 @@ export function errorHandler(logger: Logger): ErrorRequestHandler {
       const headers: Record<string, string> = err instanceof ServiceUnavailableError ? { 'Retry-After': String(err.retryAfterSeconds) } : {};
       sendProblem(
         res,
-        { type: typeFor(status), title, status, detail: err.message, instance: req.originalUrl, ...(err.fieldErrors.length ? { errors: err.fieldErrors } : {}), ...(err.code ? { code: err.code } : {}) },
+        { type: TYPED_BY_CODE.has(err.kind) && err.code ? typeFor(err.code) : typeFor(status), title, status, detail: err.message, instance: req.originalUrl, ...(err.fieldErrors.length ? { errors: err.fieldErrors } : {}), ...(err.code ? { code: err.code } : {}) },
         headers,
       );
       return;

@@ -1,4 +1,4 @@
-import { CreateProjectRequest, MemberRow, Project, SetMembershipRequest } from '@earmark/contracts';
+import { CreateProjectRequest, MemberRow, Project, SetMembershipRequest, UpdateProjectRequest } from '@earmark/contracts';
 import { z } from 'zod';
 import { type ProjectService } from '@earmark/domain';
 import { requireProject, requireUser, route, type RouteDef } from '../http/route.js';
@@ -38,6 +38,17 @@ export function projectRoutes(projects: ProjectService): RouteDef[] {
       response: Project,
       async handle(ctx) {
         ctx.res.json(await projects.describe(ctx.em, requireProject(ctx), requireUser(ctx)));
+      },
+    }),
+    route({
+      method: 'patch',
+      path: '/api/projects/:project',
+      access: { kind: 'project', permission: 'project.administer' },
+      summary: "Change a project's settings: its storage quota (bytes; 0 = unlimited, null = the server default)",
+      body: UpdateProjectRequest,
+      response: Project,
+      async handle(ctx) {
+        ctx.res.json(await projects.update(ctx.em, requireProject(ctx), ctx.body, requireUser(ctx)));
       },
     }),
     route({

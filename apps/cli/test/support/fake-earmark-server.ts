@@ -197,6 +197,7 @@ export async function startFakeEarmarkServer(options: FakeOptions = {}): Promise
       channels: audio.channels.length,
       frames: audio.frames,
       createdAt: new Date().toISOString(),
+      purgedAt: null,
       verdict: null,
       links: { self: `${base}/api/v1/captures/${id}`, build: `${base}/api/v1/projects/${project}/builds/${sha}`, dashboard: `${base}/projects/${project}/builds/${sha}/captures/${id}` },
     });

@@ -38,6 +38,11 @@ export async function analyzeCapture(job: PgBoss.JobWithMetadata<unknown>, deps:
     deps.logger.warn({ captureId }, 'capture no longer exists; nothing to analyse');
     return;
   }
+  if (capture.purgedAt) {
+    // A re-evaluation queued before the retention run: the audio is gone and the verdicts stay as they are.
+    deps.logger.warn({ captureId, maskRevisionId }, 'capture audio was purged by the retention policy; not analysed');
+    return;
+  }
   // A re-evaluation names its (approved) revision; otherwise the revision in force judges.
   const mask = maskRevisionId ? await em.findOne(MaskRevision, { id: maskRevisionId }) : await maskInForce(em, capture.testCase, capture.target);
   const attempt = job.retryCount + 1;

@@ -132,7 +132,8 @@ export async function evaluateImpact(job: PgBoss.Job<unknown>, deps: ImpactDeps)
   const testCase = mask.testCase;
   try {
     const builds = await recentBuilds(em, testCase.project, testCase, 'last-n', run.builds);
-    const cells = await capturesGovernedBy(em, mask, builds.map((b) => b.id));
+    // Captures whose audio the retention policy removed cannot be judged again: left out, not counted as errors.
+    const cells = (await capturesGovernedBy(em, mask, builds.map((b) => b.id))).filter((c) => !c.purged);
     await update(deps.orm, run.id, { state: 'running', progress: 0, total: cells.length });
     const captures = await em.find(Capture, { id: { $in: cells.map((c) => c.id) } }, { populate: ['build', 'testCase', 'target'] });
     const evaluated: Evaluated[] = [];

@@ -39,11 +39,11 @@ export function recentBuilds(em: EntityManager, project: Project, testCase: Test
  * all-targets revision — on every target without an approved revision of its own. Impact runs
  * and re-evaluation both select their cells here.
  */
-export async function capturesGovernedBy(em: EntityManager, revision: MaskRevision, buildIds: readonly string[]): Promise<{ id: string; build_id: string }[]> {
+export async function capturesGovernedBy(em: EntityManager, revision: MaskRevision, buildIds: readonly string[]): Promise<{ id: string; build_id: string; purged: boolean }[]> {
   if (buildIds.length === 0) return [];
   const target = revision.target?.id ?? null;
   return em.getConnection().execute(
-    `select distinct on (c.build_id, c.target_id) c.id, c.build_id from capture c
+    `select distinct on (c.build_id, c.target_id) c.id, c.build_id, c.purged_at is not null as purged from capture c
       where c.test_case_id = ? and c.build_id = any(?::uuid[]) and c.status in ('done', 'error')
         and (?::uuid is not null and c.target_id = ?::uuid
              or ?::uuid is null and not exists (select 1 from mask_revision m where m.test_case_id = c.test_case_id

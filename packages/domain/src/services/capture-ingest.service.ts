@@ -16,6 +16,7 @@ import { recordAudit } from './audit.service.js';
 import { actorName, type Principal } from '../actor.js';
 import { storedSettingsFor } from '../judging/judging-settings.js';
 import { maskInForce } from '../repositories/masks.js';
+import { assertWithinQuota } from '../lifecycle/storage-quota.js';
 
 /** A capture upload as the HTTP edge parsed it: bytes, how to read them, and where they go. */
 export interface CaptureUpload {
@@ -35,6 +36,8 @@ export interface IngestDeps {
   logger: Logger;
   /** Where the full decode runs: a compute pool in the API. */
   compute: ViewsCompute;
+  /** The storage quota of projects without their own (EARMARK_PROJECT_QUOTA_BYTES; 0 or unset: unlimited). */
+  storageQuotaDefaultBytes?: number;
 }
 
 /** The test case and target an upload goes to. */
@@ -66,6 +69,8 @@ export class CaptureIngestService {
       if (existing) return this.replay(em, existing, testCase, target);
     }
 
+    // Before decoding or storing anything: a capture past the quota costs one indexed sum.
+    await assertWithinQuota(em, project, upload.bytes.length, this.deps.storageQuotaDefaultBytes);
     const audio = await this.inspect(upload);
     if (target.sampleRate !== null && audio.sampleRate !== target.sampleRate) {
       throw new UnsupportedCaptureError(

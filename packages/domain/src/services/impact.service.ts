@@ -1,10 +1,10 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { ImpactResult, type CreateImpactRunRequest, type ImpactRunDto, type ReevaluateRequest, type ReevaluateResponse } from '@earmark/contracts';
+import { CAPTURE_PURGED, ImpactResult, type CreateImpactRunRequest, type ImpactRunDto, type ReevaluateRequest, type ReevaluateResponse } from '@earmark/contracts';
 import { ImpactRun, MaskRevision, type Project, type TestCase, type User } from '@earmark/db';
 import type { JobProducer } from '../jobs/job-producer.js';
 import { capturesGovernedBy, recentBuilds } from '../repositories/masks.js';
 import { ENGINE_VERSION } from '@earmark/dsp';
-import { ConflictError, NotFoundError, ServiceUnavailableError } from '../errors.js';
+import { ConflictError, GoneError, NotFoundError, ServiceUnavailableError } from '../errors.js';
 import { recordAudit } from './audit.service.js';
 
 export function toImpactRunDto(run: ImpactRun): ImpactRunDto {
@@ -72,7 +72,13 @@ export class ImpactService {
     const mask = await this.revision(em, testCase, revision);
     if (mask.state !== 'approved') throw new ConflictError(`Revision ${revision} is ${mask.state}; only the approved revision in force can re-evaluate builds.`);
     const builds = await recentBuilds(em, project, testCase, req.scope, req.builds ?? 20);
-    const captures = await capturesGovernedBy(em, mask, builds.map((b) => b.id));
+    const governed = await capturesGovernedBy(em, mask, builds.map((b) => b.id));
+    // Captures whose audio the retention policy removed keep their verdicts; they cannot be judged again.
+    const captures = governed.filter((c) => !c.purged);
+    const purged = governed.length - captures.length;
+    if (governed.length > 0 && captures.length === 0) {
+      throw new GoneError(`The audio of all ${purged} selected captures was removed by the retention policy; their verdicts are kept, and none can be re-evaluated.`, CAPTURE_PURGED);
+    }
     // Judged already by this revision with this engine: nothing would change. A verdict of an
     // older engine is judged again, so a new engine's numbers reach past builds.
     const judged = await em
@@ -84,8 +90,8 @@ export class ImpactService {
       const ids = await Promise.all(todo.map((captureId) => this.jobs.analyzeCapture({ captureId, maskRevisionId: mask.id }).catch(() => null)));
       if (ids.some((id) => !id)) throw new ServiceUnavailableError('The job queue is unavailable right now; try again shortly.');
     }
-    recordAudit(em, { actor: `user:${user.email}`, action: 'mask.reevaluate', subject: `mask:${testCase.key}#${revision}`, project, details: { scope: req.scope, builds: builds.length, queued: todo.length } });
+    recordAudit(em, { actor: `user:${user.email}`, action: 'mask.reevaluate', subject: `mask:${testCase.key}#${revision}`, project, details: { scope: req.scope, builds: builds.length, queued: todo.length, purged } });
     await em.flush();
-    return { revision, builds: builds.length, queued: todo.length, captureIds: todo };
+    return { revision, builds: builds.length, queued: todo.length, captureIds: todo, purged };
   }
 }

@@ -1,10 +1,11 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { subscribesToBuildMailByDefault, type CreateProjectRequest, type MemberRow, type Project as ProjectDto, type ProjectRole } from '@earmark/contracts';
+import { subscribesToBuildMailByDefault, type UpdateProjectRequest, type CreateProjectRequest, type MemberRow, type Project as ProjectDto, type ProjectRole } from '@earmark/contracts';
 import { Membership, Project, User } from '@earmark/db';
 import type { Principal } from '../actor.js';
 import { actorName } from '../actor.js';
 import { ConflictError, NotFoundError } from '../errors.js';
 import { recordAudit } from './audit.service.js';
+import { effectiveQuota, storageUsedBytes, type EffectiveQuota } from '../lifecycle/storage-quota.js';
 
 interface ProjectCounts {
   project_id: string;
@@ -27,7 +28,7 @@ async function countsFor(em: EntityManager, projectIds: string[]): Promise<Map<s
   return new Map(rows.map((r) => [r.project_id, r]));
 }
 
-function toDto(project: Project, myRole: ProjectDto['myRole'], counts: ProjectCounts | undefined): ProjectDto {
+function toDto(project: Project, myRole: ProjectDto['myRole'], counts: ProjectCounts | undefined, storage: { usedBytes: number; quota: EffectiveQuota }): ProjectDto {
   return {
     key: project.key,
     name: project.name,
@@ -37,25 +38,55 @@ function toDto(project: Project, myRole: ProjectDto['myRole'], counts: ProjectCo
     targetCount: Number(counts?.targets ?? 0),
     testCaseCount: Number(counts?.test_cases ?? 0),
     buildCount: Number(counts?.builds ?? 0),
+    storageUsedBytes: storage.usedBytes,
+    storageQuotaBytes: storage.quota.bytes,
+    storageQuotaSource: storage.quota.source,
   };
 }
 
 export class ProjectService {
+  /** @param storageQuotaDefaultBytes the quota of projects without their own (EARMARK_PROJECT_QUOTA_BYTES; 0 or unset: unlimited) */
+  constructor(private readonly storageQuotaDefaultBytes?: number) {}
+
+  private storage(project: Project, used: Map<string, number>) {
+    return { usedBytes: used.get(project.id) ?? 0, quota: effectiveQuota(project, this.storageQuotaDefaultBytes) };
+  }
+
   /** Projects the user can see: all for admins, their memberships otherwise. */
   async listFor(em: EntityManager, principal: Extract<Principal, { kind: 'user' }>): Promise<ProjectDto[]> {
     const roleByProject = new Map(principal.memberships.map((m) => [m.project.id, m.role] as const));
     const projects = principal.user.isAdmin
       ? await em.find(Project, {}, { orderBy: { name: 'asc' } })
       : principal.memberships.map((m) => m.project).sort((a, b) => a.name.localeCompare(b.name));
-    const counts = await countsFor(em, projects.map((p) => p.id));
-    return projects.map((p) => toDto(p, roleByProject.get(p.id) ?? 'admin', counts.get(p.id)));
+    const ids = projects.map((p) => p.id);
+    const [counts, used] = [await countsFor(em, ids), await storageUsedBytes(em, ids)];
+    return projects.map((p) => toDto(p, roleByProject.get(p.id) ?? 'admin', counts.get(p.id), this.storage(p, used)));
   }
 
   async describe(em: EntityManager, project: Project, principal: Principal): Promise<ProjectDto> {
-    const counts = await countsFor(em, [project.id]);
+    const [counts, used] = [await countsFor(em, [project.id]), await storageUsedBytes(em, [project.id])];
     const role =
       principal.kind === 'user' ? (principal.memberships.find((m) => m.project.id === project.id)?.role ?? 'admin') : 'viewer';
-    return toDto(project, role, counts.get(project.id));
+    return toDto(project, role, counts.get(project.id), this.storage(project, used));
+  }
+
+  /**
+   * Changes a project's settings (administrators): its storage quota. Audited with the old value.
+   * Lowering the quota below what is stored refuses only the next uploads; nothing stored is removed.
+   */
+  async update(em: EntityManager, project: Project, input: UpdateProjectRequest, principal: Principal): Promise<ProjectDto> {
+    if (input.storageQuotaBytes !== undefined && input.storageQuotaBytes !== project.storageQuotaBytes) {
+      recordAudit(em, {
+        actor: actorName(principal),
+        action: 'project.storage-quota',
+        subject: `project:${project.key}`,
+        project,
+        details: { from: project.storageQuotaBytes, to: input.storageQuotaBytes },
+      });
+      project.storageQuotaBytes = input.storageQuotaBytes;
+      await em.flush();
+    }
+    return this.describe(em, project, principal);
   }
 
   /** @throws ConflictError when the key is taken. */
@@ -64,7 +95,7 @@ export class ProjectService {
     const project = em.create(Project, { key: input.key, name: input.name, description: input.description });
     recordAudit(em, { actor: actorName(principal), action: 'project.create', subject: `project:${input.key}`, project });
     await em.flush();
-    return toDto(project, 'admin', undefined);
+    return toDto(project, 'admin', undefined, this.storage(project, new Map()));
   }
 
   async members(em: EntityManager, project: Project): Promise<MemberRow[]> {

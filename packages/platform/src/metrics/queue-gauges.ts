@@ -4,7 +4,8 @@ import { registerScrapeGauge } from './scrape-gauge.js';
 
 const SAME_FROM_EVERY_PROCESS = 'Read from the database at scrape time: the same value from every process (take max, not sum).';
 
-// Every queue pg-boss knows, with a zero for each state that has no job, so a quiet queue still has series.
+// Every queue of ours that pg-boss knows (not its own internal ones), with a zero for each state
+// that has no job, so a quiet queue still has series.
 const DEPTH_SQL = `
   with live as (
     select name, state::text as state, count(*)::float8 as jobs
@@ -13,12 +14,14 @@ const DEPTH_SQL = `
   select q.name as queue, s.state, coalesce(l.jobs, 0) as jobs
     from pgboss.queue q
     cross join (values ('created'), ('retry'), ('active')) as s(state)
-    left join live l on l.name = q.name and l.state = s.state`;
+    left join live l on l.name = q.name and l.state = s.state
+   where not starts_with(q.name, '__pgboss__')`;
 
 const OLDEST_SQL = `
   select q.name as queue, coalesce(extract(epoch from now() - min(j.created_on)), 0)::float8 as seconds
     from pgboss.queue q
     left join pgboss.job j on j.name = q.name and j.state < 'active'
+   where not starts_with(q.name, '__pgboss__')
    group by q.name`;
 
 /**

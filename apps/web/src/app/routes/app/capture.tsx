@@ -8,6 +8,7 @@ import { getCaptureQueryOptions, isCaptureInProgress, useCapture } from '@/featu
 import { AnalysisFailed, AnalysisProgress, CaptureHeader } from '@/features/captures/components/capture-header';
 import { ChecksTable } from '@/features/captures/components/checks-table';
 import { ListenPanel } from '@/features/captures/components/listen-panel';
+import { PurgedAudioNote } from '@/features/captures/components/purged-audio-note';
 import { ResponsePanel } from '@/features/captures/components/response-panel';
 import { SpectrumPanel } from '@/features/captures/components/spectrum-panel';
 import { WaveformPanel } from '@/features/captures/components/waveform-panel';
@@ -51,6 +52,9 @@ function CaptureWorkspace({ projectKey, captureId, detail }: { projectKey: strin
   const status = detail.capture.status;
   const inProgress = isCaptureInProgress(status);
   const analysed = !inProgress && detail.capture.verdict !== null;
+  // Audio removed by the retention policy: the verdict and checks stay, the plots and player go.
+  const purgedAt = detail.capture.purgedAt;
+  const plotted = analysed && !purgedAt;
 
   return (
     <div className="space-y-6">
@@ -59,7 +63,7 @@ function CaptureWorkspace({ projectKey, captureId, detail }: { projectKey: strin
 
       {status === 'queued' || status === 'analysing' ? <AnalysisProgress status={status} /> : null}
 
-      {analysed ? <SpectrumPanel projectKey={projectKey} captureId={captureId} detail={detail} view={view} /> : null}
+      {plotted ? <SpectrumPanel projectKey={projectKey} captureId={captureId} detail={detail} view={view} /> : null}
 
       {analysed ? (
         <ChecksTable checks={detail.capture.verdict?.checks ?? []} onShowFrequency={view.showFrequency} />
@@ -68,11 +72,11 @@ function CaptureWorkspace({ projectKey, captureId, detail }: { projectKey: strin
       ) : null}
 
       <div aria-label="Listening and triage" role="group" className="grid items-start gap-6 lg:grid-cols-2">
-        <ListenPanel projectKey={projectKey} captureId={captureId} />
+        {purgedAt ? <PurgedAudioNote purgedAt={purgedAt} /> : <ListenPanel projectKey={projectKey} captureId={captureId} />}
         <FindingsTriagePanel projectKey={projectKey} captureId={captureId} />
       </div>
 
-      {analysed ? (
+      {plotted ? (
         <>
           <ResponsePanel projectKey={projectKey} captureId={captureId} view={view} />
           <WaveformPanel projectKey={projectKey} captureId={captureId} detail={detail} view={view} />
