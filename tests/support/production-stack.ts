@@ -86,7 +86,8 @@ export async function startProductionServices(opts: { migrate?: boolean } = {}):
     smtp: {
       port: smtpPort,
       inboxUrl: smtp.inboxUrl,
-      messages: async () => (await fetch(`${smtp.inboxUrl}email`)).json() as Promise<Array<{ subject: string; to: Array<{ address: string }>; text: string }>>,
+      // The fake's REST inbox lives under /api (MailDev 3); /email is its web page.
+      messages: async () => (await fetch(`${smtp.inboxUrl}api/email`)).json() as Promise<Array<{ subject: string; to: Array<{ address: string }>; text: string }>>,
     },
     dir,
     env,

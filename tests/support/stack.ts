@@ -15,7 +15,7 @@ import { startWorkerProcess, type WorkerProcess } from './worker-process.js';
 export interface Stack {
   url: string;
   orm: MikroORM;
-  /** The role fixture (seed `roles`); not set for the demo seed. */
+  /** The role fixture (seed `roles`); not set for the demo seed or a restored database. */
   fixture: RoleFixture;
   /** A CI token of the fixture project (or of kestrel-buds for the demo) with both scopes. */
   ciToken: string;
@@ -33,13 +33,15 @@ export interface Stack {
  * Everything on loopback for one test file: its own database, the S3 and SMTP fakes,
  * the API in-process and (on demand) real worker processes.
  */
-export async function startStack(opts: { seed?: 'roles' | 'demo'; database?: { url: string; drop(): Promise<void> } } = {}): Promise<Stack> {
+export async function startStack(opts: { seed?: 'roles' | 'demo' | 'none'; database?: { url: string; drop(): Promise<void> } } = {}): Promise<Stack> {
   // Inside vitest each file clones its own database; scripts (benchmarks) bring one.
   const db = opts.database ?? (await createTestDatabase());
   const orm = await initOrm({ url: db.url, poolMax: 6 });
   const secret = generateTokenSecret();
-  // `roles`: alpha-dsp with one user per role; `demo`: the Fernwick demo with its CI token.
-  const fixture = opts.seed === 'demo' ? await seedDemo(orm.em.fork(), secret).then(() => null as unknown as RoleFixture) : await seedRoles(orm.em.fork());
+  // `roles`: alpha-dsp with one user per role; `demo`: the Fernwick demo with its CI token;
+  // `none`: the database already holds its data (a restore), so no fixture and no new CI token.
+  const noFixture = null as unknown as RoleFixture;
+  const fixture = opts.seed === 'none' ? noFixture : opts.seed === 'demo' ? await seedDemo(orm.em.fork(), secret).then(() => noFixture) : await seedRoles(orm.em.fork());
   const s3Dir = fs.mkdtempSync(path.join(os.tmpdir(), 'earmark-stack-s3-'));
   const s3: S3Fake = await startS3Fake({ port: 0, directory: s3Dir, bucket: 'earmark-captures' });
   const smtpPort = await freePort();
@@ -60,7 +62,7 @@ export async function startStack(opts: { seed?: 'roles' | 'demo'; database?: { u
   await new Promise<void>((resolve) => server.once('listening', resolve));
   const url = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
 
-  if (opts.seed !== 'demo') {
+  if (opts.seed !== 'demo' && opts.seed !== 'none') {
     const em = orm.em.fork();
     em.create(ApiToken, { project: fixture.project.id, name: 'ci', prefix: secret.prefix, secretHash: secret.hash, scopes: ['submit-captures', 'read-verdicts'], createdBy: fixture.users.admin.id });
     await em.flush();
@@ -82,7 +84,7 @@ export async function startStack(opts: { seed?: 'roles' | 'demo'; database?: { u
     url,
     orm,
     fixture,
-    ciToken: secret.token,
+    ciToken: opts.seed === 'none' ? '' : secret.token,
     workerEnv,
     objectStore,
     apiRuntime: runtime,

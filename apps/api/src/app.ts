@@ -15,6 +15,7 @@ import { SessionService } from './auth/session.service.js';
 import { signInGuard } from './auth/sign-in-guard.js';
 import { SharedLimitStore } from './auth/shared-limit-store.js';
 import { requestMetrics } from './metrics/request-metrics.js';
+import { refuseWhileDraining } from './http/refuse-while-draining.js';
 
 export interface EarmarkApp {
   app: express.Express;
@@ -22,11 +23,12 @@ export interface EarmarkApp {
 }
 
 /** Builds the Express app; tests boot it on an ephemeral port. */
-export function createApp({ orm, env, logger, gate, verdictWaits, limiterPool, passwords, apiMetrics, health }: ApiRuntime): EarmarkApp {
+export function createApp({ orm, env, logger, gate, verdictWaits, limiterPool, passwords, apiMetrics, health, lifecycle }: ApiRuntime): EarmarkApp {
   const app = express();
   // First, so every answer is counted, those of the middleware below included.
   app.use(requestMetrics(apiMetrics));
   app.disable('x-powered-by');
+  app.use(refuseWhileDraining(lifecycle));
   // Off unless configured: otherwise any client could pick its own address for the limiters.
   app.set('trust proxy', env.EARMARK_TRUST_PROXY);
   app.use(

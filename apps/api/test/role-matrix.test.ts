@@ -34,6 +34,7 @@ const MATRIX: Record<string, Caller[] | typeof PUBLIC> = {
   'GET /api/projects': SIGNED_IN,
   'POST /api/projects': ADMIN,
   'GET /api/projects/:project': PROJECT_READERS,
+  'PATCH /api/projects/:project': ADMIN,
   'GET /api/projects/:project/members': PROJECT_READERS,
   'PUT /api/projects/:project/members': ADMIN,
   'DELETE /api/projects/:project/members/:userId': ADMIN,

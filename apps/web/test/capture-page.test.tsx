@@ -36,7 +36,7 @@ const engineer: CurrentUser = {
   memberships: [{ projectKey, projectName: 'Kestrel Buds', role: 'engineer' }],
 };
 
-function detail(overrides: { status?: CaptureDetail['capture']['status']; outcome?: 'pass' | 'fail' | 'error'; reason?: string | null } = {}): CaptureDetail {
+function detail(overrides: { status?: CaptureDetail['capture']['status']; outcome?: 'pass' | 'fail' | 'error'; reason?: string | null; purgedAt?: string } = {}): CaptureDetail {
   const status = overrides.status ?? 'done';
   const outcome = overrides.outcome ?? 'fail';
   return {
@@ -53,7 +53,7 @@ function detail(overrides: { status?: CaptureDetail['capture']['status']; outcom
       channels: 2,
       frames: 480_000,
       createdAt: '2025-06-12T14:03:11.000Z',
-      purgedAt: null,
+      purgedAt: overrides.purgedAt ?? null,
       verdict:
         status === 'done'
           ? {
@@ -154,6 +154,21 @@ function commonHandlers(captureResponses: Array<() => Response>) {
 }
 
 describe('capture page', () => {
+  it('says the retention policy removed the audio instead of offering to play it, and keeps the verdict and checks', async () => {
+    seedSession('access-1');
+    const api = mockApi(commonHandlers([() => json(detail({ purgedAt: '2027-03-01T07:00:12.000Z' }))]));
+    renderApp(pagePath);
+
+    const listen = await screen.findByRole('region', { name: 'Listen' });
+    expect(within(listen).getByRole('note').textContent).toBe('The audio of this capture was removed by the retention policy on 2027-03-01; its verdict is kept.');
+    expect(screen.queryByRole('button', { name: 'Play capture' })).toBeNull();
+    expect(screen.getByRole('table', { name: 'Checks' })).toBeTruthy();
+    expect(screen.getAllByText('Fail').length).toBeGreaterThan(0);
+    // No plot is asked for: its audio is gone (the API would answer 410).
+    expect(screen.queryByRole('region', { name: 'Spectrum' })).toBeNull();
+    expect(api.fetchMock.mock.calls.some(([input]) => String(input).includes('/plot'))).toBe(false);
+  });
+
   it('shows why the capture failed: header, spectrum with the worst point, checks failing first, triage', async () => {
     seedSession('access-1');
     const api = mockApi(commonHandlers([() => json(detail())]));

@@ -58,7 +58,7 @@ export async function createWorker(env: WorkerEnv, logger: Logger, options: { in
   const objectStore = new ObjectStore(objectStoreConfigOf(env));
   const metrics = createMetricsRegistry('worker', options.instanceName ?? `${os.hostname()}:${process.pid}`);
   const deadLetters = `${QUEUES.analyzeCapture}.dead`;
-  const workerMetrics = createWorkerMetrics(metrics, [QUEUES.analyzeCapture, deadLetters, QUEUES.sendNotifications, QUEUES.evaluateImpact]);
+  const workerMetrics = createWorkerMetrics(metrics, [QUEUES.analyzeCapture, deadLetters, QUEUES.sendNotifications, QUEUES.evaluateImpact, QUEUES.applyRetention]);
   const { judging, countJobs } = workerMetrics;
   const sql: RunSql = (query, params) => orm.em.fork().getConnection().execute(query, params);
   registerSharedGauges(metrics, sql);
@@ -118,7 +118,7 @@ export async function createWorker(env: WorkerEnv, logger: Logger, options: { in
       // Data lifecycle, hourly: retention and orphaned objects (one run at a time across workers).
       await scheduleMaintenance(boss);
       await boss.work(QUEUES.applyRetention, { batchSize: 1, pollingIntervalSeconds: 30 }, async ([job]) => {
-        if (job) await applyRetentionJob(job, { orm, objectStore, logger, env });
+        if (job) await countJobs(QUEUES.applyRetention, applyRetentionJob)(job, { orm, objectStore, logger, env });
       });
       sweepTimer = setInterval(() => {
         sweep({ orm, jobs, logger, links, judging, queuedAfterSeconds: env.EARMARK_SWEEP_INTERVAL_S * 2, analysisExpireSeconds: env.EARMARK_ANALYSIS_EXPIRE_S }).catch((error: unknown) => logger.warn({ err: error }, 'sweep failed'));

@@ -1,23 +1,29 @@
 import { ENGINE_VERSION } from '@earmark/dsp';
-import { createProcessLogger, exitOnStartupFailure } from '@earmark/platform';
+import { createProcessLogger, exitOnStartupFailure, startMetricsServer, type MetricsServer } from '@earmark/platform';
 import { createWorker, type Worker } from './create-worker.js';
 import { loadWorkerEnv, type WorkerEnv } from './env.js';
 
 let env: WorkerEnv;
 let worker: Worker;
+let metricsServer: MetricsServer | undefined;
 try {
   env = loadWorkerEnv();
   const logger = createProcessLogger({ name: 'worker', level: env.EARMARK_LOG_LEVEL, format: env.EARMARK_LOG_FORMAT, instance: env.EARMARK_INSTANCE_NAME });
-  worker = await createWorker(env, logger);
+  worker = await createWorker(env, logger, { instanceName: env.EARMARK_INSTANCE_NAME });
   await worker.start();
-  logger.info({ analysisSlots: env.EARMARK_ANALYSIS_SLOTS, analysisMemoryMb: env.EARMARK_ANALYSIS_MEMORY_MB, engineVersion: ENGINE_VERSION, mode: env.EARMARK_MODE }, 'worker ready');
+  if (env.EARMARK_METRICS_PORT !== undefined) {
+    metricsServer = await startMetricsServer({ host: env.EARMARK_METRICS_HOST, port: env.EARMARK_METRICS_PORT, registry: worker.metrics, ...worker.health });
+  }
+  logger.info({ analysisSlots: env.EARMARK_ANALYSIS_SLOTS, analysisMemoryMb: env.EARMARK_ANALYSIS_MEMORY_MB, engineVersion: ENGINE_VERSION, mode: env.EARMARK_MODE, metrics: metricsServer ? `http://${env.EARMARK_METRICS_HOST}:${metricsServer.port}/metrics` : null }, 'worker ready');
 } catch (error) {
   exitOnStartupFailure('worker', error);
 }
 
 async function shutdown(signal: string) {
   worker.logger.info({ signal }, 'worker stopping');
+  worker.lifecycle.draining = true;
   await worker.stop();
+  await metricsServer?.close();
   process.exit(0);
 }
 process.once('SIGTERM', () => void shutdown('SIGTERM'));

@@ -2,14 +2,15 @@ import { randomUUID } from 'node:crypto';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import type { BuildStatus } from '@earmark/contracts';
 import { Build, Capture, CheckResult, Finding, MaskRevision, Target, TestCase, Verdict, testCaseSettings } from '@earmark/db';
 import { useSeededDatabase } from '@earmark/db/testing';
 import { startS3Fake, type S3Fake } from '@earmark/infra/fakes';
-import { ObjectMissingError, ObjectStore } from '@earmark/platform';
+import { QUEUES, type BuildStatus } from '@earmark/contracts';
+import { ObjectMissingError, ObjectStore, RETENTION_CRON, scheduleMaintenance, startBoss } from '@earmark/platform';
 import { pino } from 'pino';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { applyRetentionJob } from '../src/jobs/apply-retention.job.js';
+import { analyzeCapture, type AnalyzeDeps } from '../src/jobs/analyze-capture.job.js';
 
 const seeded = useSeededDatabase(4);
 const logger = pino({ level: 'silent' });
@@ -190,6 +191,27 @@ describe('the retention policy', () => {
   });
 });
 
+describe('after the purge', () => {
+  it('a re-analysis queued before it leaves the verdicts as they are instead of judging missing audio', async () => {
+    const old = await judged(await slot(), 600, 'fail', 'fail');
+    await run();
+    expect((await row(old.id)).purgedAt).not.toBeNull();
+    const untouchable = () => {
+      throw new Error('the purged audio must not be read');
+    };
+    const deps = {
+      orm: seeded.orm, objectStore: { get: untouchable, getStream: untouchable }, logger, maxAttempts: 4, delayMs: 0,
+      jobs: { analyzeCapture: untouchable, evaluateImpact: untouchable, sendMail: untouchable }, links: {}, analysis: { pool: { run: untouchable } },
+    } as unknown as AnalyzeDeps;
+    const job = { id: 'j', name: 'analyze-capture', data: { captureId: old.id }, retryCount: 3 } as unknown as Parameters<typeof analyzeCapture>[0];
+
+    await analyzeCapture(job, deps);
+
+    expect(await seeded.orm.em.fork().count(Verdict, { capture: old.id })).toBe(1);
+    expect(await row(old.id)).toMatchObject({ outcome: 'fail', measured: -1.25 });
+  });
+});
+
 describe('orphaned objects', () => {
   it('deletes capture audio no row holds once past the grace period, keeps fresh ones and those with a row', async () => {
     const orphanKey = `captures/${seeded.fixture.project.key}/dead00/${randomUUID()}.wav`;
@@ -232,5 +254,20 @@ describe('orphaned objects', () => {
     expect(pages.flat().map((o) => [o.key.slice(prefix.length), o.sizeBytes])).toEqual([['0', 10], ['1', 11], ['2', 12], ['3', 13], ['4', 14]]);
     for (const o of pages.flat()) expect(Math.abs(o.lastModified.getTime() - Date.now())).toBeLessThan(60_000);
     expect(await objectStore.list(prefix)).toHaveLength(5);
+  });
+});
+
+describe('the schedule', () => {
+  it('runs apply-retention hourly, one run at a time, however many workers schedule it', async () => {
+    const bosses = await Promise.all([startBoss(seeded.db.url, logger), startBoss(seeded.db.url, logger)]);
+    try {
+      await Promise.all(bosses.map((boss) => scheduleMaintenance(boss)));
+      const schedules = await bosses[0]!.getSchedules();
+      expect(schedules.filter((s) => s.name === QUEUES.applyRetention).map((s) => s.cron)).toEqual([RETENTION_CRON]);
+      expect(RETENTION_CRON).toMatch(/^\d+ \* \* \* \*$/);
+      expect(await bosses[0]!.getQueue(QUEUES.applyRetention)).toMatchObject({ policy: 'singleton' });
+    } finally {
+      await Promise.all(bosses.map((b) => b.stop({ graceful: false, wait: true })));
+    }
   });
 });

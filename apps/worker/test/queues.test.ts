@@ -18,7 +18,7 @@ describe('queues at start-up', () => {
       try {
         const started = await Promise.allSettled([0, 1, 2].map(() => startBoss(db.url, silent).then((b) => (bosses.push(b), b))));
         expect(started.map((s) => s.status)).toEqual(['fulfilled', 'fulfilled', 'fulfilled']);
-        for (const name of [QUEUES.analyzeCapture, `${QUEUES.analyzeCapture}.dead`, QUEUES.evaluateImpact, QUEUES.sendNotifications]) {
+        for (const name of [QUEUES.analyzeCapture, `${QUEUES.analyzeCapture}.dead`, QUEUES.evaluateImpact, QUEUES.sendNotifications, QUEUES.applyRetention]) {
           expect(await bosses[0]!.getQueue(name), name).toBeTruthy();
         }
       } finally {

@@ -24,7 +24,7 @@ const DOMAIN_STATUS: Record<DomainErrorKind, { status: number; title: string }> 
 /** Kinds whose problem `type` names the reason (`…/problems/capture-purged`) rather than the status: clients branch on it. */
 const TYPED_BY_CODE = new Set<DomainErrorKind>(['gone', 'quota_exceeded']);
 
-const typeFor = (status: number | string) => `https://earmark.dev/problems/${status}`;
+export const typeFor = (status: number | string) => `https://earmark.dev/problems/${status}`;
 
 export function sendProblem(res: Response, problem: Problem, headers: Record<string, string> = {}): void {
   for (const [k, v] of Object.entries(headers)) res.setHeader(k, v);

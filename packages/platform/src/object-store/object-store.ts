@@ -65,12 +65,10 @@ export interface StoredObject {
 /** Capture bytes in S3-compatible storage; keys are chosen by the caller. */
 export class ObjectStore {
   private readonly client: S3Client;
-  /** For stream bodies: a retry would resend a stream already consumed, so it gets one attempt (the caller resumes). */
-  private readonly singleAttemptClient: S3Client;
 
   constructor(readonly config: ObjectStoreConfig) {
     const { accessKeyId, secretAccessKey } = config;
-    const settings = {
+    this.client = new S3Client({
       region: config.region ?? 'us-east-1',
       ...(config.endpoint ? { endpoint: config.endpoint } : {}),
       forcePathStyle: config.forcePathStyle ?? true,
@@ -78,9 +76,8 @@ export class ObjectStore {
       // NOTE: without these two a streamed upload is stored with aws-chunked framing inside.
       requestChecksumCalculation: 'WHEN_REQUIRED',
       responseChecksumValidation: 'WHEN_REQUIRED',
-    } as const;
-    this.client = new S3Client({ ...settings, maxAttempts: 2 });
-    this.singleAttemptClient = new S3Client({ ...settings, maxAttempts: 1 });
+      maxAttempts: 2,
+    });
   }
 
   /**
@@ -117,12 +114,13 @@ export class ObjectStore {
   }
 
   /**
-   * Writes a stream of known length without holding it in memory (backups, restores).
+   * Writes a stream of known length without holding it in memory (backups, restores). The SDK
+   * never retries a stream body (it is consumed): a failure is thrown and the caller resumes.
    * @param payloadSha256 the body's SHA-256 (hex): the request is signed with it, since a stream cannot be hashed twice
    */
   async putStream(key: string, body: Readable, size: number, contentType: string, metadata: Record<string, string>, payloadSha256: string): Promise<void> {
     const command = this.putCommand(key, body, size, contentType, metadata, payloadSha256);
-    await this.wrap(() => this.singleAttemptClient.send(command));
+    await this.wrap(() => this.client.send(command));
   }
 
   private putCommand(key: string, body: Buffer | Uint8Array | Readable, size: number, contentType: string, metadata: Record<string, string>, payloadSha256: string | undefined): PutObjectCommand {
@@ -236,7 +234,6 @@ export class ObjectStore {
 
   destroy(): void {
     this.client.destroy();
-    this.singleAttemptClient.destroy();
   }
 
   private async wrap<T>(fn: () => Promise<T>): Promise<T> {
