@@ -41,7 +41,7 @@ interface PlannedCapture {
   sha: string;
   fails: boolean;
   idempotencyKey: string;
-  wav: Buffer;
+  wav: Buffer<ArrayBuffer>;
 }
 
 /**
@@ -71,7 +71,12 @@ let apiA: Api;
 let apiB: Api;
 const workers: Worker[] = [];
 const phase1 = planCaptures('a1', 6, 5, [1, 4]);
-const phase2 = planCaptures('b2', 12, 5, [2, 5, 9]);
+// Phase 2's failing builds come after the kill (a third of the way): mail delivery is at least once
+// across a crash in the middle of a send. The sender marks a batch sent in the transaction that
+// holds its rows, so a SIGKILL after the relay took a message rolls the batch back and a survivor
+// sends it again (seen once with a failing build finishing just before the kill: two outbox rows,
+// four messages at the relay). What this test holds the workers to is no duplicate from running side by side.
+const phase2 = planCaptures('b2', 12, 5, [6, 8, 10]);
 const accepted = new Map<string, CaptureDto>(); // idempotency key → the capture its first upload made
 const uploadStats = { retried503: 0 };
 const figures: Record<string, unknown> = { machine: { cpus: os.availableParallelism(), node: process.version, platform: `${os.type()} ${os.release()}` } };
@@ -261,6 +266,11 @@ describe('scale-out on one database, one object store and one relay', () => {
     const replays = await Promise.all(phase2.slice(0, 6).map((c, i) => upload(apis[(i + 1) % 2]!, c)));
     expect(replays.map((r) => [r.status, r.capture.id])).toEqual(phase2.slice(0, 6).map((_, i) => [200, ids[i]]));
     await waitForVerdicts(ids, 120_000);
+    // The killed worker's job comes back after its expiry and runs again on a survivor: wait for the queue to drain.
+    await waitFor(
+      async () => (await services.query<{ n: number }>("select count(*)::int as n from pgboss.job where name = $1 and state in ('created', 'retry', 'active')", [QUEUES.analyzeCapture]))[0]!.n === 0,
+      { what: 'the analysis queue to drain after the kill', timeoutMs: 60_000, intervalMs: 200, context: workerOutput },
+    );
     figures.phase2 = { apis: 2, workers: 3, analysisSlotsPerWorker: 1, uploadLanes: 4, ...(await throughput(ids, firstUploadAt, lastUploadAt)), analysisThreadMsP50: threadMsP50(workers, new Set(ids)), killed: { worker: 'worker-2', ...killed } };
 
     // Exactly once: one row per accepted upload, one verdict per row, nothing else.
@@ -333,7 +343,7 @@ describe('scale-out on one database, one object store and one relay', () => {
     const failingIds = new Set(phase2.filter((c) => c.fails).map((c) => accepted.get(c.idempotencyKey)!.id));
     const evaluated = first.builds.flatMap((row) => row.captures);
     expect(evaluated.map((c) => c.flip)).toEqual(evaluated.map((c) => (failingIds.has(c.captureId) ? 'fail-to-pass' : null)));
-    expect(first.summary.failToPass).toBeGreaterThan(0); // build 10 of 12 fails, and it is among the last five
+    expect(first.summary.failToPass).toBeGreaterThan(0); // builds 9 and 11 of 12 fail, among the last five
     for (const run of runs.slice(1)) expect(run.result).toEqual(first);
   }, 120_000);
 

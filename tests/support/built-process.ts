@@ -40,7 +40,8 @@ export async function startBuiltProcess(opts: { name: string; entry: keyof typeo
   let text = '';
   child.stdout!.on('data', (c: Buffer) => (text += c.toString()));
   child.stderr!.on('data', (c: Buffer) => (text += c.toString()));
-  const exited = new Promise<number | null>((resolve) => child.once('exit', (code) => resolve(code)));
+  // 'close', not 'exit': only then has everything the process wrote been read.
+  const exited = new Promise<number | null>((resolve) => child.once('close', (code) => resolve(code)));
   if (opts.readyLine) {
     const readyLine = opts.readyLine;
     await new Promise<void>((resolve, reject) => {

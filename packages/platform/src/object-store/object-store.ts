@@ -25,7 +25,7 @@ export interface ObjectStoreConfig {
   serverSideEncryption?: 'AES256' | 'aws:kms';
   /** The KMS key for `aws:kms`; unset: the account's AWS-managed key. */
   sseKmsKeyId?: string;
-  /** Keys per ListObjectsV2 request in `listAll` (S3 answers at most 1000); smaller only to test paging. */
+  /** Keys per ListObjectsV2 request in `listAll` (S3 answers at most 1000, the default); smaller only to test paging. */
   listPageSize?: number;
 }
 
@@ -190,19 +190,13 @@ export class ObjectStore {
   }
 
   /**
-   * Every object under a prefix in key order, one listing page at a time (memory stays one page).
+   * Every object under a prefix in key order, one object at a time over `listPages` (memory stays one page).
    * @throws ObjectStoreUnavailableError when the store is down at any page
    */
   async *listAll(prefix = ''): AsyncGenerator<ListedObject> {
-    let continuationToken: string | undefined;
-    do {
-      const page = await this.wrap(() =>
-        this.client.send(new ListObjectsV2Command({ Bucket: this.config.bucket, Prefix: prefix, MaxKeys: this.config.listPageSize ?? 1000, ContinuationToken: continuationToken })),
-      );
-      for (const o of page.Contents ?? []) if (o.Key) yield { key: o.Key, size: o.Size ?? 0, lastModified: o.LastModified ?? new Date(0) };
-      // NOTE: a truncated page without a token would loop for ever; stop rather than trust it.
-      continuationToken = page.IsTruncated ? page.NextContinuationToken : undefined;
-    } while (continuationToken);
+    for await (const page of this.listPages(prefix, this.config.listPageSize)) {
+      for (const o of page) yield { key: o.key, size: o.sizeBytes, lastModified: o.lastModified };
+    }
   }
 
   /** Keys under a prefix (first 1000; for tests and maintenance). */
