@@ -6,6 +6,8 @@ export interface OutgoingMail {
   subject: string;
   text: string;
   html: string | null;
+  /** Makes the Message-ID: the same for every attempt at one outbox message, so a repeat is recognisable. */
+  messageKey?: string;
 }
 
 export interface Mailer {
@@ -27,10 +29,16 @@ export function createMailer(opts: MailRelay & { from: string }): Mailer {
   const transport: Transporter =
     'url' in opts ? nodemailer.createTransport({ url: opts.url, ...timeouts }) : nodemailer.createTransport({ host: opts.host, port: opts.port, secure: false, ignoreTLS: true, ...timeouts });
   return {
-    async send({ to, subject, text, html }) {
+    async send({ to, subject, text, html, messageKey }) {
       // With both parts nodemailer sends multipart/alternative: clients that show no HTML read the text.
-      await transport.sendMail({ from: opts.from, to, subject, text, ...(html ? { html } : {}) });
+      const messageId = messageKey ? `<earmark-${messageKey}@${senderDomain(opts.from)}>` : undefined;
+      await transport.sendMail({ from: opts.from, to, subject, text, ...(html ? { html } : {}), ...(messageId ? { messageId } : {}) });
     },
     close: () => transport.close(),
   };
+}
+
+/** The domain of `Name <user@domain>` or `user@domain`, for Message-IDs; `earmark.invalid` without one. */
+export function senderDomain(from: string): string {
+  return /@([^>\s]+)>?\s*$/.exec(from)?.[1] ?? 'earmark.invalid';
 }

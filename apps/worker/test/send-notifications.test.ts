@@ -119,4 +119,36 @@ describe('classifyMailFailure', () => {
     expect(classifyMailFailure(Object.assign(new Error('554 rejected'), { code: 'EMESSAGE', responseCode: 554 }))).toBe('message');
     expect(classifyMailFailure(new Error('something odd'))).toBe('message');
   });
+
+  it('a worker that dies mid-batch leaves at most the message it was sending to be repeated, under the same Message-ID key', async () => {
+    const recipients = ['a@example.test', 'b@example.test', 'c@example.test', 'd@example.test', 'e@example.test'];
+    await queueMail(recipients);
+    const relay: Array<{ to: string; key: string | undefined }> = [];
+    let sendingThird!: () => void;
+    const thirdStarted = new Promise<void>((resolve) => (sendingThird = resolve));
+    // Worker A: the relay accepts two messages, then A "dies" while the third is on the wire (it never returns).
+    const dying: Mailer = {
+      async send(m) {
+        if (relay.length === 2) {
+          relay.push({ to: m.to, key: m.messageKey });
+          sendingThird();
+          return new Promise<void>(() => {});
+        }
+        relay.push({ to: m.to, key: m.messageKey });
+      },
+      close() {},
+    };
+    void sendNotifications({ orm: seeded.orm, mailer: dying, logger, maxAttempts: MAX_ATTEMPTS });
+    await thirdStarted;
+    // Worker B at once: A's claim hides the rest, so B sends nothing twice.
+    const healthy: Mailer = { send: async (m) => void relay.push({ to: m.to, key: m.messageKey }), close() {} };
+    await sendNotifications({ orm: seeded.orm, mailer: healthy, logger, maxAttempts: MAX_ATTEMPTS });
+    expect(relay).toHaveLength(3);
+    // Worker B after A's claim lapsed (2 min): the unsent rest, with the one A was sending repeated.
+    await sendNotifications({ orm: seeded.orm, mailer: healthy, logger, maxAttempts: MAX_ATTEMPTS, now: () => new Date(Date.now() + 3 * 60_000) });
+    expect(relay.map((r) => r.to)).toEqual([...recipients.slice(0, 3), ...recipients.slice(2)]);
+    const ids = Object.fromEntries((await seeded.orm.em.fork().find(Notification, {})).map((n) => [n.recipient, n.id]));
+    expect(relay.every((r) => r.key === ids[r.to])).toBe(true);
+    expect(Object.values(await rows()).map((r) => r.state)).toEqual(['sent', 'sent', 'sent', 'sent', 'sent']);
+  });
 });

@@ -18,53 +18,70 @@ export interface NotifyDeps {
 }
 
 const BATCH = 20;
+/** How long a claimed message stays hidden from other workers; a worker killed while sending frees its claim after it. */
+const CLAIM_MS = 120_000;
+
+type Claimed = Pick<Notification, 'id' | 'recipient' | 'subject' | 'body' | 'html' | 'attempts'>;
 
 /**
- * Sends due mail from the outbox. Rows are claimed with SKIP LOCKED so several workers never
- * send one message twice. A message the relay refuses is charged an attempt and waits (back-off)
- * while the rest of the batch still goes out; after `maxAttempts` it is marked `failed`. When the
- * relay itself is unreachable the run stops, charges nothing and throws, so pg-boss retries the
- * job with back-off (and the sweep wakes it again later still).
+ * Sends due mail from the outbox, at least once and as close to exactly once as SMTP allows:
+ * a batch is claimed in a short transaction of its own (SKIP LOCKED, then hidden from other
+ * workers for CLAIM_MS), and each message is marked sent in its own transaction right after the
+ * relay accepted it. A worker killed mid-batch can therefore repeat at most the one message it
+ * was sending when it died (its Message-ID is the same, so mail clients fold the two); the rest
+ * of its claim is sent by another worker once the claim lapses. A message the relay refuses is
+ * charged an attempt and waits (back-off); after `maxAttempts` it is marked `failed`. When the
+ * relay itself is unreachable the run releases its claim, charges nothing and throws, so pg-boss
+ * retries the job with back-off (and the sweep wakes it again later still).
  * @throws when the relay could not be reached
  */
 export async function sendNotifications(deps: NotifyDeps): Promise<void> {
   const now = deps.now ?? (() => new Date());
   const retryBaseMs = deps.retryBaseMs ?? 60_000;
   for (;;) {
-    const run = await deps.orm.em.fork().transactional(async (tx) => {
-      const batch = await tx.find(
-        Notification,
-        { state: 'pending', $or: [{ nextAttemptAt: null }, { nextAttemptAt: { $lte: now() } }] },
-        { orderBy: { createdAt: 'asc' }, limit: BATCH, lockMode: LockMode.PESSIMISTIC_PARTIAL_WRITE },
-      );
-      let relayError: unknown;
-      for (const n of batch) {
-        try {
-          await deps.mailer.send({ to: n.recipient, subject: n.subject, text: n.body, html: n.html });
-          n.state = 'sent';
-          n.sentAt = now();
-          n.nextAttemptAt = null;
-        } catch (error) {
-          n.lastError = error instanceof Error ? error.message : String(error);
-          if (classifyMailFailure(error) === 'relay') {
-            relayError = error;
-            break; // every other message would fail the same way: keep them for the job's retry
-          }
-          n.attempts += 1;
-          if (n.attempts >= deps.maxAttempts) {
-            n.state = 'failed';
-            n.nextAttemptAt = null;
-            deps.logger.error({ err: error, notification: n.id, attempts: n.attempts }, 'mail refused; giving up');
-          } else {
-            n.nextAttemptAt = new Date(now().getTime() + mailRetryDelayMs(n.attempts, retryBaseMs));
-            deps.logger.warn({ err: error, notification: n.id, attempts: n.attempts, retryAt: n.nextAttemptAt }, 'mail refused; will retry');
-          }
+    const batch = await claimBatch(deps, now());
+    for (const [index, n] of batch.entries()) {
+      try {
+        await deps.mailer.send({ to: n.recipient, subject: n.subject, text: n.body, html: n.html, messageKey: n.id });
+        await update(deps, n.id, { state: 'sent', sentAt: now(), nextAttemptAt: null });
+      } catch (error) {
+        const lastError = error instanceof Error ? error.message : String(error);
+        if (classifyMailFailure(error) === 'relay') {
+          // Every other message would fail the same way: hand the unsent ones back at once, uncharged.
+          await update(deps, n.id, { lastError, nextAttemptAt: null });
+          for (const rest of batch.slice(index + 1)) await update(deps, rest.id, { nextAttemptAt: null });
+          throw new Error('The mail relay could not be reached; pending mail stays queued.', { cause: error });
+        }
+        const attempts = n.attempts + 1;
+        if (attempts >= deps.maxAttempts) {
+          await update(deps, n.id, { lastError, attempts, state: 'failed', nextAttemptAt: null });
+          deps.logger.error({ err: error, notification: n.id, attempts }, 'mail refused; giving up');
+        } else {
+          const retryAt = new Date(now().getTime() + mailRetryDelayMs(attempts, retryBaseMs));
+          await update(deps, n.id, { lastError, attempts, nextAttemptAt: retryAt });
+          deps.logger.warn({ err: error, notification: n.id, attempts, retryAt }, 'mail refused; will retry');
         }
       }
-      await tx.flush();
-      return { relayError, size: batch.length };
-    });
-    if (run.relayError) throw new Error('The mail relay could not be reached; pending mail stays queued.', { cause: run.relayError });
-    if (run.size < BATCH) return;
+    }
+    if (batch.length < BATCH) return;
   }
+}
+
+/** Claims up to BATCH due messages for this worker alone, committed before anything is sent. */
+async function claimBatch(deps: NotifyDeps, at: Date): Promise<Claimed[]> {
+  return deps.orm.em.fork().transactional(async (tx) => {
+    const rows = await tx.find(
+      Notification,
+      { state: 'pending', $or: [{ nextAttemptAt: null }, { nextAttemptAt: { $lte: at } }] },
+      { orderBy: { createdAt: 'asc' }, limit: BATCH, lockMode: LockMode.PESSIMISTIC_PARTIAL_WRITE },
+    );
+    const claimedUntil = new Date(at.getTime() + CLAIM_MS);
+    for (const n of rows) n.nextAttemptAt = claimedUntil;
+    await tx.flush();
+    return rows.map(({ id, recipient, subject, body, html, attempts }) => ({ id, recipient, subject, body, html, attempts }));
+  });
+}
+
+async function update(deps: NotifyDeps, id: string, fields: Partial<Pick<Notification, 'state' | 'sentAt' | 'nextAttemptAt' | 'attempts' | 'lastError'>>): Promise<void> {
+  await deps.orm.em.fork().nativeUpdate(Notification, { id }, fields);
 }
