@@ -12,7 +12,7 @@ const forbid = (allowed, message) => ({
 });
 
 export default tseslint.config(
-  { ignores: ['**/dist/**', '**/node_modules/**', '.data/**', '**/*.d.ts', 'packages/dsp/reference/**/*.py'] },
+  { ignores: ['**/dist/**', '**/build/**', '**/node_modules/**', '.data/**', '**/*.d.ts', 'packages/dsp/reference/**/*.py'] },
   ...tseslint.configs.recommended,
   {
     rules: {

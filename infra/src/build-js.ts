@@ -1,7 +1,7 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { build } from 'esbuild';
-import { repoRoot } from './paths.js';
+import { dataDir, repoRoot } from './paths.js';
 
 /** The packages a production process loads: transpiled to `build/` beside their `src/`. */
 export const SERVER_PACKAGES = ['packages/contracts', 'packages/dsp', 'packages/db', 'packages/platform', 'packages/domain', 'apps/api', 'apps/worker', 'apps/cli'];
@@ -59,12 +59,40 @@ function newestMtime(dir: string): number {
   return Math.max(0, ...filesUnder(dir).map((f) => fs.statSync(f).mtimeMs));
 }
 
-/** Builds the server packages when a build is missing or older than any of their sources (tests that run the built processes). */
+/**
+ * Builds the server packages when a build is missing or older than any of their sources (tests that
+ * run the built processes). Test files run in parallel processes: one lock makes the first rebuild
+ * and the others wait and then find the build fresh, instead of deleting it under each other.
+ */
 export async function ensureServerBuilt(log: (line: string) => void): Promise<void> {
-  const stale = SERVER_PACKAGES.some((pkg) => {
-    const marker = path.join(repoRoot, pkg, 'build', 'index.js');
-    const built = fs.existsSync(marker) ? fs.statSync(marker).mtimeMs : 0;
-    return built < newestMtime(path.join(repoRoot, pkg, 'src'));
+  await withBuildLock(async () => {
+    const stale = SERVER_PACKAGES.some((pkg) => {
+      const marker = path.join(repoRoot, pkg, 'build', 'index.js');
+      const built = fs.existsSync(marker) ? fs.statSync(marker).mtimeMs : 0;
+      return built < newestMtime(path.join(repoRoot, pkg, 'src'));
+    });
+    if (stale) await buildServerPackages(log);
   });
-  if (stale) await buildServerPackages(log);
+}
+
+/** A directory made with mkdir (atomic) is the lock; one left by a crashed run is taken over after two minutes. */
+async function withBuildLock<T>(fn: () => Promise<T>): Promise<T> {
+  const lock = path.join(dataDir, 'server-build.lock');
+  fs.mkdirSync(dataDir, { recursive: true });
+  for (;;) {
+    try {
+      fs.mkdirSync(lock);
+      break;
+    } catch (error) {
+      if ((error as NodeJS.ErrnoException).code !== 'EEXIST') throw error;
+      const age = Date.now() - (fs.statSync(lock, { throwIfNoEntry: false })?.mtimeMs ?? Date.now());
+      if (age > 120_000) fs.rmSync(lock, { recursive: true, force: true });
+      else await new Promise((resolve) => setTimeout(resolve, 100));
+    }
+  }
+  try {
+    return await fn();
+  } finally {
+    fs.rmSync(lock, { recursive: true, force: true });
+  }
 }

@@ -154,6 +154,7 @@ describe('production mode, installed as an operator would', () => {
     const migrated = await admin(['migrate']);
     expect(migrated.code, migrated.output).toBe(0);
     expect(migrated.output).toContain(`applied ${knownMigrations.length} migration(s): ${knownMigrations.join(', ')}`);
+    expect(migrated.output, 'colour codes in output that is no terminal').not.toContain('\u001b[');
     const check = await admin(['migrate', '--check']);
     expect(check.code, check.output).toBe(0);
     expect(check.output).toContain('the database is up to date');

@@ -38,14 +38,18 @@ export async function startBuiltProcess(opts: { name: string; entry: keyof typeo
     stdio: ['pipe', 'pipe', 'pipe'],
   });
   let text = '';
-  child.stdout!.on('data', (c: Buffer) => (text += c.toString()));
-  child.stderr!.on('data', (c: Buffer) => (text += c.toString()));
+  // Decoded per stream, so a character split between two chunks (the CLI's − sign) stays whole.
+  child.stdout!.setEncoding('utf8').on('data', (c: string) => (text += c));
+  child.stderr!.setEncoding('utf8').on('data', (c: string) => (text += c));
   // 'close', not 'exit': only then has everything the process wrote been read.
   const exited = new Promise<number | null>((resolve) => child.once('close', (code) => resolve(code)));
   if (opts.readyLine) {
     const readyLine = opts.readyLine;
     await new Promise<void>((resolve, reject) => {
-      const timer = setTimeout(() => reject(new Error(`${opts.name} did not become ready within ${opts.timeoutMs ?? 30_000} ms:\n${text}`)), opts.timeoutMs ?? 30_000);
+      const timer = setTimeout(() => {
+        child.kill('SIGKILL'); // nobody holds a handle to stop it otherwise
+        reject(new Error(`${opts.name} did not become ready within ${opts.timeoutMs ?? 30_000} ms:\n${text}`));
+      }, opts.timeoutMs ?? 30_000);
       const check = () => {
         if (text.includes(readyLine)) {
           clearTimeout(timer);

@@ -27,6 +27,8 @@ export function createDbConfig(input: DbConfigInput): Options {
     extensions: [Migrator, SeedManager],
     pool: { min: 0, max: input.poolMax ?? 10 },
     debug: input.debug ?? false,
+    // Colour codes only for a terminal: `npm run admin -- migrate` in a service manager or a pipe logs plain text.
+    colors: process.stdout.isTTY === true,
     // Entities are EntitySchema with explicit types: no reflection needed.
     discovery: { warnWhenNoEntities: true },
     migrations: {

@@ -46,16 +46,20 @@ const PASSED_WITHOUT_WAIVER = `(b.status = 'pass' and not exists (
          and split_part(coalesce(${newestVerdictSql('w.id', 'waiver_basis')}, ''), ';', 1) <> ''))`;
 
 // The newest passing capture of its test case and target: the capture page of every later
-// capture draws it as the "last passing" overlay, so its audio (and plots) stay.
-const LAST_PASS = `(c.status = 'done' and ${newestVerdictSql('c.id')} = 'pass' and not exists (
-      select 1 from capture n join build nb on nb.id = n.build_id
-       where n.test_case_id = c.test_case_id and n.target_id = c.target_id and nb.project_id = b.project_id
-         and nb.created_at > b.created_at and n.status = 'done' and ${newestVerdictSql('n.id')} = 'pass'))`;
+// capture draws it as the "last passing" overlay, so its audio (and plots) stay. The newest pass
+// is found the way the overlay finds it (LAST_PASSING_SQL): the project's builds newest first on
+// (project_id, created_at desc), stopping at the first pass; a capture of that build is kept.
+const LAST_PASS = `(c.status = 'done' and ${newestVerdictSql('c.id')} = 'pass' and b.created_at >= (
+      select nb.created_at from capture n join build nb on nb.id = n.build_id
+       where nb.project_id = b.project_id and n.test_case_id = c.test_case_id and n.target_id = c.target_id
+         and n.status = 'done' and ${newestVerdictSql('n.id')} = 'pass'
+       order by nb.created_at desc limit 1))`;
 
 /**
- * SQL: the next captures whose audio the policy removes, oldest build first, locked (SKIP LOCKED,
- * so workers running it at once take different rows). Parameters: the passed cutoff, the failed
- * cutoff, the batch size. Kept whatever their age:
+ * SQL: the next captures whose audio the policy removes, locked (SKIP LOCKED, so workers running
+ * it at once take different rows). No ORDER BY: the scan stops at the batch size instead of
+ * judging every old capture to sort them (11.6 s a batch on 40,000 captures with it). Parameters: the later of the two cutoffs,
+ * the passed cutoff, the failed cutoff, the batch size. Kept whatever their age:
  * - captures still queued or being analysed;
  * - golden captures: any mask revision derived its limits from them (`derivation.captureIds`);
  * - captures with a finding still under review (open, investigating) or a waiver requested on one;
@@ -65,12 +69,12 @@ export const RETENTION_CANDIDATES_SQL = `select c.id, c.object_key
    from capture c join build b on b.id = c.build_id
   where c.purged_at is null
     and c.status in ('done', 'error')
+    and b.created_at < ?::timestamptz
     and b.created_at < (case when ${PASSED_WITHOUT_WAIVER} then ?::timestamptz else ?::timestamptz end)
     and not exists (select 1 from mask_revision mr where mr.derivation -> 'captureIds' @> to_jsonb(c.id::text))
     and not exists (select 1 from finding f where f.capture_id = c.id
                        and (f.state in ('open', 'investigating') or exists (select 1 from waiver wv where wv.finding_id = f.id and wv.state = 'requested')))
     and not ${LAST_PASS}
-  order by b.created_at, c.id
   limit ?
   for update of c skip locked`;
 
@@ -88,11 +92,13 @@ export async function applyRetention(em: EntityManager, objectStore: ObjectStore
   if (policy.passedDays <= 0 && policy.failedDays <= 0) return result;
   const now = options.now ?? new Date();
   const batchSize = options.batchSize ?? 200;
-  const cutoffs = [retentionCutoff(policy.passedDays, now), retentionCutoff(policy.failedDays, now)];
+  const [passed, failed] = [retentionCutoff(policy.passedDays, now), retentionCutoff(policy.failedDays, now)];
+  // The later cutoff first: a plain range on the build's age that leaves out every recent build at once.
+  const cutoffs = [latest(passed, failed), passed, failed];
   let storeDown: unknown = null;
 
   for (let batch = 0; batch < (options.maxBatches ?? 50) && !storeDown; batch++) {
-    const selected = await em.fork().transactional(async (tx) => {
+    const { selected, purged } = await em.fork().transactional(async (tx) => {
       const conn = tx.getConnection();
       const rows = await conn.execute<{ id: string; object_key: string }[]>(RETENTION_CANDIDATES_SQL, [...cutoffs, batchSize], 'all', tx.getTransactionContext());
       const settled = await mapSettledLimited(rows, options.concurrency ?? 8, async (row) => {
@@ -112,13 +118,16 @@ export async function applyRetention(em: EntityManager, objectStore: ObjectStore
       });
       if (done.length) await conn.execute(`update capture set purged_at = ? where id = any(?::uuid[])`, [now, `{${done.join(',')}}`], 'run', tx.getTransactionContext());
       result.purged += done.length;
-      return rows.length;
+      return { selected: rows.length, purged: done.length };
     });
-    if (selected < batchSize) break;
+    // The last batch, or one whose every capture failed (they would only be selected again).
+    if (selected < batchSize || purged === 0) break;
   }
   if (storeDown) throw storeDown;
   return result;
 }
+
+const latest = (a: Date | '-infinity', b: Date | '-infinity') => (a === '-infinity' ? b : b === '-infinity' ? a : a > b ? a : b);
 
 /** Deletes every stored plot of a capture; @returns how many */
 async function deletePlots(objectStore: ObjectStore, captureId: string): Promise<number> {
