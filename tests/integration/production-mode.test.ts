@@ -42,8 +42,8 @@ const mask: MaskCheckInput[] = [{ id: 'level', kind: 'level', metric: 'rms-dbfs'
 const knownMigrations = [...fs.readFileSync(path.join(repoRoot, 'packages/db/src/migrations/index.ts'), 'utf8').matchAll(/name: '(migration-\d+)'/g)].map((m) => m[1]!);
 
 let services: ProductionServices;
-let api: BuiltProcess & { url: string };
-let worker: BuiltProcess;
+let api: BuiltProcess & { url: string; metricsUrl: string };
+let worker: BuiltProcess & { metricsUrl: string };
 /** Every output of every production process and command this file ran, for the leak checks. */
 const outputs: Array<{ what: string; text: string }> = [];
 const secrets: Record<string, string> = {};
@@ -255,6 +255,48 @@ describe('production mode, installed as an operator would', () => {
     expect(mail.text).toContain(`${PUBLIC_URL}/projects/${PROJECT}/builds/${FAIL_SHA}`);
     const messages = await services.smtp.messages();
     expect(messages.filter((m) => m.subject.includes(PASS_SHA.slice(0, 10)))).toEqual([]);
+  });
+
+  it('answers on each process’s metrics port: the listed series, moved by the run, and ready probes', async () => {
+    /** `name{labels} value` lines of the Prometheus text format, as [series, value]. */
+    const scrape = async (url: string) => {
+      const res = await fetch(`${url}/metrics`);
+      expect(res.status).toBe(200);
+      expect(res.headers.get('content-type')).toMatch(/^text\/plain; version=0\.0\.4/);
+      return (await res.text()).split('\n').filter((l) => l && !l.startsWith('#')).map((l) => [l.slice(0, l.lastIndexOf(' ')), Number(l.slice(l.lastIndexOf(' ') + 1))] as const);
+    };
+    const value = (series: ReadonlyArray<readonly [string, number]>, name: string, labels: Record<string, string> = {}) =>
+      series.filter(([k]) => k.startsWith(`${name}{`) || k === name).filter(([k]) => Object.entries(labels).every(([l, v]) => k.includes(`${l}="${v}"`))).reduce((sum, [, v]) => sum + v, 0);
+
+    const apiSeries = await scrape(api.metricsUrl);
+    const uploadRoute = { route: '/api/v1/projects/:project/builds/:sha/captures', method: 'POST', status: '202' };
+    expect(value(apiSeries, 'earmark_http_requests_total', uploadRoute)).toBe(2);
+    expect(value(apiSeries, 'earmark_capture_uploads_total', { outcome: 'accepted' })).toBe(2);
+    const captureBytes = (await services.query<{ n: string }>('select sum(size_bytes)::text as n from capture'))[0]!.n;
+    expect(value(apiSeries, 'earmark_capture_upload_bytes_total')).toBe(Number(captureBytes));
+    expect(apiSeries.some(([k]) => k.startsWith('earmark_http_request_duration_seconds_bucket{'))).toBe(true);
+    // Every series names its process and instance (EARMARK_INSTANCE_NAME), so several processes sum correctly.
+    expect(apiSeries.filter(([k]) => !(k.includes('process="api"') && k.includes('instance="api-1"')))).toEqual([]);
+
+    const workerSeries = await scrape(worker.metricsUrl);
+    expect(value(workerSeries, 'earmark_verdicts_total', { outcome: 'pass' })).toBe(1);
+    expect(value(workerSeries, 'earmark_verdicts_total', { outcome: 'fail' })).toBe(1);
+    expect(value(workerSeries, 'earmark_analysis_duration_seconds_count')).toBe(2);
+    expect(value(workerSeries, 'earmark_jobs_total', { queue: 'analyze-capture', result: 'completed' })).toBe(2);
+    expect(value(workerSeries, 'earmark_mails_sent_total', { result: 'sent' })).toBe(1);
+    // Read from the database at scrape time: the queue is drained, the outbox empty.
+    expect(value(workerSeries, 'earmark_queue_depth', { queue: 'analyze-capture', state: 'created' })).toBe(0);
+    expect(workerSeries.some(([k]) => k.startsWith('earmark_queue_oldest_age_seconds{'))).toBe(true);
+    expect(value(workerSeries, 'earmark_mail_outbox_depth', { status: 'pending' })).toBe(0);
+
+    for (const url of [api.metricsUrl, worker.metricsUrl]) {
+      expect((await fetch(`${url}/livez`)).status).toBe(200);
+      const ready = await fetch(`${url}/readyz`);
+      expect(ready.status).toBe(200);
+      expect(await ready.json()).toMatchObject({ ready: true, checks: { database: 'ok', queue: 'ok', objectStore: 'ok' } });
+    }
+    const apiReady = await fetch(`${api.url}/api/health/ready`);
+    expect(apiReady.status).toBe(200);
   });
 
   it('holds no demo data: exactly the users, project and token made here, no demo names, no secret in any output', async () => {

@@ -71,11 +71,10 @@ let apiA: Api;
 let apiB: Api;
 const workers: Worker[] = [];
 const phase1 = planCaptures('a1', 6, 5, [1, 4]);
-// Phase 2's failing builds come after the kill (a third of the way): mail delivery is at least once
-// across a crash in the middle of a send. The sender marks a batch sent in the transaction that
-// holds its rows, so a SIGKILL after the relay took a message rolls the batch back and a survivor
-// sends it again (seen once with a failing build finishing just before the kill: two outbox rows,
-// four messages at the relay). What this test holds the workers to is no duplicate from running side by side.
+// Phase 2's failing builds come after the kill (a third of the way): mail delivery across a crash is
+// at least once. The sender marks each message sent right after the relay accepts it, so a worker
+// SIGKILLed in the middle of a send repeats that one message (same Message-ID; the outbox test in
+// apps/worker shows it). What this test holds the workers to is no duplicate from running side by side.
 const phase2 = planCaptures('b2', 12, 5, [6, 8, 10]);
 const accepted = new Map<string, CaptureDto>(); // idempotency key → the capture its first upload made
 const uploadStats = { retried503: 0 };
