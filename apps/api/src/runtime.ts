@@ -55,7 +55,9 @@ export async function createApiRuntime(env: ApiEnv, logger: Logger, existing: { 
     throw error;
   }
   const objectStore = new ObjectStore(objectStoreConfigOf(env));
-  await objectStore.ensureBucket().catch((error: unknown) => logger.warn({ err: error }, 'object store not reachable at start-up; uploads answer 503 until it is'));
+  // Production never creates the bucket: a mistyped name must not become a new, empty bucket.
+  const checkStore = env.EARMARK_MODE === 'production' ? objectStore.ping() : objectStore.ensureBucket();
+  await checkStore.catch((error: unknown) => logger.warn({ err: error }, 'object store not reachable at start-up; uploads answer 503 until it is'));
   const boss = await startBoss(env.EARMARK_DATABASE_URL, logger);
   const compute = createComputePool({
     module: VIEWS_THREAD_MODULE,

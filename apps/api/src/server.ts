@@ -30,10 +30,14 @@ server.on('error', (error: NodeJS.ErrnoException) => {
   process.exit(1);
 });
 
-async function shutdown(signal: string) {
+let stopping: Promise<void> | undefined;
+
+async function drainAndExit(signal: string) {
   logger.info({ signal }, 'shutting down');
   // Readiness answers 503 from now on, and new requests on kept-alive connections get 503.
   runtime.lifecycle.draining = true;
+  // Held verdict waits answer now with what they have, instead of being cut at the drain deadline.
+  runtime.verdictWaits.wakeAll();
   // Stop accepting, let requests in flight finish (an upload half-way must still reach its row
   // and its answer), and only then close the database and the queue under them.
   const drained = new Promise<void>((resolve) => server.close(() => resolve()));
@@ -45,5 +49,7 @@ async function shutdown(signal: string) {
   await metricsServer?.close();
   process.exit(0);
 }
-process.once('SIGTERM', () => void shutdown('SIGTERM'));
-process.once('SIGINT', () => void shutdown('SIGINT'));
+// One drain, whatever arrives: a second signal (a runner sending SIGINT after SIGTERM) must not start another.
+const shutdown = (signal: string) => void (stopping ??= drainAndExit(signal));
+process.on('SIGTERM', () => shutdown('SIGTERM'));
+process.on('SIGINT', () => shutdown('SIGINT'));

@@ -116,6 +116,16 @@ describe('the retention policy', () => {
     expect(await exists(newer.plotKey)).toBe(true);
   });
 
+  it('ages a capture by the later of its build and itself: one uploaded today into a build 100 days old (a CI re-run) is kept', async () => {
+    const where = await slot();
+    const old = await judged(where, 100, 'pass', 'pass');
+    await judged(where, 5, 'pass', 'pass'); // a later pass, so `old` is not the last passing capture
+    await seeded.orm.em.fork().nativeUpdate(Capture, { id: old.id }, { createdAt: new Date() });
+    await run();
+    expect((await row(old.id)).purgedAt).toBeNull();
+    expect(await exists(old.objectKey)).toBe(true);
+  });
+
   it("keeps a failing build's capture until EARMARK_RETENTION_FAILED_DAYS, and a waived pass counts as failing", async () => {
     const where = await slot();
     const failing100 = await judged(where, 100, 'fail', 'fail');

@@ -151,4 +151,35 @@ describe('classifyMailFailure', () => {
     expect(relay.every((r) => r.key === ids[r.to])).toBe(true);
     expect(Object.values(await rows()).map((r) => r.state)).toEqual(['sent', 'sent', 'sent', 'sent', 'sent']);
   });
+
+  it('a worker whose claim ran out while the relay was slow leaves the rest of its batch to the worker that claimed it', async () => {
+    const recipients = ['a@example.test', 'b@example.test', 'c@example.test', 'd@example.test'];
+    await queueMail(recipients);
+    const relay: string[] = [];
+    let releaseFirst!: () => void;
+    const firstReleased = new Promise<void>((resolve) => (releaseFirst = resolve));
+    let firstStarted!: () => void;
+    const firstOnTheWire = new Promise<void>((resolve) => (firstStarted = resolve));
+    // Worker A: the relay takes longer than the claim over its first message.
+    const slow: Mailer = {
+      async send(m) {
+        if (relay.length === 0) {
+          firstStarted();
+          await firstReleased;
+        }
+        relay.push(m.to);
+      },
+      close() {},
+    };
+    const runA = sendNotifications({ orm: seeded.orm, mailer: slow, logger, maxAttempts: MAX_ATTEMPTS });
+    await firstOnTheWire;
+    // Worker B three minutes later: A's claim on the other three has lapsed; B claims and sends them.
+    const healthy: Mailer = { send: async (m) => void relay.push(m.to), close() {} };
+    await sendNotifications({ orm: seeded.orm, mailer: healthy, logger, maxAttempts: MAX_ATTEMPTS, now: () => new Date(Date.now() + 3 * 60_000) });
+    releaseFirst();
+    await runA;
+    // A finishes its first message and finds the rest no longer its own: nothing after it is sent twice.
+    for (const r of recipients.slice(1)) expect(relay.filter((to) => to === r), r).toHaveLength(1);
+    expect(Object.values(await rows()).every((r) => r.state === 'sent')).toBe(true);
+  });
 });

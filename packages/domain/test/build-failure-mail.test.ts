@@ -81,7 +81,7 @@ describe('build-failure mail', () => {
     expect(mails.map((m) => m.recipient)).toEqual(['engineer@example.test', 'viewer@example.test']);
     const { body } = mails[0]!;
     expect(body).toContain('eq.music.sweep on evt2-48k');
-    expect(body).toContain('Flat ±1 dB (response): measured 2.04 dB, limit 1 dB, margin −1.04 dB, worst at 8022 Hz');
+    expect(body).toContain('Flat ±1 dB (response): measured 2.04 dB, limit 1.00 dB, margin −1.04 dB at 8.02 kHz');
     expect(body).toContain(links.capturePage('alpha-dsp', 'a11ce01', sweep!.id));
     expect(body).toContain('noise.idle on evt2-48k');
     expect(body).toContain('The capture is 0.40 s long; the stimulus needs 1.80 s.');
@@ -146,5 +146,18 @@ describe('build-failure mail', () => {
     await judge(a!, passing);
     await judge(b!, passing);
     expect(await mailsFor('e0e0e05')).toHaveLength(0);
+  });
+
+  it('never replaces the verdict of a capture purged by retention while its re-evaluation ran (no "cannot be read" error, no mail)', async () => {
+    const [sweep] = await newBuild('de1e7ed', [['eq.music.sweep', 'evt2-48k']]);
+    expect((await judge(sweep!, passing)).written).toBe(true);
+    // The retention run commits first: audio gone, row marked.
+    await orm.em.fork().nativeUpdate(Capture, { id: sweep!.id }, { purgedAt: new Date() });
+    const raced = await recordVerdict(orm.em.fork(), sweep!.id, null, errorJudgement('The stored capture cannot be read: no such object', '9.9.10'), links);
+    expect(raced).toEqual({ written: false, notificationsQueued: 0 });
+    const em = orm.em.fork();
+    const capture = await em.findOneOrFail(Capture, { id: sweep!.id }, { populate: ['build'] });
+    expect([capture.status, capture.build.status]).toEqual(['done', 'pass']);
+    expect(await mailsFor('de1e7ed')).toHaveLength(0);
   });
 });

@@ -86,3 +86,12 @@ describe('loadConfig', () => {
     expect(objectStoreConfigOf(c)).toEqual({ bucket: 'acme-earmark', region: 'eu-central-1', forcePathStyle: false, serverSideEncryption: 'aws:kms', sseKmsKeyId: 'alias/earmark' });
   });
 });
+
+describe('a database URL that would fail later', () => {
+  it('is refused at once, naming the variable and never the password', () => {
+    const error = configError(() => load({ EARMARK_DATABASE_URL: 'postgres://earmark:pa/ss-w0rd@db:5432/earmark' }));
+    expect(error.variables).toEqual(['EARMARK_DATABASE_URL']);
+    expect(error.message).toMatch(/percent-encode/);
+    expect(error.message).not.toContain('ss-w0rd');
+  });
+});

@@ -35,7 +35,9 @@ export function healthRoutes(health: HealthProbes): RouteDef[] {
       response: ReadyReport,
       async handle({ res }) {
         const report = await health.ready();
-        res.status(report.ready ? 200 : 503).setHeader('Cache-Control', 'no-store').json(report);
+        // This port is public (behind the proxy): which check failed, not its message, which may name
+        // internal hosts and the bucket. The metrics port's /readyz carries the messages.
+        res.status(report.ready ? 200 : 503).setHeader('Cache-Control', 'no-store').json({ ...report, errors: {} });
       },
     }),
   ];

@@ -39,8 +39,11 @@ export async function sendNotifications(deps: NotifyDeps): Promise<void> {
   const now = deps.now ?? (() => new Date());
   const retryBaseMs = deps.retryBaseMs ?? 60_000;
   for (;;) {
-    const batch = await claimBatch(deps, now());
+    const { batch, claimedUntil } = await claimBatch(deps, now());
     for (const [index, n] of batch.entries()) {
+      // A slow relay can outlast the claim: another worker may then have claimed this message.
+      // Renewing it, only if it is still ours, keeps each message with one sender.
+      if (!(await renewClaim(deps, n.id, claimedUntil, new Date(now().getTime() + CLAIM_MS)))) continue;
       try {
         await deps.mailer.send({ to: n.recipient, subject: n.subject, text: n.body, html: n.html, messageKey: n.id });
         await update(deps, n.id, { state: 'sent', sentAt: now(), nextAttemptAt: null });
@@ -68,18 +71,25 @@ export async function sendNotifications(deps: NotifyDeps): Promise<void> {
 }
 
 /** Claims up to BATCH due messages for this worker alone, committed before anything is sent. */
-async function claimBatch(deps: NotifyDeps, at: Date): Promise<Claimed[]> {
-  return deps.orm.em.fork().transactional(async (tx) => {
+async function claimBatch(deps: NotifyDeps, at: Date): Promise<{ batch: Claimed[]; claimedUntil: Date }> {
+  const claimedUntil = new Date(at.getTime() + CLAIM_MS);
+  const batch = await deps.orm.em.fork().transactional(async (tx) => {
     const rows = await tx.find(
       Notification,
       { state: 'pending', $or: [{ nextAttemptAt: null }, { nextAttemptAt: { $lte: at } }] },
       { orderBy: { createdAt: 'asc' }, limit: BATCH, lockMode: LockMode.PESSIMISTIC_PARTIAL_WRITE },
     );
-    const claimedUntil = new Date(at.getTime() + CLAIM_MS);
     for (const n of rows) n.nextAttemptAt = claimedUntil;
     await tx.flush();
     return rows.map(({ id, recipient, subject, body, html, attempts }) => ({ id, recipient, subject, body, html, attempts }));
   });
+  return { batch, claimedUntil };
+}
+
+/** Extends this worker's claim on one message; false when the claim is no longer this worker's. */
+async function renewClaim(deps: NotifyDeps, id: string, claimedUntil: Date, until: Date): Promise<boolean> {
+  const changed = await deps.orm.em.fork().nativeUpdate(Notification, { id, state: 'pending', nextAttemptAt: claimedUntil }, { nextAttemptAt: until });
+  return changed === 1;
 }
 
 async function update(deps: NotifyDeps, id: string, fields: Partial<Pick<Notification, 'state' | 'sentAt' | 'nextAttemptAt' | 'attempts' | 'lastError'>>): Promise<void> {

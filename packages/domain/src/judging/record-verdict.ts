@@ -43,6 +43,11 @@ export async function recordVerdict(
       // "turned failed" transition are decided once.
       const build = await tx.findOneOrFail(Build, { id: capture.build.id }, { lockMode: LockMode.PESSIMISTIC_WRITE });
       if (await tx.findOne(Verdict, { capture, maskRevision: mask ? mask.id : null, engineVersion: analysed.engineVersion })) return { written: false, notificationsQueued: 0 };
+      // A retention run may have purged the audio while this analysis ran (it holds the row until it
+      // commits): its verdicts stand, and a re-evaluation that lost the race must not replace them
+      // with "cannot be read". Purged captures always have a verdict: retention skips unjudged ones.
+      const [row] = await tx.getConnection().execute<Array<{ purged_at: Date | null }>>('select purged_at from capture where id = ? for update', [captureId], 'all', tx.getTransactionContext());
+      if (row?.purged_at) return { written: false, notificationsQueued: 0 };
       const { judgement, waivers } = await applyWaivers(tx, capture, analysed);
 
       // A capture judged again (re-evaluation under a newer revision or engine) links to the verdict it replaces as the newest.

@@ -64,13 +64,14 @@ const LAST_PASS = `(c.status = 'done' and ${newestVerdictSql('c.id')} = 'pass' a
  * - golden captures: any mask revision derived its limits from them (`derivation.captureIds`);
  * - captures with a finding still under review (open, investigating) or a waiver requested on one;
  * - the last passing capture of each test case and target (the overlay of every later capture).
+ * Age is the later of the build's and the capture's: a capture uploaded today into an old build (a CI re-run) is young.
  */
 export const RETENTION_CANDIDATES_SQL = `select c.id, c.object_key
    from capture c join build b on b.id = c.build_id
   where c.purged_at is null
     and c.status in ('done', 'error')
     and b.created_at < ?::timestamptz
-    and b.created_at < (case when ${PASSED_WITHOUT_WAIVER} then ?::timestamptz else ?::timestamptz end)
+    and greatest(b.created_at, c.created_at) < (case when ${PASSED_WITHOUT_WAIVER} then ?::timestamptz else ?::timestamptz end)
     and not exists (select 1 from mask_revision mr where mr.derivation -> 'captureIds' @> to_jsonb(c.id::text))
     and not exists (select 1 from finding f where f.capture_id = c.id
                        and (f.state in ('open', 'investigating') or exists (select 1 from waiver wv where wv.finding_id = f.id and wv.state = 'requested')))

@@ -15,7 +15,8 @@ export function exitOnStartupFailure(processName: string, error: unknown): never
   } else if (isConnectionRefused(error)) {
     console.error(`${prefix} ${error.address ?? 'a service'}:${error.port ?? ''} refused the connection (${error.code}); is it running, and is the address in the configuration right?`);
   } else {
-    console.error(`${prefix} unexpected error`, error);
+    // The stack only: an error object's own fields may carry what it failed on (a URL with its password).
+    console.error(`${prefix} unexpected error\n${error instanceof Error ? (error.stack ?? error.message) : String(error)}`);
   }
   process.exit(1);
 }

@@ -89,7 +89,13 @@ export async function exportObjects(store: ObjectStore, dir: string, options: Tr
         tally.add(listed.key, 'skipped', before.size);
         return;
       }
-      const entry = await downloadObject(store, dir, listed.key, lastModified);
+      // Deleted between the listing and the fetch (retention, orphan clean-up, a failed upload's
+      // compensation): the export runs while Earmark does, so it is no longer part of the bucket.
+      const entry = await downloadObject(store, dir, listed.key, lastModified).catch((error: unknown) => {
+        if (error instanceof ObjectMissingError) return null;
+        throw error;
+      });
+      if (!entry) return;
       await appendLine(manifest, entry);
       exported.set(listed.key, entry);
       tally.add(listed.key, 'copied', entry.size);
