@@ -116,7 +116,7 @@ describe('build-failure mail', () => {
     expect(mail.subject).toBe(`[Earmark] alpha-dsp build ${SHA} has errors: 1 failing cell, 1 erroring cell`);
 
     expect(mail.text).toContain('eq.bumped on board');
-    expect(mail.text).toMatch(/Flat <±1 dB> & tight \(response\): measured \d+(\.\d+)? dB, limit 1 dB, margin −\d+(\.\d+)? dB, worst at \d+ Hz/);
+    expect(mail.text).toMatch(/Flat <±1 dB> & tight \(response\): measured \d+\.\d\d dB, limit 1\.00 dB, margin −\d+\.\d\d dB at \d+(\.\d+)? k?Hz/);
     expect(mail.text).toContain(`${stack.url}/projects/alpha-dsp/builds/${SHA}/captures/${failing.id}`);
     expect(mail.text).toContain('eq.short on board');
     expect(mail.text).toMatch(/the capture ends \d+ samples/);

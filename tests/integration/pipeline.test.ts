@@ -151,8 +151,7 @@ describe('capture → verdict', () => {
     const failures = cases.filter((c) => c.failure);
     expect(failures.length).toBeGreaterThanOrEqual(3);
     const envelopeFailure = failures.find((c) => c['@_name'].startsWith('response'))!;
-    expect(JSON.stringify(envelopeFailure.failure)).toMatch(/margin -?\d/);
-    expect(JSON.stringify(envelopeFailure.failure)).toMatch(/Hz/);
+    expect(JSON.stringify(envelopeFailure.failure)).toMatch(/margin [\u2212+]?\d+\.\d\d dB at \d+(\.\d+)? k?Hz/);
   });
 
   it('opens one finding per failing check and e-mails each subscriber (engineer and QA manager by default) once', async () => {
@@ -171,7 +170,7 @@ describe('capture → verdict', () => {
     expect(failedMail.map((m) => m.to[0]!.address).sort()).toEqual(['engineer@example.test', 'qa_manager@example.test']);
     expect(failedMail[0]!.text).toContain('/projects/alpha-dsp/builds/bbbb002');
     expect(failedMail[0]!.text).toContain('eq.sweep on board');
-    expect(failedMail[0]!.text, failedMail[0]!.text).toMatch(/Flat ±1 dB \(response\): measured [\d.]+ dB, limit 1 dB, margin −[\d.]+ dB, worst at \d+ Hz/);
+    expect(failedMail[0]!.text, failedMail[0]!.text).toMatch(/Flat ±1 dB \(response\): measured \d+\.\d\d dB, limit 1\.00 dB, margin −\d+\.\d\d dB at \d+(\.\d+)? k?Hz/);
   });
 });
 
@@ -285,6 +284,6 @@ describe('earmark submit against the real stack', () => {
     const { code, out } = await runSubmit('f0f0f0b', file);
     expect(code, out).toBe(1);
     expect(out).toMatch(/FAIL/);
-    expect(out).toMatch(/Flat ±1 dB margin −\d/); // the check's label, with its negative margin
+    expect(out).toMatch(/Flat ±1 dB: measured \d+\.\d\d dB, limit 1\.00 dB, margin −\d+\.\d\d dB at /); // the check's label, with its negative margin
   });
 });

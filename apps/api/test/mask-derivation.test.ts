@@ -1,6 +1,6 @@
 import { DeriveMaskResponse, MaskCheck, StimulusSpec } from '@earmark/contracts';
 import { Build, Capture, MaskRevision, Target, TestCase, testCaseSettings } from '@earmark/db';
-import { encodeWav, sampleLimit, stimulusAsPlayed } from '@earmark/dsp';
+import { encodeWav, sampleLimit, stimulusAsPlayed, studentTUpperTail } from '@earmark/dsp';
 import { mapChannels, scaleDb } from '@earmark/dsp/testing';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startTestApi, type TestApi } from './support/test-api.js';
@@ -63,6 +63,35 @@ describe('POST …/masks/derive', () => {
     expect(body.stats.maxDeviationDb.overall).toBeGreaterThanOrEqual(0);
     expect(body.stats.worstGoldenMarginDb).toBeGreaterThan(0);
     expect(body.derivation).toMatchObject({ captureIds: golden, k: 2, guardDb: 0.5, maxSegments: 6, smoothing: 6, measure: 'transfer', channel: 0, bandHz: [50, 16000] });
+  });
+
+  it('estimates the false-reject rate by leave-one-out and from the per-frequency statistics, over guard bands', async () => {
+    const engineer = await api.login('engineer@example.test');
+    // k = 0: limits at mean ± guard. Leaving out a capture at +a, the other seven average −a/7, so it
+    // sits 8a/7 = 0.428 dB from their mean: it fails below a 0.43 dB guard band and passes above
+    // (the same for every capture by symmetry). Simplification only widens, by under 0.01 dB here.
+    const res = await api.request('POST', `${base}/derive`, { token: engineer, body: { captureIds: golden, k: 0, guardDb: 0.5, maxSegments: 12, bandHz: [50, 16000], referenceHz: null } });
+    expect(res.status, res.text).toBe(200);
+    const { yieldEstimate } = DeriveMaskResponse.parse(res.body);
+    expect(yieldEstimate!.leaveOneOut).toEqual({ rate: 0, low: 0, high: expect.closeTo(3.8415 / 11.8415, 4), n: 8, failures: 0 });
+    const at = (g: number) => yieldEstimate!.byGuardBandDb.find((row) => Math.abs(row.guardDb - g) < 1e-9)!;
+    expect(yieldEstimate!.byGuardBandDb).toHaveLength(31);
+    expect(at(0.4).leaveOneOut).toMatchObject({ rate: 1, failures: 8 });
+    expect(at(0.5).leaveOneOut).toMatchObject({ rate: 0, failures: 0 });
+    // Gaussian model with σ = 0.4 dB from N = 8: at guard 0 the limits are the mean itself, so every
+    // unit fails; at 1.2 dB one frequency fails with 2·T₇(1.2 / (0.4·√(9/8))) (Student's t, 7 degrees
+    // of freedom; simplification and 0.01 dB rounding only widen), and the bounds bracket the shown rate.
+    expect(at(0).parametric.rate).toBeCloseTo(1, 6);
+    const wide = at(1.2).parametric;
+    const oneFrequency = 2 * studentTUpperTail(1.2 / (0.4 * Math.sqrt(9 / 8)), 7);
+    expect(wide.correlatedBound).toBeLessThanOrEqual(oneFrequency + 1e-12);
+    expect(wide.correlatedBound).toBeGreaterThan(0.9 * oneFrequency);
+    expect(wide.rate).toBeGreaterThanOrEqual(wide.correlatedBound);
+    expect(wide.rate).toBeLessThanOrEqual(wide.independentBound);
+    // 1/6-octave bands over 50 Hz … 16 kHz (8.3 octaves) hold 50 bands, fewer where the lowest bands
+    // are narrower than the analysis' frequency spacing and hold no frequency (45 here).
+    expect(wide.effectiveBands).toBeGreaterThan(40);
+    expect(wide.effectiveBands).toBeLessThanOrEqual(50);
   });
 
   it('validates the request and names the failing field', async () => {

@@ -2,3 +2,5 @@
 // can check that the CLI gates on the same build status the server stores.
 export { EXIT, type ExitCode } from './cli-error.js';
 export { exitCodeFor, exitCodeForStatus, submittedStatus } from './submit/submit-outcome.js';
+// The line `earmark submit` prints for a failed check, so a test can hold it to the server's wording.
+export { describeFailedCheck } from './submit/format-summary.js';

@@ -87,6 +87,8 @@ describe('earmark evaluate', () => {
     expect(table.code).toBe(1);
     expect(table.stdout).toMatch(/verdict FAIL/);
     expect(table.stdout).toMatch(/^flat\s+magnitude-envelope\s+FAIL\s/m);
+    // measured, limit, unit, margin (signed, 2 decimals, real minus), its unit, worst frequency (3 significant digits), channel.
+    expect(table.stdout).toMatch(/^flat\s+magnitude-envelope\s+FAIL\s+\S+\s+\S+\s+dB\s+\u2212(0\.9[7-9]|1\.0[0-3])\s+dB\s+(7\.[6-9]\d|8(\.[0-4]\d?)?) kHz\s+\d/m);
   });
 
   it('exits 2 with verdict error when a check needs the stimulus and none is given', async () => {

@@ -10,7 +10,7 @@ import { BuildStatus, type CaptureDto, type CheckResultDto } from '@earmark/cont
 import { ApiClient } from '../src/api-client/api-client.js';
 import { BodySourceError } from '../src/api-client/api-error.js';
 import { fileBody } from '../src/submit/file-body.js';
-import { describeFailedCheck, formatHz, formatValue, summaryLine } from '../src/submit/format-summary.js';
+import { describeFailedCheck, summaryLine } from '../src/submit/format-summary.js';
 import { idempotencyKey, type CaptureIdentity } from '../src/submit/idempotency-key.js';
 import { readSubmitEnv } from '../src/submit/submit-env.js';
 import { planSubmit, type SubmitFlags } from '../src/submit/submit-options.js';
@@ -119,11 +119,9 @@ describe('fileBody', () => {
 describe('summary', () => {
   const check: CheckResultDto = { id: 'mag.env', kind: 'magnitude-envelope', label: null, pass: false, measured: 4.2, limit: 2.9, margin: -1.3, unit: 'dB', worstHz: 8020 };
 
-  it('formats numbers, frequencies and a failed check', () => {
-    expect([formatValue(-1.3), formatValue(0.004), formatValue(-0.04), formatValue(1234.4), formatValue(-0.01)]).toEqual(['\u22121.3', '0.0040', '\u22120.040', '1234', '\u22120.010']);
-    expect([formatHz(62.5), formatHz(1000), formatHz(8020), formatHz(12500)]).toEqual(['63 Hz', '1 kHz', '8.02 kHz', '12.5 kHz']);
-    expect(describeFailedCheck(check)).toBe('mag.env margin \u22121.3 dB at 8.02 kHz (measured 4.2 dB, limit 2.9 dB)');
-    expect(describeFailedCheck({ ...check, id: 'latency', label: 'Latency', unit: 'ms', worstHz: null, measured: null, margin: -0.5 })).toBe('Latency margin \u22120.50 ms (limit 2.9 ms)');
+  it('describes a failed check in the shared formatter\'s words', () => {
+    expect(describeFailedCheck(check)).toBe('mag.env: measured 4.20 dB, limit 2.90 dB, margin \u22121.30 dB at 8.02 kHz');
+    expect(describeFailedCheck({ ...check, id: 'latency', label: 'Latency', unit: 'ms', worstHz: null, measured: null, margin: -0.5 })).toBe('Latency: limit 2.900 ms, margin \u22120.500 ms');
   });
 
   it('writes one line per capture with its verdict word', () => {
@@ -134,7 +132,7 @@ describe('summary', () => {
       verdict: { outcome: 'fail', reason: null, engineVersion: '1', maskRevisionId: null, maskRevision: null, createdAt: '', checks: [{ ...check, id: 'thd', pass: true }, check] },
     } as unknown as CaptureDto;
     const file = { path: 'x/right.wav', name: 'right.wav', format: 'wav' as const, sizeBytes: 1, sha256: '' };
-    expect(summaryLine({ file, capture })).toBe('FAIL     eq.music.sweep  evt2-48k  right.wav  mag.env margin \u22121.3 dB at 8.02 kHz (measured 4.2 dB, limit 2.9 dB)');
+    expect(summaryLine({ file, capture })).toBe('FAIL     eq.music.sweep  evt2-48k  right.wav  mag.env: measured 4.20 dB, limit 2.90 dB, margin \u22121.30 dB at 8.02 kHz');
     expect(summaryLine({ file, capture: { ...capture, status: 'error', verdict: null } })).toBe('ERROR    eq.music.sweep  evt2-48k  right.wav  the analysis failed');
     expect(summaryLine({ file, capture: { ...capture, status: 'queued', verdict: null } })).toBe('PENDING  eq.music.sweep  evt2-48k  right.wav  (queued)');
   });

@@ -90,7 +90,7 @@ describe.concurrent('earmark submit', { timeout: 30_000 }, () => {
     const r = await run([...common(s), 'pass.wav', 'fail.wav', '--wait']);
     expect(r.code, r.stderr).toBe(1);
     expect(r.stdout).toContain('PASS     eq.music.sweep  evt2-48k  pass.wav\n');
-    expect(r.stdout).toContain('FAIL     eq.music.sweep  evt2-48k  fail.wav  mag.env margin \u22121.3 dB at 8.02 kHz (measured 4.2 dB, limit 2.9 dB)\n');
+    expect(r.stdout).toContain('FAIL     eq.music.sweep  evt2-48k  fail.wav  mag.env: measured 4.20 dB, limit 2.90 dB, margin \u22121.30 dB at 8.02 kHz\n');
     expect(r.stdout).toContain('2 captures: 1 pass, 1 fail\n');
     // The target was left out: the fake (like the server) used the project's only one.
     expect(uploads(s).every((u) => !u.query.has('target'))).toBe(true);

@@ -84,7 +84,7 @@ describe('build page', () => {
 
     const failed = cell('eq.music.sweep', 'evt2-48k');
     expect(failed.textContent).toContain('Fail');
-    expect(failed.textContent).toContain('response \u22121.3 dB @ 8.0 kHz');
+    expect(failed.textContent).toContain('response \u22121.30 dB at 8 kHz');
     expect(failed.textContent).toContain('+1 more failing check');
     expect(within(failed).getByText('was pass')).toBeTruthy();
     expect(within(failed).getByRole('link').getAttribute('href')).toBe(`/projects/kestrel-buds/builds/${SHA}/captures/cap-1`);

@@ -184,7 +184,7 @@ describe('capture page', () => {
 
     const spectrum = screen.getByRole('region', { name: 'Spectrum' });
     const worst = await within(spectrum).findByTestId('worst-point-label');
-    expect(worst.textContent).toBe(`${MINUS}1.30 dB margin @ 8.02 kHz`);
+    expect(worst.textContent).toBe(`${MINUS}1.30 dB margin at 8.02 kHz`);
     expect(within(spectrum).getByRole('figure', { name: 'Spectrum plot' })).toBeTruthy();
     expect(within(spectrum).getByRole('checkbox', { name: /Compare with last pass 3fa9c21/ })).toHaveProperty('checked', true);
 

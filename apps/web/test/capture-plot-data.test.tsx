@@ -185,12 +185,12 @@ describe('checks table order and numbers', () => {
 
   it('signs margins, keeps units and writes tiny ratios as powers of ten', () => {
     expect(formatMargin(-1.3, 'dB')).toBe(`${MINUS}1.30 dB`);
-    expect(formatMargin(0.88, 'dBFS')).toBe('+0.88 dBFS');
+    expect(formatMargin(0.88, 'dBFS')).toBe('+0.88 dB');
     expect(formatMargin(-3, 'count')).toBe(`${MINUS}3`);
-    expect(formatValue(2.1e-14, 'ratio')).toBe('2.10×10⁻¹⁴ ratio');
+    expect(formatValue(2.1e-14, 'ratio')).toBe('2.10×10⁻¹⁴');
     expect(formatValue(5.2, 'deg')).toBe('5.2°');
     expect(formatValue(null, 'dB')).toBe('—');
-    expect(worstPointLabel({ hz: 8020, margin: -1.3 }, 'dB')).toBe(`${MINUS}1.30 dB margin @ 8.02 kHz`);
+    expect(worstPointLabel({ hz: 8020, margin: -1.3 }, 'dB')).toBe(`${MINUS}1.30 dB margin at 8.02 kHz`);
   });
 });
 

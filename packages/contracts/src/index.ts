@@ -19,3 +19,4 @@ export * from './build-status-rule.js';
 export * from './subscriptions.js';
 export * from './health.js';
 export * from './data-lifecycle.js';
+export * from './format/index.js';

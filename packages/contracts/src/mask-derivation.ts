@@ -91,11 +91,56 @@ export const DerivationStats = z.object({
 });
 export type DerivationStats = z.infer<typeof DerivationStats>;
 
+/** A false-reject rate counted by leave-one-out over the golden captures, with its 95 % Wilson interval (Wilson 1927). */
+export const LeaveOneOutRate = z.object({
+  /** Fraction of golden captures that fail limits derived from the other N − 1 (0…1). */
+  rate: z.number().min(0).max(1),
+  low: z.number().min(0).max(1),
+  high: z.number().min(0).max(1),
+  n: z.number().int(),
+  failures: z.number().int(),
+});
+export type LeaveOneOutRate = z.infer<typeof LeaveOneOutRate>;
+
+/** The false-reject rate under a Gaussian model of each frequency (golden mean and σ), 0…1. */
+export const ParametricRate = z.object({
+  /** Shown rate: frequencies within one 1/N-octave band (N = the smoothing) move together, bands independently. */
+  rate: z.number().min(0).max(1),
+  /** All frequencies fully correlated: the worst single frequency's rate (lower bound). */
+  correlatedBound: z.number().min(0).max(1),
+  /** All frequencies independent (upper end). */
+  independentBound: z.number().min(0).max(1),
+  effectiveBands: z.number().int(),
+});
+export type ParametricRate = z.infer<typeof ParametricRate>;
+
+export const YieldAtGuard = z.object({
+  guardDb: z.number(),
+  /** Null with fewer than three golden captures. */
+  leaveOneOut: LeaveOneOutRate.nullable(),
+  parametric: ParametricRate,
+});
+export type YieldAtGuard = z.infer<typeof YieldAtGuard>;
+
+/**
+ * "About X % of good units would fail": the estimated false-reject rate of the proposal at the
+ * requested guard band, and the same with the guard band at 0…3 dB (or up to the requested one)
+ * in 0.1 dB steps, other settings kept (docs/masks.md, "Yield estimate").
+ */
+export const YieldEstimate = z.object({
+  leaveOneOut: LeaveOneOutRate.nullable(),
+  parametric: ParametricRate,
+  byGuardBandDb: z.array(YieldAtGuard),
+});
+export type YieldEstimate = z.infer<typeof YieldEstimate>;
+
 export const DeriveMaskResponse = z.object({
   /** A valid magnitude-envelope check (contracts' MaskCheck), ready to put in a draft. */
   check: MagnitudeEnvelopeCheck,
   stats: DerivationStats,
   derivation: MaskDerivation,
+  /** Always sent by the API; optional so a response from a server before this field still parses. */
+  yieldEstimate: YieldEstimate.optional(),
 });
 export type DeriveMaskResponse = z.infer<typeof DeriveMaskResponse>;
 

@@ -29,6 +29,8 @@ describe('judgeCapture', () => {
     expect(underRevisionMap.outcome).toBe('fail');
     expect(underRevisionMap.checks).toHaveLength(1);
     expect(underRevisionMap.checks[0]!.details.channel).toBe(1);
+    // The reason gives the margin in the shared formatter's words: a dBFS level's margin is in dB.
+    expect(underRevisionMap.reason).toMatch(/^1 of 1 checks failed: level \(margin \u22121[03]\.\d\d dB\)$/);
     // 30 dB quieter: the sine's level on channel 1 (AES17 or plain RMS, the difference is what matters).
     expect(underTestCaseMap.checks[0]!.measured! - underRevisionMap.checks[0]!.measured!).toBeCloseTo(18, 1);
   });

@@ -103,7 +103,7 @@ describe('renderJunit', () => {
     const cases = casesOf(suite!);
     const response = cases.find((c) => c['@_name'] === 'response')!;
     expect(response['@_classname']).toBe('kestrel-buds.eq.music.sweep');
-    expect(JSON.stringify(response.failure)).toContain('magnitude-envelope: measured 2.7 dB, limit 1.5 dB, margin -1.2 dB at 8020 Hz');
+    expect(JSON.stringify(response.failure)).toContain('magnitude-envelope: measured 2.70 dB, limit 1.50 dB, margin \u22121.20 dB at 8.02 kHz');
     expect(response.error).toBeUndefined();
     const errored = cases.find((c) => c['@_classname'] === 'kestrel-buds.voice.uplink.sweep')!;
     expect(errored['@_name']).toBe('verdict');

@@ -36,16 +36,16 @@ describe('build-failed mail', () => {
     expect(mail.text.split('\n')[0]).toBe('Build 4f2a9c1d0e5b7a8c on main (rc2) of Kestrel Buds has errors: some captures could not be judged, so the gate cannot tell whether it meets its masks.');
   });
 
-  it('lists every failing and erroring cell with its checks, margins with units, worst frequency in Hz and its capture link', () => {
+  it('lists every failing and erroring cell with its checks, margins with units (dB for a dBFS check), worst frequency and its capture link', () => {
     const failed = mail.text.slice(mail.text.indexOf('Failed:'), mail.text.indexOf('Could not be judged:'));
     expect(failed.split('\n').filter(Boolean)).toEqual([
       'Failed:',
       '- eq.music.sweep on evt2-48k',
-      '  Flat ±1 dB (response): measured 2.041 dB, limit 1 dB, margin −1.041 dB, worst at 8022 Hz',
+      '  Flat ±1 dB (response): measured 2.04 dB, limit 1.00 dB, margin −1.04 dB at 8.02 kHz',
       '  thd: passed with waiver, until 2027-03-31',
       '  Capture: https://earmark.example/projects/kestrel-buds/builds/4f2a9c1d0e5b7a8c/captures/cap-sweep',
       '- eq.music.sweep on evt1-44k',
-      '  level: measured −33.1 dBFS, limit −16 dBFS, margin −17.1 dBFS',
+      '  level: measured −33.10 dBFS, limit −16.00 dBFS, margin −17.10 dB',
       '  Capture: https://earmark.example/projects/kestrel-buds/builds/4f2a9c1d0e5b7a8c/captures/cap-sweep-2',
     ]);
     const errored = mail.text.slice(mail.text.indexOf('Could not be judged:'), mail.text.indexOf('Passed with waiver:'));
@@ -79,7 +79,7 @@ describe('build-failed mail', () => {
   it('has an HTML part with the same cells and links', () => {
     expect(mail.html).toMatch(/^<!doctype html>/);
     expect(mail.html).toContain('<h3 style="font-size:15px;margin:1.2em 0 0.4em">Failed</h3>');
-    expect(mail.html).toContain('Flat ±1 dB (response): measured 2.041 dB, limit 1 dB, margin −1.041 dB, worst at 8022 Hz');
+    expect(mail.html).toContain('Flat ±1 dB (response): measured 2.04 dB, limit 1.00 dB, margin −1.04 dB at 8.02 kHz');
     expect(mail.html).toContain('<a href="https://earmark.example/projects/kestrel-buds/builds/4f2a9c1d0e5b7a8c/captures/cap-idle">');
     expect(mail.html).toContain('<a href="https://earmark.example/projects/kestrel-buds#mail">Change it on the project page</a>');
     expect(mail.html).not.toContain('hum.idle');
@@ -97,7 +97,7 @@ describe('build-failed mail', () => {
     expect(hostile.html).toContain('feat/&lt;script&gt;alert(&#39;x&#39;)&lt;/script&gt;');
     expect(hostile.html).toContain('eq.&lt;b&gt; on t&amp;1');
     expect(hostile.html).toContain('&lt;img src=x onerror=alert(1)&gt;');
-    expect(hostile.html).toContain('&lt;i&gt;loud&lt;/i&gt; (level): margin −1 dB');
+    expect(hostile.html).toContain('&lt;i&gt;loud&lt;/i&gt; (level): margin −1.00 dB');
     expect(hostile.html).toContain('href="https://earmark.example/projects/kestrel-buds/builds/abc1234/captures/c&quot;1"');
     // The plain-text part is text: nothing to escape.
     expect(hostile.text).toContain("Build abc1234 on feat/<script>alert('x')</script> of Kestrel <Buds> & \"Co\" has errors");
@@ -107,7 +107,7 @@ describe('build-failed mail', () => {
 describe('describeReportedCheck', () => {
   it('formats each part it has and says when nothing was measured', () => {
     expect(describeReportedCheck(check({ id: 'clipping', measured: 312, limit: 0, margin: -312 }))).toBe('clipping: measured 312, limit 0, margin −312');
-    expect(describeReportedCheck(check({ id: 'band', margin: -0.25, unit: 'dB', worstHz: 63.0957 }))).toBe('band: margin −0.25 dB, worst at 63.1 Hz');
+    expect(describeReportedCheck(check({ id: 'band', margin: -0.25, unit: 'dB', worstHz: 63.0957 }))).toBe('band: margin −0.25 dB at 63.1 Hz');
     expect(describeReportedCheck(check({ id: 'response', error: 'the capture is too short' }))).toBe('response: could not be measured: the capture is too short');
     expect(describeReportedCheck(check({ id: 'odd' }))).toBe('odd: failed');
   });

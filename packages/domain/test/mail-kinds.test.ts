@@ -172,7 +172,8 @@ describe('drift mail', () => {
     });
     expect(mail.kind).toBe('drift');
     expect(mail.subject).toBe('[Earmark] heron-bar main: response on eq.sweep/board is drifting');
-    expect(mail.text).toContain('still passes but shrank by 1.62 dB over the last 4 builds of main: from 2.51 dB (build d000001) to 0.89 dB (build d000004abc).');
+    expect(mail.text).toContain('still passes but shrank by 1.62 dB over the last 4 builds of main: from +2.51 dB (build d000001) to +0.89 dB (build d000004abc).');
+    expect(mail.text).toContain('The project flags a shrink of more than 1.00 dB.');
     expect(mail.text).toContain('Open the build: https://earmark.example/projects/heron-bar/builds/d000004abcdef1234');
     expect(mail.text).toContain('Change it on the project page: https://earmark.example/projects/heron-bar#mail');
     expect(mail.payload).toEqual({ project: 'heron-bar', sha: 'd000004abcdef1234', testCase: 'eq.sweep', target: 'board', checkId: 'response' });

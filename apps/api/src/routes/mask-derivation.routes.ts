@@ -30,7 +30,7 @@ export function maskDerivationRoutes(gate: Gate): RouteDef[] {
       method: 'post',
       path: `${base}/derive`,
       access: { kind: 'project', permission: 'mask.draft' },
-      summary: 'Propose a magnitude envelope from 2–50 golden captures: mean ± (k·σ + guard), simplified to maxSegments segments per limit',
+      summary: 'Propose a magnitude envelope from 2–50 golden captures: mean ± (k·σ + guard), simplified to maxSegments segments per limit, with its estimated false-reject rate over guard bands',
       body: DeriveMaskRequest,
       response: DeriveMaskResponse,
       doc: { tags: ['masks'] },

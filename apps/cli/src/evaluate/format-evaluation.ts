@@ -1,13 +1,7 @@
+import { DASH, formatFrequency, formatNumberIn, marginUnit } from '@earmark/contracts';
 import type { EvaluationSummary } from './evaluation-summary.js';
 
-const dash = '—';
-
-/** A number for people: 4 significant digits, small ratios in exponent form. */
-function show(v: number | null): string {
-  if (v === null || !Number.isFinite(v)) return dash;
-  if (v !== 0 && Math.abs(v) < 1e-3) return v.toExponential(2);
-  return String(Number(v.toPrecision(4)));
-}
+const dash = DASH;
 
 function pad(cells: string[], widths: number[]): string {
   return cells.map((c, i) => c.padEnd(widths[i] ?? 0)).join('  ').trimEnd();
@@ -15,16 +9,18 @@ function pad(cells: string[], widths: number[]): string {
 
 /** The readable table of `earmark evaluate` (the `--json` form is the summary itself). */
 export function formatEvaluation(summary: EvaluationSummary, source: string): string {
-  const head = ['check', 'kind', 'result', 'measured', 'limit', 'margin', 'unit', 'worst Hz', 'ch'];
+  // Figures in the shared formatter's rules (@earmark/contracts); the margin column is in the margin's unit (dB for dBFS).
+  const head = ['check', 'kind', 'result', 'measured', 'limit', 'unit', 'margin', 'unit', 'worst at', 'ch'];
   const rows = summary.checks.map((c) => [
     c.id,
     c.kind,
     c.error !== null ? 'ERROR' : c.pass ? 'pass' : 'FAIL',
-    show(c.measured),
-    show(c.limit),
-    show(c.margin),
+    formatNumberIn(c.measured, c.unit),
+    formatNumberIn(c.limit, c.unit),
     c.unit,
-    c.worstHz === null ? dash : String(Math.round(c.worstHz)),
+    formatNumberIn(c.margin, marginUnit(c.unit), true),
+    marginUnit(c.unit) ?? '',
+    formatFrequency(c.worstHz),
     c.channel === null ? dash : String(c.channel),
   ]);
   const widths = head.map((h, i) => Math.max(h.length, ...rows.map((r) => (r[i] ?? '').length)));

@@ -1,4 +1,4 @@
-import type { BuildDetail, BuildRow, BuildStatus, CaptureDto, CheckResultDto } from '@earmark/contracts';
+import { describeCheckValues, type BuildDetail, type BuildRow, type BuildStatus, type CaptureDto, type CheckResultDto } from '@earmark/contracts';
 import type { CaptureFile } from './capture-file.js';
 import { captureOutcome, type CaptureOutcome } from './capture-outcome.js';
 
@@ -9,30 +9,9 @@ export interface SubmittedCapture {
 
 const WORD: Record<CaptureOutcome, string> = { pass: 'PASS', fail: 'FAIL', error: 'ERROR', pending: 'PENDING' };
 
-/** A number for people: one decimal for ordinary values, two significant digits for small ones, a true minus sign. */
-export function formatValue(value: number): string {
-  const abs = Math.abs(value);
-  const text = abs >= 1000 ? abs.toFixed(0) : abs >= 1 || abs === 0 ? abs.toFixed(1) : abs.toPrecision(2);
-  return value < 0 && Number(text) !== 0 ? `\u2212${text}` : text;
-}
-
-export function formatHz(hz: number): string {
-  if (hz < 1000) return `${Math.round(hz)} Hz`;
-  return `${(hz / 1000).toFixed(2).replace(/\.?0+$/, '')} kHz`;
-}
-
-const withUnit = (value: number, unit: string | null): string => (unit ? `${formatValue(value)} ${unit}` : formatValue(value));
-
-/** `mag.env margin −1.3 dB at 8.02 kHz (measured 4.2 dB, limit 2.9 dB)`; parts the server left null are left out. */
+/** `mag.env: measured 4.20 dB, limit 2.90 dB, margin −1.30 dB at 8.02 kHz`, in the words of finding titles and JUnit; parts the server left null are left out. */
 export function describeFailedCheck(check: CheckResultDto): string {
-  let text = check.label ?? check.id;
-  if (check.margin !== null) text += ` margin ${check.margin > 0 ? '+' : ''}${withUnit(check.margin, check.unit)}`;
-  if (check.worstHz !== null) text += ` at ${formatHz(check.worstHz)}`;
-  const values = [
-    ...(check.measured === null ? [] : [`measured ${withUnit(check.measured, check.unit)}`]),
-    ...(check.limit === null ? [] : [`limit ${withUnit(check.limit, check.unit)}`]),
-  ];
-  return values.length > 0 ? `${text} (${values.join(', ')})` : text;
+  return `${check.label ?? check.id}: ${describeCheckValues(check)}`;
 }
 
 /** One line per capture: verdict word, test case, target, file, and why when it did not pass. */

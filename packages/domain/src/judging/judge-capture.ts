@@ -1,7 +1,7 @@
 import { MaskDocument, type JudgingSettings } from '@earmark/contracts';
 import { ENGINE_VERSION, decodeCapture, evaluateMask, stimulusAsPlayed, type DecodedAudio, type StoredCaptureFormat } from '@earmark/dsp';
 import type { Capture, MaskRevision } from '@earmark/db';
-import { errorJudgement, type Judgement } from './judgement.js';
+import { errorJudgement, failReason, type Judgement } from './judgement.js';
 import { judgingSettingsFor } from './judging-settings.js';
 import type { PlayedStimulus } from './stimulus-cache.js';
 
@@ -64,11 +64,12 @@ export function judgeAudio(audio: DecodedAudio, reference: PlayedStimulus, reque
     },
     request.mask,
   );
+  const checks = evaluation.checks.map(({ channel, error, details, ...check }) => ({ ...check, details: { ...details, channel, ...(error ? { error } : {}) } }));
   return {
     outcome: evaluation.verdict,
-    reason: evaluation.reason,
+    reason: evaluation.verdict === 'fail' ? failReason(checks) : evaluation.reason,
     engineVersion: evaluation.engineVersion,
-    checks: evaluation.checks.map(({ channel, error, details, ...check }) => ({ ...check, details: { ...details, channel, ...(error ? { error } : {}) } })),
+    checks,
   };
 }
 

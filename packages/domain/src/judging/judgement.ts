@@ -1,3 +1,5 @@
+import { describeCheckValues, formatMarginAt } from '@earmark/contracts';
+
 /** What the analysis decided about one capture, before it is written. */
 export interface CheckJudgement {
   id: string;
@@ -24,10 +26,21 @@ export function errorJudgement(reason: string, engineVersion: string): Judgement
   return { outcome: 'error', reason, engineVersion, checks: [] };
 }
 
-const fmt = (v: number | null, unit: string | null) => (v === null ? 'n/a' : `${Number(v.toPrecision(4))}${unit ? ` ${unit}` : ''}`);
-
 /** One line for a failing check: used for finding titles, e-mail and logs. */
 export function describeFailure(check: CheckJudgement): string {
-  const where = check.worstHz === null ? '' : ` at ${check.worstHz >= 1000 ? `${Number((check.worstHz / 1000).toPrecision(4))} kHz` : `${Number(check.worstHz.toPrecision(4))} Hz`}`;
-  return `${check.label ?? check.id}: measured ${fmt(check.measured, check.unit)}, limit ${fmt(check.limit, check.unit)}, margin ${fmt(check.margin, check.unit)}${where}`;
+  return `${check.label ?? check.id}: ${describeCheckValues(check)}`;
+}
+
+/** How many failing checks a verdict's reason names before "and N more". */
+const NAMED_IN_REASON = 5;
+
+/**
+ * The reason of a `fail` verdict: "2 of 5 checks failed: response (margin −0.83 dB at 7.99 kHz), clipping (margin −79153)".
+ * The engine names the checks; the margins are added here, in the one formatter's words.
+ */
+export function failReason(checks: readonly CheckJudgement[]): string {
+  const failed = checks.filter((c) => !c.pass);
+  const named = failed.slice(0, NAMED_IN_REASON).map((c) => `${c.id} (${c.margin === null ? (c.measured === null ? 'not measurable' : 'no margin') : `margin ${formatMarginAt(c.margin, c.unit, c.worstHz)}`})`);
+  const rest = failed.length > NAMED_IN_REASON ? `, and ${failed.length - NAMED_IN_REASON} more` : '';
+  return `${failed.length} of ${checks.length} checks failed: ${named.join(', ')}${rest}`;
 }

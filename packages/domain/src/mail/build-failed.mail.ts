@@ -1,5 +1,6 @@
+import { describeCheckValues } from '@earmark/contracts';
 import type { Links } from '../services/links.js';
-import { buildName, checkName, formatDay, formatHz, plural, withUnit } from './mail-format.js';
+import { buildName, checkName, formatDay, plural } from './mail-format.js';
 import type { Inline, ListItem, MailMessage } from './mail-message.js';
 import { renderMail } from './render-mail.js';
 
@@ -39,18 +40,13 @@ export interface BuildFailedInput {
   links: Pick<Links, 'buildPage' | 'capturePage' | 'settingsPage'>;
 }
 
-/** "Flat ±1 dB (response): measured 2.04 dB, limit 1 dB, margin −1.04 dB, worst at 8022 Hz". */
+/** "Flat ±1 dB (response): measured 2.04 dB, limit 1.00 dB, margin −1.04 dB at 8.02 kHz". */
 export function describeReportedCheck(c: ReportedCheck): string {
   const name = checkName(c.id, c.label);
   if (c.waivedUntil) return `${name}: passed with waiver, until ${formatDay(c.waivedUntil)}`;
   if (c.error) return `${name}: could not be measured: ${c.error}`;
-  const parts = [
-    c.measured !== null ? `measured ${withUnit(c.measured, c.unit)}` : null,
-    c.limit !== null ? `limit ${withUnit(c.limit, c.unit)}` : null,
-    c.margin !== null ? `margin ${withUnit(c.margin, c.unit)}` : null,
-    c.worstHz !== null ? `worst at ${formatHz(c.worstHz)}` : null,
-  ].filter((p): p is string => p !== null);
-  return `${name}: ${parts.length ? parts.join(', ') : 'failed'}`;
+  const values = describeCheckValues(c);
+  return `${name}: ${values === 'no values' ? 'failed' : values}`;
 }
 
 const cellName = (c: ReportedCell) => `${c.testCase} on ${c.target}`;

@@ -1,6 +1,5 @@
-import type { DriftFlag } from '@earmark/contracts';
+import { formatMargin, formatQuantity, type DriftFlag } from '@earmark/contracts';
 import type { Links } from '../services/links.js';
-import { formatNumber } from './mail-format.js';
 import type { MailMessage } from './mail-message.js';
 import { renderMail } from './render-mail.js';
 
@@ -13,7 +12,6 @@ export interface DriftMailInput {
 
 /** To the project's subscribers: a check still passes but its margin shrank past the project's threshold. */
 export function composeDriftMail({ project, build, flag, links }: DriftMailInput): MailMessage {
-  const db = (v: number) => `${formatNumber(Number(v.toFixed(2)))} dB`;
   return renderMail({
     kind: 'drift',
     subject: `[Earmark] ${project.key} ${build.branch}: ${flag.checkId} on ${flag.testCase}/${flag.target} is drifting`,
@@ -21,11 +19,11 @@ export function composeDriftMail({ project, build, flag, links }: DriftMailInput
       {
         type: 'paragraph',
         content: [
-          `The margin of check ${flag.checkId} (${flag.testCase} on ${flag.target}) still passes but shrank by ${db(flag.shrinkDb)} ` +
-            `over the last ${flag.builds} builds of ${build.branch}: from ${db(flag.bestMargin)} (build ${flag.bestSha.slice(0, 10)}) to ${db(flag.latestMargin)} (build ${build.sha.slice(0, 10)}).`,
+          `The margin of check ${flag.checkId} (${flag.testCase} on ${flag.target}) still passes but shrank by ${formatQuantity(flag.shrinkDb, 'dB')} ` +
+            `over the last ${flag.builds} builds of ${build.branch}: from ${formatMargin(flag.bestMargin, 'dB')} (build ${flag.bestSha.slice(0, 10)}) to ${formatMargin(flag.latestMargin, 'dB')} (build ${build.sha.slice(0, 10)}).`,
         ],
       },
-      { type: 'paragraph', content: [`The project flags a shrink of more than ${flag.thresholdDb} dB.`] },
+      { type: 'paragraph', content: [`The project flags a shrink of more than ${formatQuantity(flag.thresholdDb, 'dB')}.`] },
       { type: 'paragraph', content: ['Open the build: ', { href: links.buildPage(project.key, build.sha) }] },
     ],
     footer: {

@@ -1,13 +1,4 @@
-/** How numbers, frequencies and dates read in mail: four significant digits, a real minus sign. */
-export function formatNumber(value: number): string {
-  const n = Number(value.toPrecision(4));
-  return n < 0 ? `\u2212${String(-n)}` : String(n);
-}
-
-export const withUnit = (value: number, unit: string | null) => `${formatNumber(value)}${unit ? ` ${unit}` : ''}`;
-
-/** Frequencies in Hz, as measured (8021.7 → "8022 Hz"). */
-export const formatHz = (hz: number) => `${Number(hz.toPrecision(4))} Hz`;
+// Numbers in mail come from @earmark/contracts' formatter (describeCheckValues, formatMargin…), as on every surface.
 
 /** A date as YYYY-MM-DD (UTC). */
 export const formatDay = (at: Date | string) => (typeof at === 'string' ? new Date(at) : at).toISOString().slice(0, 10);

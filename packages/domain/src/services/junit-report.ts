@@ -1,11 +1,9 @@
-import type { BuildDetail } from '@earmark/contracts';
+import { describeCheckValues, type BuildDetail } from '@earmark/contracts';
 import junitModule, { type Builder } from 'junit-report-builder';
 
 // NOTE: a CommonJS package compiled from TypeScript: under Node's ESM loader the default
 // import is the whole exports object, so take its `default` when present.
 const junit: Builder = (junitModule as unknown as { default?: Builder }).default ?? (junitModule as unknown as Builder);
-
-const fmt = (v: number | null, unit: string | null) => (v === null ? 'n/a' : `${Number(v.toPrecision(6))}${unit ? ` ${unit}` : ''}`);
 
 /** `2027-01-15` from a waiver's end (an ISO timestamp): CI reports show the day. */
 const day = (iso: string) => iso.slice(0, 10);
@@ -46,11 +44,7 @@ export function renderJunit(build: BuildDetail): string {
         if (!check.pass && check.waiver) {
           tc.property('earmark.waiver', `passed with waiver, until ${day(check.waiver.until)}`).property('earmark.waiverId', check.waiver.id);
         } else if (!check.pass) {
-          const worst = check.worstHz === null ? '' : ` at ${Number(check.worstHz.toPrecision(5))} Hz`;
-          tc.failure(
-            `${check.kind}: measured ${fmt(check.measured, check.unit)}, limit ${fmt(check.limit, check.unit)}, margin ${fmt(check.margin, check.unit)}${worst}`,
-            check.kind,
-          );
+          tc.failure(`${check.kind}: ${describeCheckValues(check)}`, check.kind);
         }
       }
       if (unexplainedFail) suite.testCase().className(className).name('verdict').failure(verdict.reason ?? 'The capture failed its mask.', 'verdict');

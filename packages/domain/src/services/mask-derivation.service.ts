@@ -1,7 +1,7 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { AnalysisSettings, CAPTURE_PURGED, StimulusSpec, type DeriveMaskRequest, type DeriveMaskResponse } from '@earmark/contracts';
 import { Capture, type Project, type TestCase } from '@earmark/db';
-import { ENGINE_VERSION, deriveEnvelope, stimulusAsPlayed } from '@earmark/dsp';
+import { DEFAULT_YIELD_GUARD_BANDS_DB, ENGINE_VERSION, deriveEnvelope, estimateYield, stimulusAsPlayed, type YieldEstimate } from '@earmark/dsp';
 import { GoneError, ValidationError } from '../errors.js';
 import type { CaptureAudioLoader } from './capture-audio.js';
 
@@ -74,6 +74,7 @@ export class MaskDerivationService {
       throw error;
     }
     return {
+      yieldEstimate: yieldOf(derived.hz, derived.curves, req, smoothing),
       check: derived.check,
       stats: {
         captures: ordered.length,
@@ -101,4 +102,16 @@ export class MaskDerivationService {
       },
     };
   }
+}
+
+/**
+ * The false-reject estimate of the proposal (packages/dsp estimateYield): at the requested guard
+ * band and over 0…3 dB in 0.1 dB steps (extended in the same steps up to the requested guard band
+ * when it is larger), so the wizard's slider needs no further request. Parametric bands are
+ * 1/smoothing octave wide: the check's own smoothing is what makes neighbouring frequencies move together.
+ */
+function yieldOf(hz: Float64Array, curves: Float64Array[], req: DeriveMaskRequest, smoothing: number): YieldEstimate {
+  const steps = Math.max(DEFAULT_YIELD_GUARD_BANDS_DB.length - 1, Math.ceil(req.guardDb * 10 - 1e-9));
+  const guardBandsDb = Array.from({ length: steps + 1 }, (_, i) => i / 10);
+  return estimateYield(hz, curves, { k: req.k, guardDb: req.guardDb, maxSegments: req.maxSegments, guardBandsDb, bandsPerOctave: smoothing });
 }

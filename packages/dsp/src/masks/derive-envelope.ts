@@ -44,6 +44,8 @@ export interface DerivedEnvelope {
   /** Frequencies measured in every golden capture, and the per-frequency statistics there. */
   hz: Float64Array;
   mean: Float64Array;
+  /** Each golden capture's curve at `hz` (what the statistics and the yield estimate are taken from). */
+  curves: Float64Array[];
   /** Sample standard deviation (N − 1 in the denominator). */
   std: Float64Array;
   upperRaw: Float64Array;
@@ -152,6 +154,54 @@ function onGrid(points: SpectrumPoints, grid: Float64Array): Float64Array {
   return out;
 }
 
+/** Settings that turn golden curves into limits (a subset of DeriveEnvelopeOptions). */
+export type EnvelopeLimitSettings = Pick<DeriveEnvelopeOptions, 'k' | 'guardDb' | 'maxSegments'>;
+
+/** Limits derived from golden curves on one grid, with the statistics behind them. */
+export interface EnvelopeLimits {
+  mean: Float64Array;
+  std: Float64Array;
+  upperRaw: Float64Array;
+  lowerRaw: Float64Array;
+  upper: LimitBreakpoint[];
+  lower: LimitBreakpoint[];
+}
+
+/**
+ * The statistics and simplified limits of `deriveEnvelope` from curves already measured on one
+ * grid `hz` (ascending, Hz): per frequency the mean and sample σ, raw limits m ± (k·σ + guardDb),
+ * each simplified to `maxSegments` segments, moved outward to bound its raw curve and rounded
+ * outward to 0.01 dB. Split out so the yield estimate can re-derive from N − 1 curves.
+ * @throws RangeError on fewer than two curves or curves not of hz's length
+ */
+export function limitsFromCurves(hz: Float64Array, curves: readonly Float64Array[], settings: EnvelopeLimitSettings): EnvelopeLimits {
+  const fn = 'limitsFromCurves';
+  const n = curves.length;
+  precondition(n >= 2, fn, `need at least two curves (got ${n})`);
+  precondition(hz.length >= 2 && curves.every((c) => c.length === hz.length), fn, `every curve must have one value per frequency (${hz.length})`);
+  const mean = new Float64Array(hz.length);
+  const std = new Float64Array(hz.length);
+  for (let j = 0; j < hz.length; j++) {
+    let s = 0;
+    for (const c of curves) s += c[j] as number;
+    const m = s / n;
+    let ss = 0;
+    for (const c of curves) ss += ((c[j] as number) - m) ** 2;
+    mean[j] = m;
+    std[j] = Math.sqrt(ss / (n - 1));
+  }
+  const upperRaw = Float64Array.from(mean, (m, j) => m + settings.k * (std[j] as number) + settings.guardDb);
+  const lowerRaw = Float64Array.from(mean, (m, j) => m - settings.k * (std[j] as number) - settings.guardDb);
+
+  const logHz = Float64Array.from(hz, (f) => Math.log10(f));
+  const simplify = (raw: Float64Array, side: 1 | -1): LimitBreakpoint[] => {
+    const kept = simplifyPolyline(logHz, raw, settings.maxSegments);
+    const db = boundingBreakpoints(logHz, raw, kept, side);
+    return kept.map((i, s) => ({ hz: hz[i] as number, db: outward(db[s] as number, side) }));
+  };
+  return { mean, std, upperRaw, lowerRaw, upper: simplify(upperRaw, 1), lower: simplify(lowerRaw, -1) };
+}
+
 /**
  * Proposes a magnitude envelope from golden captures: each capture's curve is measured exactly
  * as the envelope check measures it (transfer |H| normalised at referenceHz, or the level
@@ -203,28 +253,8 @@ export function deriveEnvelope(input: DeriveEnvelopeInput, options: DeriveEnvelo
   for (let i = 0; i < grid.length; i++) if (values.every((v) => Number.isFinite(v[i] as number))) keep.push(i);
   precondition(keep.length >= 2, fn, `fewer than two frequencies in ${lo}…${hi} Hz are measured in every capture`);
   const hz = Float64Array.from(keep, (i) => grid[i] as number);
-  const mean = new Float64Array(keep.length);
-  const std = new Float64Array(keep.length);
-  keep.forEach((gi, j) => {
-    let s = 0;
-    for (const v of values) s += v[gi] as number;
-    const m = s / n;
-    let ss = 0;
-    for (const v of values) ss += ((v[gi] as number) - m) ** 2;
-    mean[j] = m;
-    std[j] = Math.sqrt(ss / (n - 1));
-  });
-  const upperRaw = Float64Array.from(mean, (m, j) => m + options.k * (std[j] as number) + options.guardDb);
-  const lowerRaw = Float64Array.from(mean, (m, j) => m - options.k * (std[j] as number) - options.guardDb);
-
-  const logHz = Float64Array.from(hz, (f) => Math.log10(f));
-  const simplify = (raw: Float64Array, side: 1 | -1): LimitBreakpoint[] => {
-    const kept = simplifyPolyline(logHz, raw, options.maxSegments);
-    const db = boundingBreakpoints(logHz, raw, kept, side);
-    return kept.map((i, s) => ({ hz: hz[i] as number, db: outward(db[s] as number, side) }));
-  };
-  const upper = simplify(upperRaw, 1);
-  const lower = simplify(lowerRaw, -1);
+  const golden = values.map((v) => Float64Array.from(keep, (gi) => v[gi] as number));
+  const { mean, std, upperRaw, lowerRaw, upper, lower } = limitsFromCurves(hz, golden, options);
 
   const upperAt = sampleLimit(upper, hz);
   const lowerAt = sampleLimit(lower, hz);
@@ -239,9 +269,8 @@ export function deriveEnvelope(input: DeriveEnvelopeInput, options: DeriveEnvelo
     stray = Math.max(stray, -du, -dl);
   }
   let worstGolden = Infinity;
-  for (const v of values) {
-    keep.forEach((gi, j) => {
-      const x = v[gi] as number;
+  for (const curve of golden) {
+    curve.forEach((x, j) => {
       worstGolden = Math.min(worstGolden, (upperAt[j] as number) - x, x - (lowerAt[j] as number));
     });
   }
@@ -261,6 +290,7 @@ export function deriveEnvelope(input: DeriveEnvelopeInput, options: DeriveEnvelo
     check,
     unit: options.measure === 'transfer' ? 'dB' : 'dBFS',
     hz,
+    curves: golden,
     mean,
     std,
     upperRaw,

@@ -97,14 +97,11 @@ function evaluateCheckAlone(ctx: CaptureContext, check: MaskCheck): CheckEvaluat
   }
 }
 
-function formatMargin(c: CheckEvaluation): string {
-  if (c.margin === null) return c.measured === null ? 'not measurable' : 'no margin';
-  const at = c.worstHz !== null ? ` at ${Math.round(c.worstHz)} Hz` : '';
-  const unit = c.unit === 'dBFS' ? 'dB' : c.unit;
-  return `margin ${Number(c.margin.toPrecision(3))} ${unit}${at}`;
-}
-
-/** One sentence for people: why the verdict is what it is (null for a pass). */
+/**
+ * One sentence for people: why the verdict is what it is (null for a pass). It names the failing
+ * checks without numbers: their margins are written by the one formatter in @earmark/contracts,
+ * which this pure engine does not import (the domain adds them, see judgement.ts).
+ */
 function verdictReason(checks: readonly CheckEvaluation[]): { verdict: MaskEvaluation['verdict']; reason: string | null } {
   const errors = checks.filter((c) => c.error !== null);
   if (errors.length > 0) {
@@ -114,7 +111,7 @@ function verdictReason(checks: readonly CheckEvaluation[]): { verdict: MaskEvalu
   }
   const failed = checks.filter((c) => !c.pass);
   if (failed.length === 0) return { verdict: 'pass', reason: null };
-  const listed = failed.slice(0, 5).map((c) => `${c.id} (${formatMargin(c)})`);
+  const listed = failed.slice(0, 5).map((c) => c.id);
   const rest = failed.length > 5 ? `, and ${failed.length - 5} more` : '';
   return { verdict: 'fail', reason: `${failed.length} of ${checks.length} checks failed: ${listed.join(', ')}${rest}` };
 }

@@ -10,4 +10,6 @@ export { DB_FLOOR, DEFAULT_REFERENCE_HZ } from './spectral-curves.js';
 export { DYNAMIC_RANGE_TONE_DBFS, DYNAMIC_RANGE_TONE_TOLERANCE_DB } from './checks/distortion.check.js';
 export { DEFAULT_MIN_DROPOUT_MS } from './checks/integrity.check.js';
 export type { FailingRegion } from './checks/magnitude-envelope.check.js';
-export { deriveEnvelope, simplifyPolyline, type DeriveEnvelopeInput, type DeriveEnvelopeOptions, type DerivedEnvelope } from './derive-envelope.js';
+export { deriveEnvelope, limitsFromCurves, simplifyPolyline, type DeriveEnvelopeInput, type DeriveEnvelopeOptions, type DerivedEnvelope, type EnvelopeLimits, type EnvelopeLimitSettings } from './derive-envelope.js';
+export { DEFAULT_YIELD_GUARD_BANDS_DB, estimateYield, wilsonInterval, type ParametricRate, type RateInterval, type YieldAtGuard, type YieldEstimate, type YieldEstimateOptions } from './yield-estimate.js';
+export { studentTUpperTail } from './student-t.js';

@@ -58,7 +58,7 @@ describe('evaluateMask: magnitude envelope', () => {
     // The failing region straddles 8 kHz: the bump exceeds +1 dB between its analytic +1 dB points.
     const regions = check?.details.failingRegions as { fromHz: number; toHz: number }[];
     expect(regions.some((r) => r.fromHz < 8000 && r.toHz > 8000)).toBe(true);
-    expect(result.reason).toMatch(/^1 of 1 checks failed: flat \(margin -0\.99\d dB at 80\d\d Hz\)$/);
+    expect(result.reason).toBe('1 of 1 checks failed: flat');
   });
 
   it('measures the same bump with H1 on a multitone, at the tones only', () => {

@@ -3,6 +3,8 @@
  * readable Hz labels, tick positions on a log axis, and zoom arithmetic in log frequency.
  */
 
+import { formatFrequency } from '@earmark/contracts';
+
 export type FrequencyRange = { min: number; max: number };
 
 const MINUS = '\u2212';
@@ -14,11 +16,8 @@ function significant(value: number, digits: number): string {
   return text.includes('.') && !text.includes('e') ? text.replace(/\.?0+$/, '') : text;
 }
 
-/** "8.02 kHz", "997 Hz", "31.5 Hz", "20 kHz": three significant digits, the unit spelled out. */
-export function formatHz(hz: number): string {
-  if (Math.abs(hz) >= 1000) return `${significant(hz / 1000, 3)} kHz`;
-  return `${significant(hz, 3)} Hz`;
-}
+/** "8.02 kHz", "997 Hz", "31.5 Hz", "20 kHz": a measured frequency, in the one rule of @earmark/contracts. */
+export const formatHz = (hz: number): string => formatFrequency(hz);
 
 /** Compact tick label: "20", "500", "1k", "2.5k", "20k". */
 export function formatHzTick(hz: number): string {

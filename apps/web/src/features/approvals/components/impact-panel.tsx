@@ -1,4 +1,4 @@
-import type { ImpactResult, VerdictFlip } from '@earmark/contracts';
+import { formatMargin, type ImpactResult, type VerdictFlip } from '@earmark/contracts';
 import { useId, useState } from 'react';
 import { Button } from '@/components/button';
 import { ErrorState } from '@/components/error-state';
@@ -7,7 +7,6 @@ import { InlineError } from '@/components/inline-error';
 import { ProgressBar } from '@/components/progress-bar';
 import { Skeleton } from '@/components/skeleton';
 import { VerdictBadge } from '@/components/verdict-badge';
-import { formatSigned } from '@/lib/format-measure';
 import { shortSha } from '@/lib/sha';
 import { unfinished, useImpactRun, useLatestImpactRun, useStartImpactRun } from '../api/impact-runs';
 
@@ -22,7 +21,7 @@ function FlipText({ flip }: { flip: VerdictFlip | null }) {
 }
 
 function margin(value: number | null, unit: string | null): string {
-  return value === null ? '—' : `${formatSigned(value, 2)}${unit ? ` ${unit}` : ''}`;
+  return formatMargin(value, unit);
 }
 
 function ImpactTables({ result, revision }: { result: ImpactResult; revision: number }) {

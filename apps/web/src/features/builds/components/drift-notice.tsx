@@ -1,8 +1,6 @@
 import type { DriftFlag } from '@earmark/contracts';
-import { formatSigned } from '@/lib/format-measure';
+import { formatMargin, formatQuantity, marginUnit } from '@earmark/contracts';
 import { shortSha } from '@/lib/sha';
-
-const withUnit = (text: string, unit: string | null) => (unit ? `${text} ${unit}` : text);
 
 /**
  * Checks that still pass but whose margin has shrunk by more than the project's drift
@@ -28,10 +26,10 @@ export function DriftNotice({ drift }: { drift: DriftFlag[] }) {
               {d.testCase} on {d.target}:
             </span>
             <span className="font-mono text-[13px] tabular-nums">
-              margin {withUnit(formatSigned(d.bestMargin, 2), d.unit)} at {shortSha(d.bestSha)} → {withUnit(formatSigned(d.latestMargin, 2), d.unit)} now
+              margin {formatMargin(d.bestMargin, d.unit)} at {shortSha(d.bestSha)} → {formatMargin(d.latestMargin, d.unit)} now
             </span>
             <span className="text-xs text-ink-500">
-              (shrank {withUnit(d.shrinkDb.toFixed(2), d.unit)} over {d.builds} builds; threshold {withUnit(d.thresholdDb.toFixed(2), d.unit)})
+              (shrank {formatQuantity(d.shrinkDb, marginUnit(d.unit))} over {d.builds} builds; threshold {formatQuantity(d.thresholdDb, marginUnit(d.unit))})
             </span>
           </li>
         ))}

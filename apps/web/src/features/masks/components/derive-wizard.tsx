@@ -1,4 +1,4 @@
-import { DeriveMaskRequest, limitAt, type DeriveMaskResponse, type MagnitudeEnvelopeCheck } from '@earmark/contracts';
+import { DeriveMaskRequest, formatDecibels, formatMargin, limitAt, type DeriveMaskResponse, type MagnitudeEnvelopeCheck } from '@earmark/contracts';
 import { useId, useMemo, useState } from 'react';
 import type uPlot from 'uplot';
 import { Button } from '@/components/button';
@@ -9,7 +9,6 @@ import { PlotFigure } from '@/components/plot-figure';
 import { VerdictBadge } from '@/components/verdict-badge';
 import { issuesByPath, issuesUnder, type FieldIssues } from '@/lib/field-issues';
 import { frequencyAxes, logFrequencyScale, tickDecimals, valueAxis } from '@/lib/plot/axes';
-import { plain } from '@/lib/plot/log-frequency';
 import { plotPalette } from '@/lib/plot/palette';
 import { shortSha } from '@/lib/sha';
 import type { CandidateCapture } from '../api/get-candidate-captures';
@@ -65,8 +64,8 @@ function DerivedPreview({ result }: { result: DeriveMaskResponse }) {
         {[
           ['Captures', String(stats.captures)],
           ['Breakpoints', `${check.upper?.length ?? 0} upper · ${check.lower?.length ?? 0} lower`],
-          ['Max deviation', `${plain(stats.maxDeviationDb.overall, 2)} dB`],
-          ['Worst golden margin', `${plain(stats.worstGoldenMarginDb, 2)} dB`],
+          ['Max deviation', formatDecibels(stats.maxDeviationDb.overall)],
+          ['Worst golden margin', formatMargin(stats.worstGoldenMarginDb, 'dB')],
         ].map(([term, value]) => (
           <div key={term}>
             <dt className="text-[11px] font-semibold uppercase tracking-[0.07em] text-ink-500">{term}</dt>

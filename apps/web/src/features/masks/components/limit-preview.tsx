@@ -1,4 +1,4 @@
-import type { LimitPoint } from '@earmark/contracts';
+import { formatMarginAt, type LimitPoint } from '@earmark/contracts';
 import { useId, useMemo } from 'react';
 import type uPlot from 'uplot';
 import { ErrorState } from '@/components/error-state';
@@ -6,7 +6,6 @@ import { Select } from '@/components/form-controls';
 import { PlotFigure } from '@/components/plot-figure';
 import { Skeleton } from '@/components/skeleton';
 import { frequencyAxes, logFrequencyScale, tickDecimals, valueAxis } from '@/lib/plot/axes';
-import { formatHz, plain, signed } from '@/lib/plot/log-frequency';
 import { plotPalette } from '@/lib/plot/palette';
 import { shortSha } from '@/lib/sha';
 import type { CandidateCapture } from '../api/get-candidate-captures';
@@ -129,7 +128,7 @@ export function LimitPreview({
             label="Limit preview"
             summary={
               worst
-                ? `The selected capture against the draft limits; smallest margin ${plain(worst.margin, 2)} ${unit} at ${formatHz(worst.hz)}.`
+                ? `The selected capture against the draft limits; smallest margin ${formatMarginAt(worst.margin, unit, worst.hz)}.`
                 : 'The selected capture; the draft has no limits that apply to it.'
             }
             height={HEIGHT}
@@ -156,7 +155,7 @@ export function LimitPreview({
           </span>
           {worst ? (
             <span role="status" className="font-mono">
-              {worst.margin >= 0 ? 'Inside' : 'Outside'} by {signed(worst.margin, 2)} {unit} at {formatHz(worst.hz)} ({worst.side})
+              {worst.margin >= 0 ? 'Inside' : 'Outside'} by {formatMarginAt(worst.margin, unit, worst.hz)} ({worst.side})
             </span>
           ) : null}
         </div>

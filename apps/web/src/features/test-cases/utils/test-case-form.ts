@@ -1,4 +1,5 @@
 import {
+  formatFrequency,
   CreateTestCaseRequest,
   STIMULUS_KINDS,
   UpdateTestCaseRequest,
@@ -259,7 +260,7 @@ export { STIMULUS_KINDS };
 export function describeStimulus(spec: TestCaseDto['stimulus']): string {
   const rate = `${spec.sampleRate / 1000} kHz`;
   const levelText = 'levelDbfs' in spec ? `, ${String(spec.levelDbfs).replace('-', '\u2212')} dBFS` : '';
-  const hz = (value: number) => (value >= 1000 ? `${Number((value / 1000).toFixed(2))} kHz` : `${value} Hz`);
+  const hz = formatFrequency;
   switch (spec.kind) {
     case 'sine':
       return `Sine ${hz(spec.frequency)}, ${spec.seconds} s${levelText} · ${rate}`;
