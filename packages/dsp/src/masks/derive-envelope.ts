@@ -5,6 +5,7 @@ import { EngineInputError } from '../util/engine-input-error.js';
 import { sampleLimit, type LimitBreakpoint } from './limit-curve.js';
 import { CaptureContext } from '../context/capture-context.js';
 import { validateMaskInput } from './mask-input.js';
+import { roundedBoundingLimit } from './rounded-limit.js';
 import { DEFAULT_REFERENCE_HZ, envelopePoints, type SpectrumPoints } from './spectral-curves.js';
 
 /** What limits are derived from: golden captures of one test case and the stimulus they answer. */
@@ -113,29 +114,6 @@ export function simplifyPolyline(x: Float64Array, y: Float64Array, maxSegments: 
   return kept.sort((p, q) => p - q);
 }
 
-/**
- * Breakpoints through `y` at the kept indices, each segment then lifted (side +1) or lowered
- * (side −1) just enough that no point of `y` lies outside it: a breakpoint shared by two
- * segments takes the larger shift. A segment whose two ends moved by at least d moved by at
- * least d everywhere, so the result bounds `y` on its side at every point.
- */
-function boundingBreakpoints(x: Float64Array, y: Float64Array, kept: readonly number[], side: 1 | -1): Float64Array {
-  const shift = new Float64Array(kept.length);
-  for (let s = 0; s + 1 < kept.length; s++) {
-    const a = kept[s] as number;
-    const b = kept[s + 1] as number;
-    const slope = ((y[b] as number) - (y[a] as number)) / ((x[b] as number) - (x[a] as number));
-    let need = 0;
-    for (let i = a + 1; i < b; i++) need = Math.max(need, side * ((y[i] as number) - ((y[a] as number) + slope * ((x[i] as number) - (x[a] as number)))));
-    shift[s] = Math.max(shift[s] as number, need);
-    shift[s + 1] = Math.max(shift[s + 1] as number, need);
-  }
-  return Float64Array.from(kept, (i, s) => (y[i] as number) + side * (shift[s] as number));
-}
-
-/** Rounds outward to 0.01 dB, so rounding never moves a limit inside its raw curve. */
-const outward = (db: number, side: 1 | -1) => (side === 1 ? Math.ceil(db * 100 - 1e-9) : Math.floor(db * 100 + 1e-9)) / 100;
-
 /** `values` on `grid` from a curve measured at other frequencies: linear in dB over log f; NaN outside it. */
 function onGrid(points: SpectrumPoints, grid: Float64Array): Float64Array {
   const same = points.hz.length === grid.length && points.hz.every((f, i) => f === grid[i]);
@@ -170,8 +148,8 @@ export interface EnvelopeLimits {
 /**
  * The statistics and simplified limits of `deriveEnvelope` from curves already measured on one
  * grid `hz` (ascending, Hz): per frequency the mean and sample σ, raw limits m ± (k·σ + guardDb),
- * each simplified to `maxSegments` segments, moved outward to bound its raw curve and rounded
- * outward to 0.01 dB. Split out so the yield estimate can re-derive from N − 1 curves.
+ * each simplified to `maxSegments` segments and rounded for review (roundedBoundingLimit: two
+ * significant digits in Hz, 0.1 dB outward, still bounding its raw curve). Split out so the yield estimate can re-derive from N − 1 curves.
  * @throws RangeError on fewer than two curves or curves not of hz's length
  */
 export function limitsFromCurves(hz: Float64Array, curves: readonly Float64Array[], settings: EnvelopeLimitSettings): EnvelopeLimits {
@@ -194,11 +172,7 @@ export function limitsFromCurves(hz: Float64Array, curves: readonly Float64Array
   const lowerRaw = Float64Array.from(mean, (m, j) => m - settings.k * (std[j] as number) - settings.guardDb);
 
   const logHz = Float64Array.from(hz, (f) => Math.log10(f));
-  const simplify = (raw: Float64Array, side: 1 | -1): LimitBreakpoint[] => {
-    const kept = simplifyPolyline(logHz, raw, settings.maxSegments);
-    const db = boundingBreakpoints(logHz, raw, kept, side);
-    return kept.map((i, s) => ({ hz: hz[i] as number, db: outward(db[s] as number, side) }));
-  };
+  const simplify = (raw: Float64Array, side: 1 | -1): LimitBreakpoint[] => roundedBoundingLimit(hz, raw, simplifyPolyline(logHz, raw, settings.maxSegments), side);
   return { mean, std, upperRaw, lowerRaw, upper: simplify(upperRaw, 1), lower: simplify(lowerRaw, -1) };
 }
 
@@ -207,10 +181,11 @@ export function limitsFromCurves(hz: Float64Array, curves: readonly Float64Array
  * as the envelope check measures it (transfer |H| normalised at referenceHz, or the level
  * spectrum; the same 1/N-octave smoothing), then per frequency the mean m and sample standard
  * deviation σ give raw limits m ± (k·σ + guardDb). Each raw limit is simplified to at most
- * `maxSegments` segments on (log10 f, dB) by Ramer–Douglas–Peucker refinement and then moved
- * outward just enough that the simplified upper limit is never below the raw upper (nor the
- * lower above the raw lower) at any measured frequency; breakpoint levels are rounded outward to
- * 0.01 dB. The result is a valid `magnitude-envelope` check of contracts' MaskCheck schema.
+ * `maxSegments` segments on (log10 f, dB) by Ramer–Douglas–Peucker refinement; breakpoint
+ * frequencies are rounded to two significant digits, levels moved outward just enough that the
+ * simplified upper limit is never below the raw upper (nor the lower above the raw lower) at any
+ * measured frequency and rounded outward to 0.1 dB, and points on a straight run (within 0.1 dB)
+ * are dropped, so a flat limit is one segment. The result is a valid `magnitude-envelope` check of contracts' MaskCheck schema.
  * Curves measured on different frequency grids (captures of different lengths) are
  * interpolated onto the first capture's grid; only frequencies every capture covers are used.
  * @throws RangeError (message starting "deriveEnvelope:") on fewer than two captures, captures at

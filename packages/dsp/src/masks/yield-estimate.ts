@@ -95,7 +95,7 @@ function worstMargin(curve: Float64Array, upper: Float64Array, lower: Float64Arr
  *   together and bands are independent: 1 − Π_bands(1 − max_band p).
  *
  * Moving the guard band by d moves both limits outward by d (the simplification is
- * shift-invariant), so other guard bands reuse the same derivations: exact up to the 0.01 dB
+ * shift-invariant), so other guard bands reuse the same derivations: exact up to the 0.1 dB
  * outward rounding of the breakpoints.
  * @throws RangeError on fewer than two curves, curves not on `hz`, negative guard bands or bad bandsPerOctave
  * @see wilsonInterval (Wilson 1927); docs/masks.md, "Yield estimate"

@@ -4,7 +4,7 @@
 // (Ramer 1972; Douglas & Peucker 1973) and the contracts' MaskCheck schema.
 import { describe, expect, it } from 'vitest';
 import { MaskCheck, MaskDocument } from '@earmark/contracts';
-import { deriveEnvelope, evaluateMask, sampleLimit, simplifyPolyline } from '../../src/index.js';
+import { deriveEnvelope, evaluateMask, sampleLimit, simplifyPolyline, twoDigitHz, type LimitBreakpoint } from '../../src/index.js';
 import { applyBiquad, mapChannels, peakingEqCoefficients, scaleDb } from '../../src/testing/index.js';
 import { FS, SWEEP } from './mask-fixtures.js';
 import { refusedBy } from '../helpers/refused.js';
@@ -12,6 +12,15 @@ import { refusedBy } from '../helpers/refused.js';
 const input = (captures: (typeof SWEEP)[]) => ({ captures, reference: SWEEP, transferMethod: 'deconvolution' as const });
 
 /** Eight gains, four at +a and four at −a: mean 0 and sample σ = a·√(8/7), so a = σ·√(7/8) gives σ exactly. */
+/** Breakpoints a reviewer can read: frequencies of at most two significant digits, levels in whole 0.1 dB steps. */
+function expectRounded(limit: readonly LimitBreakpoint[]): void {
+  for (const { hz, db } of limit) {
+    expect(Number(hz.toPrecision(2))).toBe(hz);
+    expect(Math.abs(db * 10 - Math.round(db * 10))).toBeLessThan(1e-9);
+    expect(Number(db.toFixed(1))).toBe(db);
+  }
+}
+
 function gainsWithSigma(sigma: number): number[] {
   const a = sigma * Math.sqrt(7 / 8);
   return [a, -a, a, -a, a, -a, a, -a];
@@ -67,6 +76,8 @@ describe('deriveEnvelope: simplification', () => {
       if (check.kind !== 'magnitude-envelope') return;
       expect(check.upper!.length).toBeLessThanOrEqual(maxSegments + 1);
       expect(check.lower!.length).toBeLessThanOrEqual(maxSegments + 1);
+      expectRounded(check.upper!);
+      expectRounded(check.lower!);
       const up = sampleLimit(check.upper!, d.hz);
       const lo = sampleLimit(check.lower!, d.hz);
       let devUp = 0;
@@ -99,6 +110,49 @@ describe('deriveEnvelope: simplification', () => {
     expect(d.plot.hz.length).toBeLessThanOrEqual(64);
     expect(d.plot.mean.length).toBe(d.plot.hz.length);
     for (let i = 1; i < d.plot.hz.length; i++) expect(d.plot.hz[i]!).toBeGreaterThan(d.plot.hz[i - 1]!);
+  });
+});
+
+describe('deriveEnvelope: rounded breakpoints', () => {
+  it('turns a flat ±0.5 dB golden set into a few breakpoints at rounded frequencies, never tighter than the raw limits', () => {
+    // Eight identical captures: σ = 0, so the raw limits are the mean (0 dB up to the ±0.05 dB
+    // deconvolution ripple) ± 0.5 dB, the issue's flat case that came out as 13 breakpoints.
+    const captures = gainsWithSigma(0).map((g) => mapChannels(SWEEP, (x) => scaleDb(x, g)));
+    const d = deriveEnvelope(input(captures), { measure: 'transfer', referenceHz: null, k: 3, guardDb: 0.5, maxSegments: 12, bandHz: [20, 20000] });
+    const check = MaskCheck.parse(d.check);
+    if (check.kind !== 'magnitude-envelope') throw new Error('expected a magnitude envelope');
+    const upper = check.upper!;
+    const lower = check.lower!;
+    expect(upper.length).toBeLessThanOrEqual(3);
+    expect(lower.length).toBeLessThanOrEqual(3);
+    expectRounded(upper);
+    expectRounded(lower);
+    // The ends are rounded outward in frequency, so the limits still span every measured frequency.
+    expect(upper[0]!.hz).toBeLessThanOrEqual(d.hz[0]!);
+    expect(upper.at(-1)!.hz).toBeGreaterThanOrEqual(d.hz.at(-1)!);
+    // Rounded outward: 0.5 dB plus the ripple becomes 0.6 dB (−0.6 dB below, except near the
+    // first measured frequency, 90 Hz here, where the ripple lifts the raw lower limit above −0.5 dB).
+    expect(upper).toEqual([{ hz: 90, db: 0.6 }, { hz: 20000, db: 0.6 }]);
+    expect(lower).toEqual([{ hz: 90, db: -0.5 }, { hz: 120, db: -0.6 }, { hz: 20000, db: -0.6 }]);
+    const up = sampleLimit(upper, d.hz);
+    const lo = sampleLimit(lower, d.hz);
+    for (let j = 0; j < d.hz.length; j++) {
+      expect(up[j]!).toBeGreaterThanOrEqual(d.upperRaw[j]!);
+      expect(lo[j]!).toBeLessThanOrEqual(d.lowerRaw[j]!);
+    }
+  });
+
+  it('rounds frequencies to two significant digits, down, up or to the nearest', () => {
+    expect(twoDigitHz(20.1416015625, 'nearest')).toBe(20);
+    expect(twoDigitHz(20.1416015625, 'up')).toBe(21);
+    expect(twoDigitHz(19996, 'up')).toBe(20000);
+    expect(twoDigitHz(9540, 'nearest')).toBe(9500);
+    expect(twoDigitHz(10499, 'nearest')).toBe(10000);
+    expect(twoDigitHz(99.6, 'nearest')).toBe(100);
+    expect(twoDigitHz(1.234, 'down')).toBe(1.2);
+    expect(twoDigitHz(0.0567, 'up')).toBe(0.057);
+    // Already round: unchanged in every mode.
+    for (const mode of ['down', 'up', 'nearest'] as const) expect(twoDigitHz(12000, mode)).toBe(12000);
   });
 });
 
