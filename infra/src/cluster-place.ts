@@ -33,6 +33,12 @@ export interface PlaceOptions {
   name: string;
   /** Root of the folders made outside clones; tests point it elsewhere. */
   outsideRoot?: string;
+  /**
+   * Names the clone's clusters (a digest of their password). A folder outside the clone
+   * whose note names another owner was left by an earlier clone at the same path (a CI
+   * checkout, a deleted and re-cloned folder): its password is lost, so it is stale.
+   */
+  owner?: string;
 }
 
 /** Runs `test <args>` as the server user; true when it succeeds. Always true when not root. */
@@ -133,6 +139,22 @@ export function prepareClusterPlace(opts: PlaceOptions): ClusterPlace {
   fs.mkdirSync(opts.stateDir, { recursive: true });
   const existing = findClusterPlace(opts);
   if (existing) return existing;
+  return createClusterPlace(opts);
+}
+
+/** The outside folder of this clone's path when it belongs to an earlier clone at that path, else null. */
+export function staleOutsideFolder(opts: PlaceOptions & { secretsFile: string }): string | null {
+  const outsideDir = path.join(opts.outsideRoot ?? DEFAULT_OUTSIDE_ROOT, outsideKey(opts.stateDir));
+  const note = path.join(outsideDir, OWNER_NOTE);
+  if (!fs.existsSync(note) || !opts.owner) return null;
+  const recorded = fs.readFileSync(note, 'utf8').split('\n')[1]?.replace(/^owner /, '').trim();
+  if (recorded) return recorded === opts.owner ? null : outsideDir;
+  // A note from before owners were recorded: stale when the clone's secrets are younger than it.
+  const secretsBorn = fs.existsSync(opts.secretsFile) ? fs.statSync(opts.secretsFile).mtimeMs : Date.now();
+  return secretsBorn > fs.statSync(note).mtimeMs ? outsideDir : null;
+}
+
+function createClusterPlace(opts: PlaceOptions): ClusterPlace {
   if (serverTraverseProblem(opts.stateDir) === null) return { dir: path.join(opts.stateDir, opts.name), outsideDir: null };
 
   const outsideRoot = opts.outsideRoot ?? DEFAULT_OUTSIDE_ROOT;
@@ -141,7 +163,8 @@ export function prepareClusterPlace(opts: PlaceOptions): ClusterPlace {
   fs.mkdirSync(outsideDir, { recursive: true, mode: 0o700 });
   fs.chmodSync(outsideDir, 0o700);
   // Says which clone the folder belongs to, for whoever finds it later.
-  fs.writeFileSync(path.join(outsideDir, OWNER_NOTE), `${fs.realpathSync(opts.stateDir)}\n`, { mode: 0o644 });
+  const owner = opts.owner ? `owner ${opts.owner}\n` : '';
+  fs.writeFileSync(path.join(outsideDir, OWNER_NOTE), `${fs.realpathSync(opts.stateDir)}\n${owner}`, { mode: 0o644 });
   chown(outsideDir, true);
   return { dir: path.join(outsideDir, opts.name), outsideDir };
 }

@@ -1,7 +1,8 @@
+import { createHash } from 'node:crypto';
 import fs from 'node:fs';
 import path from 'node:path';
 import pg from 'pg';
-import { assertServerCanUse, findClusterPlace, prepareClusterPlace, prepareDataDir, removeClusterPlace, SERVER_USER, type ClusterPlace } from './cluster-place.js';
+import { assertServerCanUse, findClusterPlace, prepareClusterPlace, prepareDataDir, removeClusterPlace, SERVER_USER, staleOutsideFolder, type ClusterPlace } from './cluster-place.js';
 import { dataDir } from './paths.js';
 import { assertPortFree } from './ports.js';
 import { loadLocalSecrets } from './secrets.js';
@@ -127,7 +128,9 @@ export async function startCluster(opts: ClusterOptions): Promise<Cluster> {
   const log = opts.log ?? (() => {});
   const binDir = ensurePostgresInstalled(log);
   const password = opts.password ?? loadLocalSecrets().pgPassword;
-  const place = prepareClusterPlace({ stateDir: opts.stateDir ?? dataDir, name: opts.name, outsideRoot: opts.outsideRoot });
+  const placeOptions = { stateDir: opts.stateDir ?? dataDir, name: opts.name, outsideRoot: opts.outsideRoot, owner: passwordDigest(password) };
+  removeStaleOutsideFolder(binDir, { ...placeOptions, secretsFile: path.join(placeOptions.stateDir, 'secrets.json') }, log);
+  const place = prepareClusterPlace(placeOptions);
   const dir = place.dir;
   if (!fs.existsSync(path.join(dir, 'PG_VERSION'))) {
     if (fs.existsSync(dir) && fs.readdirSync(dir).length > 0) {
@@ -156,6 +159,22 @@ export async function startCluster(opts: ClusterOptions): Promise<Cluster> {
     url,
     stop: () => stopClusterIn(binDir, dir),
   };
+}
+
+const passwordDigest = (password: string) => createHash('sha256').update(password).digest('hex').slice(0, 16);
+
+/**
+ * Removes the clusters an earlier clone at this clone's path left outside it: their password
+ * went with that clone, so starting them could only fail to authenticate.
+ */
+function removeStaleOutsideFolder(binDir: string, opts: Parameters<typeof staleOutsideFolder>[0], log: (l: string) => void): void {
+  const stale = staleOutsideFolder(opts);
+  if (!stale) return;
+  log(`Removing ${stale}: clusters an earlier clone at this path left behind (their password went with it)…`);
+  for (const entry of fs.readdirSync(stale, { withFileTypes: true })) {
+    if (entry.isDirectory()) stopClusterIn(binDir, path.join(stale, entry.name));
+  }
+  fs.rmSync(stale, { recursive: true, force: true });
 }
 
 function stopClusterIn(binDir: string, dir: string): void {

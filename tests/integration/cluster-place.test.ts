@@ -89,7 +89,7 @@ describe.runIf(asRoot)('cluster location for clones anywhere', () => {
       expect(f.uid, f.dir).toBe(postgresUid());
       expect(f.mode & 0o077, `${f.dir} is open to other users`).toBe(0);
     }
-    expect(fs.readFileSync(path.join(outsideDir, 'clone.txt'), 'utf8').trim()).toBe(fs.realpathSync(stateDir));
+    expect(fs.readFileSync(path.join(outsideDir, 'clone.txt'), 'utf8').split('\n')[0]).toBe(fs.realpathSync(stateDir));
 
     // A second start (stopped or running) reuses the cluster and its data.
     cluster.stop();
@@ -104,6 +104,30 @@ describe.runIf(asRoot)('cluster location for clones anywhere', () => {
     expect(fs.existsSync(cluster.dataDir)).toBe(false);
     expect(fs.existsSync(outsideDir)).toBe(false);
     expect(destroyCluster({ name: 'pg', stateDir })).toBeNull();
+  });
+
+  it('replaces the clusters an earlier clone at the same path left outside it (a CI checkout made again)', async () => {
+    const stateDir = path.join(privateFolder(), 'checkout', '.data');
+    const first = await startCluster({ name: 'pg', port: await freePort(), fsync: false, stateDir, password: 'first-clone' });
+    await query(first, 'create table from_the_first_clone (id int)');
+    first.stop();
+    const outsideDir = path.dirname(first.dataDir);
+
+    // The checkout is deleted and made again at the same path with a new password: its
+    // folder outside still holds the first clone's cluster, whose password is gone.
+    fs.rmSync(path.dirname(stateDir), { recursive: true, force: true });
+    const log: string[] = [];
+    const second = await start(stateDir, log);
+    started.push({ stateDir, cluster: second });
+    expect(second.dataDir).toBe(first.dataDir);
+    expect(log.some((l) => l.startsWith(`Removing ${outsideDir}`))).toBe(true);
+    expect((await query(second, `select to_regclass('from_the_first_clone') is null as fresh`)).rows).toEqual([{ fresh: true }]);
+
+    // The same clone starting again keeps its cluster.
+    second.stop();
+    const again: string[] = [];
+    await start(stateDir, again);
+    expect(again.some((l) => l.startsWith('Removing') || l.startsWith('Initialising'))).toBe(false);
   });
 
   it('keeps two clones side by side on different ports apart', async () => {
