@@ -52,7 +52,8 @@ export async function startStack(opts: { seed?: 'roles' | 'demo' | 'none'; datab
     EARMARK_DATABASE_URL: db.url,
     EARMARK_JWT_SECRET: 'stack-secret-stack-secret-stack-secret-0123',
     EARMARK_S3_ENDPOINT: s3.endpoint,
-    EARMARK_WEB_DIST: path.resolve(import.meta.dirname, '../../apps/web/dist'),
+    // A helper's private build (`vite build --outDir …`) may stand in for the shared one.
+    EARMARK_WEB_DIST: process.env.EARMARK_TEST_WEB_DIST ?? path.resolve(import.meta.dirname, '../../apps/web/dist'),
     EARMARK_LOG_LEVEL: 'silent',
   });
   const runtime = await createApiRuntime(env, logger, { orm });
