@@ -77,17 +77,17 @@ describe('dashboard in the browser', () => {
     await page.getByRole('heading', { name: /^Build d19b3f8/ }).waitFor();
     const matrix = page.getByRole('table', { name: 'Build matrix' });
     await matrix.waitFor();
-    await shot(page, 'build');
+    // build.png and capture.png are written by capture-page.e2e.test.ts.
     await matrix.locator('[data-testcase="eq.music.sweep"][data-target="evt2-48k"] a').first().click();
     await page.getByRole('heading', { name: 'Music EQ preset, exponential sweep' }).waitFor();
-    await page.getByRole('region', { name: 'Spectrum' }).locator('canvas').first().waitFor();
+    await page.getByRole('region', { name: 'Transfer magnitude' }).locator('canvas').first().waitFor();
     const worst = page.getByTestId('worst-point-label');
     await worst.waitFor();
-    expect(await worst.textContent()).toMatch(/^−0\.\d\d dB margin at (7\.\d+|8(\.\d+)?) kHz$/);
+    // The demo's newest nightly: the adaptive bass EQ has crept out of the envelope near 70 Hz.
+    expect(await worst.textContent()).toMatch(/^−0\.\d\d dB margin at [67]\d(\.\d)? Hz$/);
     const checks = page.getByRole('table', { name: 'Checks' });
     const responseRow = checks.getByRole('row').filter({ hasText: 'response' }).first();
-    expect(await responseRow.textContent()).toMatch(/−0\.8\d/);
-    await shot(page, 'capture');
+    expect(await responseRow.textContent()).toMatch(/−0\.\d\d/);
     await page.close();
   });
 
@@ -113,16 +113,16 @@ describe('dashboard in the browser', () => {
     const page = await pageAs('engineer@fernwick.test');
     await page.goto(`${stack.url}/projects/kestrel-buds/builds/d19b3f8e44`);
     await page.getByRole('table', { name: 'Build matrix' }).locator('[data-testcase="eq.music.sweep"][data-target="evt2-48k"] a').first().click();
-    await page.getByRole('region', { name: 'Spectrum' }).locator('canvas').first().waitFor();
+    await page.getByRole('region', { name: 'Transfer magnitude' }).locator('canvas').first().waitFor();
     await page.waitForLoadState('networkidle');
     const triage = page.getByRole('region', { name: 'Findings' });
     await triage.getByRole('button', { name: 'Assign' }).first().click();
     await page.getByRole('menuitemradio', { name: /\(me\)/ }).click();
     await triage.getByText('Maren Ostrowe').first().waitFor();
     await triage.getByRole('button', { name: /Comments/ }).first().click();
-    await page.getByLabel('Comment', { exact: true }).fill('The 8 kHz bump arrived with the new presence shelf in 410; reverting it in 412.');
+    await page.getByLabel('Comment', { exact: true }).fill('The bass boost has crept up since nightly 404; capping the adaptive EQ in 412.');
     await page.getByRole('button', { name: 'Add comment' }).click();
-    await page.getByRole('list', { name: 'Comments' }).getByText('reverting it in 412').waitFor();
+    await page.getByRole('list', { name: 'Comments' }).getByText('capping the adaptive EQ in 412').waitFor();
     await page.close();
   });
 

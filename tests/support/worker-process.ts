@@ -22,7 +22,8 @@ export async function startWorkerProcess(env: Record<string, string>): Promise<W
   const output: string[] = [];
   const exited = new Promise<void>((resolve) => child.once('exit', () => resolve()));
   await new Promise<void>((resolve, reject) => {
-    const timer = setTimeout(() => reject(new Error(`worker did not start:\n${output.join('')}`)), 30_000);
+    // Generous: tsx compiles the worker and each analysis thread on start, which takes over 30 s on 2 busy cores.
+    const timer = setTimeout(() => reject(new Error(`worker did not start within 90 s:\n${output.join('')}`)), 90_000);
     const onData = (chunk: Buffer) => {
       output.push(chunk.toString());
       if (chunk.toString().includes('worker ready')) {

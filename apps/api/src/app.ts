@@ -12,7 +12,8 @@ import type { ApiRuntime } from './runtime.js';
 import { docsRoutes } from './routes/docs.routes.js';
 import { allRoutes } from './routes/index.js';
 import { SessionService } from './auth/session.service.js';
-import { signInGuard } from './auth/sign-in-guard.js';
+import { passwordChangeGuard, signInGuard } from './auth/sign-in-guard.js';
+import { WorkGate } from './auth/work-gate.js';
 import { SharedLimitStore } from './auth/shared-limit-store.js';
 import { requestMetrics } from './metrics/request-metrics.js';
 import { refuseWhileDraining } from './http/refuse-while-draining.js';
@@ -55,8 +56,12 @@ export function createApp({ orm, env, logger, gate, verdictWaits, limiterPool, p
   app.use((_req, _res, next) => RequestContext.create(orm.em, next));
 
   const signer = createTokenSigner(env.EARMARK_JWT_SECRET, { access: env.EARMARK_ACCESS_TOKEN_TTL_S, refresh: env.EARMARK_REFRESH_TOKEN_TTL_S });
-  const loginLimiter = signInGuard(env, (name) => new SharedLimitStore(limiterPool, `sign-in:${name}`, logger));
-  const routes: RouteDef[] = allRoutes({ gate, sessions: new SessionService(signer, passwords), loginLimiter, maxCaptureBytes: env.EARMARK_MAX_CAPTURE_BYTES, verdictWaits, maxConcurrentUploads: env.EARMARK_MAX_CONCURRENT_UPLOADS, uploadMetrics: apiMetrics.uploads, health });
+  const limitStores = (name: string) => new SharedLimitStore(limiterPool, `sign-in:${name}`, logger);
+  // One gate: sign-ins and password changes share this process's bound on bcrypt work.
+  const passwordGate = new WorkGate(env.EARMARK_PASSWORD_WORK_CONCURRENCY, env.EARMARK_PASSWORD_WORK_QUEUE);
+  const loginLimiter = signInGuard(env, limitStores, passwordGate);
+  const passwordChangeLimiter = passwordChangeGuard(env, limitStores, passwordGate);
+  const routes: RouteDef[] = allRoutes({ gate, sessions: new SessionService(signer, passwords), loginLimiter, passwordChangeGuard: passwordChangeLimiter, maxCaptureBytes: env.EARMARK_MAX_CAPTURE_BYTES, verdictWaits, maxConcurrentUploads: env.EARMARK_MAX_CONCURRENT_UPLOADS, uploadMetrics: apiMetrics.uploads, health });
   routes.push(...docsRoutes(() => routes, env.EARMARK_PUBLIC_URL));
   const api = express.Router();
   mountRoutes(api, routes, orm, signer);

@@ -16,8 +16,9 @@ export class HttpError extends Error {
 }
 
 export class AuthError extends HttpError {
-  constructor(detail = 'Sign in, or send a valid bearer token.') {
-    super(401, 'Not authenticated', detail, { headers: { 'WWW-Authenticate': 'Bearer' } });
+  /** `code` (e.g. `token-expired`) lets a client tell a refusal it can explain from a generic one. */
+  constructor(detail = 'Sign in, or send a valid bearer token.', code?: string) {
+    super(401, 'Not authenticated', detail, { headers: { 'WWW-Authenticate': 'Bearer' }, ...(code ? { code } : {}) });
   }
 }
 

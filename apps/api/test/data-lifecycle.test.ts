@@ -123,7 +123,7 @@ describe('a capture whose audio the retention policy removed', () => {
     await em.flush();
     captureId = capture.id;
     await api.objectStore.put(capture.objectKey, bytes, 'audio/wav');
-    await api.objectStore.put(plotKey({ captureId, maskRevisionId: mask.id, columns: 512, channel: 0 }), Buffer.from('{}'), 'application/json');
+    await api.objectStore.put(plotKey({ captureId, maskRevisionId: mask.id, checkId: null, columns: 512, channel: 0 }), Buffer.from('{}'), 'application/json');
   });
 
   it('answers the capture and residual WAVs and plots with 410 capture-purged; its JSON keeps the verdict and says when', async () => {

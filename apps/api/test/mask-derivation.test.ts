@@ -1,7 +1,7 @@
 import { DeriveMaskResponse, MaskCheck, StimulusSpec } from '@earmark/contracts';
 import { Build, Capture, MaskRevision, Target, TestCase, testCaseSettings } from '@earmark/db';
 import { encodeWav, sampleLimit, stimulusAsPlayed, studentTUpperTail } from '@earmark/dsp';
-import { mapChannels, scaleDb } from '@earmark/dsp/testing';
+import { applyBiquad, mapChannels, peakingEqCoefficients, scaleDb } from '@earmark/dsp/testing';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startTestApi, type TestApi } from './support/test-api.js';
 
@@ -16,6 +16,8 @@ const spec = StimulusSpec.parse({ kind: 'sweep', sampleRate: 48000, from: 20, to
 let api: TestApi;
 const golden: string[] = [];
 let foreignCapture = '';
+let resonant = '';
+let onBench = '';
 const base = '/api/projects/alpha-dsp/test-cases/eq.sweep/masks';
 
 beforeAll(async () => {
@@ -27,14 +29,18 @@ beforeAll(async () => {
   const target = em.create(Target, { project, key: 'board', name: 'Board' });
   const build = em.create(Build, { project, sha: 'a1b2c3d4' });
   const played = stimulusAsPlayed(spec);
-  const put = async (tc: TestCase, gain: number, i: number) => {
-    const wav = encodeWav(mapChannels(played, (x) => scaleDb(x, gain)).channels, 48000, { encoding: 'float', bitsPerSample: 32 });
+  const bench = em.create(Target, { project, key: 'bench', name: 'Bench' });
+  const put = async (tc: TestCase, gain: number, i: number, shape: (x: Float64Array) => Float64Array = (x) => x, on: Target = target) => {
+    const wav = encodeWav(mapChannels(played, (x) => shape(scaleDb(x, gain))).channels, 48000, { encoding: 'float', bitsPerSample: 32 });
     const key = `test/${tc.key}-${i}.wav`;
     await api.objectStore.put(key, wav, 'audio/wav');
-    return em.create(Capture, { project, build, testCase: tc, target, objectKey: key, sha256: '0'.repeat(64), sizeBytes: wav.length, format: { container: 'wav' }, sampleRate: 48000, channelCount: 1, frames: played.channels[0]!.length, status: 'done' });
+    return em.create(Capture, { project, build, testCase: tc, target: on, objectKey: key, sha256: '0'.repeat(64), sizeBytes: wav.length, format: { container: 'wav' }, sampleRate: 48000, channelCount: 1, frames: played.channels[0]!.length, status: 'done' });
   };
   for (const [i, g] of GAINS.entries()) golden.push((await put(testCase, g, i)).id);
   foreignCapture = (await put(other, 0, 99)).id;
+  // A unit with a +4 dB resonance at 5 kHz (peaking EQ, Q 2), and an ordinary one on another target.
+  resonant = (await put(testCase, 0, 50, (x) => applyBiquad(x, peakingEqCoefficients(48000, 5000, 4, 2)))).id;
+  onBench = (await put(testCase, 0, 51, (x) => x, bench)).id;
   await em.flush();
 });
 afterAll(() => api.close());
@@ -119,6 +125,48 @@ describe('POST …/masks/derive', () => {
     const viewer = await api.login('viewer@example.test');
     expect((await api.request('POST', `${base}/derive`, { token: viewer, body: { captureIds: golden } })).status).toBe(403);
     expect((await api.request('POST', '/api/projects/alpha-dsp/test-cases/nope/masks/derive', { token: engineer, body: { captureIds: golden } })).status).toBe(404);
+  });
+});
+
+describe('POST …/masks/derive: outliers and targets', () => {
+  it('names a golden capture beyond 3σ of the others, with where it deviates, and draws every capture', async () => {
+    const engineer = await api.login('engineer@example.test');
+    const captureIds = [...golden, resonant];
+    const res = await api.request('POST', `${base}/derive`, { token: engineer, body: { captureIds, bandHz: [50, 16000], referenceHz: null } });
+    expect(res.status, res.text).toBe(200);
+    const body = DeriveMaskResponse.parse(res.body);
+    // Only the resonant unit: 4 dB at 5 kHz against the others' σ of 0.4 dB is 10σ (the ±0.37 dB gains stay well inside).
+    expect(body.outliers.map((o) => [o.captureId, o.target])).toEqual([[resonant, 'board']]);
+    const { worst, regions } = body.outliers[0]!;
+    expect(regions).toHaveLength(1);
+    expect(worst.atHz).toBeGreaterThan(4000);
+    expect(worst.atHz).toBeLessThan(6300);
+    expect(worst.fromHz).toBeLessThan(5000);
+    expect(worst.toHz).toBeGreaterThan(5000);
+    // 1/6-octave smoothing and band averaging spread the 4 dB peak a little.
+    expect(worst.deviationDb).toBeGreaterThan(2.5);
+    expect(worst.deviationDb).toBeLessThan(4.1);
+    expect(worst.sigmas).toBeGreaterThan(6);
+    // One plotted curve per golden capture, on the statistics' columns; the resonant one peaks near 5 kHz.
+    expect(body.stats.curves).toHaveLength(captureIds.length);
+    for (const c of body.stats.curves!) expect(c).toHaveLength(body.stats.hz.length);
+    const at5k = body.stats.hz.findIndex((f) => f >= 5000);
+    expect(body.stats.curves![8]![at5k]! - body.stats.mean[at5k]!).toBeGreaterThan(2);
+    expect(body.warnings).toEqual([]);
+  });
+
+  it('derives across targets but warns, naming them', async () => {
+    const engineer = await api.login('engineer@example.test');
+    const res = await api.request('POST', `${base}/derive`, { token: engineer, body: { captureIds: [...golden.slice(0, 3), onBench] } });
+    expect(res.status, res.text).toBe(200);
+    const body = DeriveMaskResponse.parse(res.body);
+    expect(body.warnings).toEqual([
+      {
+        code: 'mixed-targets',
+        targets: ['bench', 'board'],
+        message: 'The golden captures come from 2 targets: bench (1), board (3). Their differences count as unit-to-unit spread and widen the limits; derive from one target unless one mask should cover them all.',
+      },
+    ]);
   });
 });
 

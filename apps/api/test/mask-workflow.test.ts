@@ -1,4 +1,4 @@
-import { Membership, Notification, Target, TestCase, User, hashPassword, TEST_PASSWORD } from '@earmark/db';
+import { MaskRevision, Membership, Notification, Target, TestCase, User, hashPassword, testCaseSettings, TEST_PASSWORD } from '@earmark/db';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startTestApi, type TestApi } from './support/test-api.js';
 
@@ -205,6 +205,42 @@ describe('copy and diff', () => {
     // A superseded revision can still be copied.
     const again = await api.request('POST', `${base}/${source}/copy`, { token: engineer, body: { note: 'back to the baseline', target: 'board' } });
     expect(again.body).toMatchObject({ basedOn: source, note: 'back to the baseline', target: 'board' });
+  });
+});
+
+describe('engine self-test', () => {
+  const parseval = { id: 'analysis-energy', kind: 'level', metric: 'energy-parseval', max: 1e-9 };
+
+  it('refuses the self-test in a new draft and in saved checks, naming the check in words', async () => {
+    const created = await api.request('POST', base, { token: engineer, body: { checks: [level, parseval] } });
+    expect(created.status).toBe(422);
+    expect(created.body.code).toBe('engine-self-test-in-mask');
+    expect(created.body.detail).toMatch(/^Check “analysis-energy” is the engine self-test \(energy agreement\): it checks the analysis, not the firmware/);
+    expect(created.body.errors).toEqual([{ path: 'body.checks.1.metric', message: expect.stringMatching(/cannot be part of an acceptance mask/) }]);
+
+    const rev = await draft(engineer, [level]);
+    const edited = await api.request('PATCH', `${base}/${rev}`, { token: engineer, body: { checks: [parseval, level] } });
+    expect(edited.status).toBe(422);
+    expect(edited.body.errors[0].path).toBe('body.checks.0.metric');
+    expect((await api.request('GET', `${base}/${rev}`, { token: engineer })).body.checks).toEqual([level]);
+  });
+
+  it('keeps a stored revision that holds it, and copies it without the self-test, saying so in the note', async () => {
+    // Stored before the rule (written straight to the database, as a migration-era revision would be).
+    const em = api.orm.em.fork();
+    const testCase = await em.findOneOrFail(TestCase, { key: 'tone' });
+    const last = await em.findOne(MaskRevision, { testCase }, { orderBy: { revision: 'desc' } });
+    const engineerUser = await em.findOneOrFail(User, { email: 'engineer@example.test' });
+    const old = em.create(MaskRevision, { testCase, revision: (last?.revision ?? 0) + 1, state: 'rejected', checks: [level, parseval], settings: testCaseSettings(testCase), author: engineerUser, note: 'legacy' });
+    await em.flush();
+    const stored = await api.request('GET', `${base}/${old.revision}`, { token: engineer });
+    expect(stored.status).toBe(200);
+    expect(stored.body.checks.map((c: { id: string }) => c.id)).toEqual(['level', 'analysis-energy']);
+
+    const copy = await api.request('POST', `${base}/${old.revision}/copy`, { token: engineer, body: {} });
+    expect(copy.status, copy.text).toBe(201);
+    expect(copy.body.checks).toEqual([level]);
+    expect(copy.body.note).toBe(`Copy of revision ${old.revision}: legacy (left out the engine self-test “analysis-energy”: not an acceptance check)`);
   });
 });
 

@@ -51,7 +51,14 @@ describe('waivers', () => {
     expect(dated.body.until).toBe(`${inDays(10).slice(0, 10)}T23:59:59.999Z`);
     expect(dated.body.target).toBe('board');
 
-    expect((await requestWaiver(engineer, 'thd', { reason: 'again', until: inDays(5) })).status).toBe(409); // one pending waiver per finding
+    // One pending waiver per finding: the refusal says in words which one exists, and names it for a link (no id in the text).
+    const second = await requestWaiver(engineer, 'thd', { reason: 'again', until: inDays(5) });
+    expect(second.status).toBe(409);
+    expect(second.body.detail).toBe(
+      `The thd check of this finding already has a waiver awaiting a QA manager’s decision: requested by engineer@example.test on ${new Date().toISOString().slice(0, 10)}, to run until ${inDays(30).slice(0, 10)}. Follow that one instead of requesting another.`,
+    );
+    expect(second.body.detail).not.toMatch(/[0-9a-f]{8}-[0-9a-f]{4}-/);
+    expect(second.body).toMatchObject({ code: 'waiver-exists', existing: { kind: 'waiver', id: res.body.id, state: 'requested' } });
 
     const mail = await api.orm.em.fork().find(Notification, { kind: 'waiver-requested' }, { orderBy: { createdAt: 'asc' } });
     expect(mail.map((n) => n.recipient)).toEqual(['qa_manager@example.test', 'qa_manager@example.test']);

@@ -53,6 +53,8 @@ describe('planSubmit', () => {
     await expect(planSubmit(flags({ rate: '4000', channels: '1' }), [raw], env)).rejects.toThrow('--rate: at least 8000 Hz (got "4000")');
     await expect(planSubmit(flags({ case: 'EQ Music' }), [wav], env)).rejects.toThrow(/^--case: lower-case letters/);
     await expect(planSubmit(flags({ pipelineUrl: 'not a url' }), [wav], env)).rejects.toThrow(/^--pipeline-url: /);
+    await expect(planSubmit(flags({ builtAt: '2026-11-30 22:15' }), [wav], env)).rejects.toThrow(/^--built-at: an ISO 8601 date-time with a time zone/);
+    expect((await planSubmit(flags({ builtAt: '2026-11-30T22:15:00Z' }), [wav], env)).build.builtAt).toBe('2026-11-30T22:15:00Z');
     await expect(planSubmit(flags(), [dir + '/'], env)).rejects.toThrow('cannot tell the format');
     await expect(planSubmit(flags(), [join(dir, 'take.mp3')], env)).rejects.toThrow(/^cannot tell the format of .*take\.mp3: name WAV captures \*\.wav/);
     await expect(planSubmit(flags(), [raw], env)).rejects.toThrow(/odd\.raw is raw float32: give its sample rate and channel count with --rate <hz> --channels <n>$/);

@@ -97,7 +97,7 @@ const run = (state: ImpactRunDto['state'], progress: number): ImpactRunDto => ({
       : null,
 });
 
-function setup(revisions: MaskRevisionDto[] = [inReview(1, 'eli@fernwick.test'), inReview(2, 'qa@fernwick.test')]) {
+function setup(revisions: MaskRevisionDto[] = [inReview(1, 'eli@fernwick.test'), inReview(2, 'qa@fernwick.test')], latestRuns: ImpactRunDto[] = []) {
   seedSession();
   const polls: string[] = [];
   let pollCount = 0;
@@ -105,7 +105,7 @@ function setup(revisions: MaskRevisionDto[] = [inReview(1, 'eli@fernwick.test'),
     'GET /api/me': () => json(qa),
     'GET /api/projects/kestrel-buds/masks': () => json({ items: revisions }),
     'GET /api/projects/kestrel-buds/waivers': () => json({ items: [waiver] }),
-    'GET /api/projects/kestrel-buds/test-cases/eq.sweep/masks/1/impact': () => json({ items: [] }),
+    'GET /api/projects/kestrel-buds/test-cases/eq.sweep/masks/1/impact': () => json({ items: latestRuns }),
     'GET /api/projects/kestrel-buds/test-cases/thd.1k/masks/2/impact': () => json({ items: [] }),
     'POST /api/projects/kestrel-buds/test-cases/eq.sweep/masks/1/impact': () => json(run('queued', 0), 202),
     'GET /api/projects/kestrel-buds/test-cases/eq.sweep/masks/1/impact/run-1': () => {
@@ -138,8 +138,63 @@ describe('approvals queue', () => {
     await user.click(within(card).getByRole('button', { name: 'Reject' }));
     await waitFor(() => expect(api.requests.find((r) => r.path.endsWith('/masks/1/reject'))?.body).toEqual({ comment: 'Too tight for rev B' }));
 
+    expect(await screen.findByText('Revision 1 of eq.sweep: rejected')).toBeTruthy();
+
+    // Approving asks first, saying that nothing has measured the impact yet.
     await user.click(within(card).getByRole('button', { name: 'Approve' }));
+    const confirm = await screen.findByRole('dialog', { name: 'Approve revision 1 of eq.sweep?' });
+    expect(within(confirm).getByRole('note', { name: 'Impact summary' }).textContent).toContain('No impact run yet: nothing says how recent builds would fare under this revision.');
+    expect(api.requests.some((r) => r.path.endsWith('/masks/1/approve'))).toBe(false);
+    await user.click(within(confirm).getByRole('button', { name: 'Approve revision 1' }));
     await waitFor(() => expect(api.requests.find((r) => r.path.endsWith('/masks/1/approve'))?.body).toEqual({ comment: 'Too tight for rev B' }));
+    expect(await screen.findByText('Revision 1 of eq.sweep: approved')).toBeTruthy();
+    expect(screen.getByText('It now judges new captures of eq.sweep.')).toBeTruthy();
+    await waitFor(() => expect(screen.queryByRole('dialog', { name: 'Approve revision 1 of eq.sweep?' })).toBeNull());
+  });
+
+  it('quotes the finished impact run in the approve confirmation', async () => {
+    setup(undefined, [run('done', 40)]);
+    renderApp('/projects/kestrel-buds/approvals');
+    const user = userEvent.setup();
+    const card = await screen.findByRole('article', { name: 'Revision 1 of eq.sweep' });
+    await user.click(within(card).getByRole('button', { name: 'Approve' }));
+    const confirm = await screen.findByRole('dialog', { name: 'Approve revision 1 of eq.sweep?' });
+    expect(within(confirm).getByRole('note', { name: 'Impact summary' }).textContent).toContain('Of the last 1 build (2 captures), 1 would newly fail and 0 would newly pass.');
+    await user.click(within(confirm).getByRole('button', { name: 'Cancel' }));
+    await waitFor(() => expect(screen.queryByRole('dialog')).toBeNull());
+  });
+
+  it('says what a revision changes in words and overlays old and new limits', async () => {
+    const envelope = (db: number) => ({ kind: 'magnitude-envelope', id: 'eq-response', measure: 'transfer', smoothing: 6, upper: [{ hz: 20, db: 1.5 }, { hz: 8000, db }, { hz: 20000, db: 1.5 }] });
+    const head = { ...inReview(1, 'eli@fernwick.test'), revision: 3, checks: [envelope(1)] } as MaskRevisionDto;
+    seedSession();
+    const extra = mockApi({
+      'GET /api/me': () => json(qa),
+      'GET /api/projects/kestrel-buds/masks': () => json({ items: [head] }),
+      'GET /api/projects/kestrel-buds/waivers': () => json({ items: [] }),
+      'GET /api/projects/kestrel-buds/test-cases/eq.sweep/masks/3/impact': () => json({ items: [] }),
+      'GET /api/projects/kestrel-buds/builds': () => json({ items: [], total: 0, page: 1, pageSize: 12 }),
+      'GET /api/projects/kestrel-buds/test-cases/eq.sweep/masks/3/diff': () =>
+        json({
+          testCase: 'eq.sweep',
+          base: { revision: 2, state: 'approved', target: null },
+          head: { revision: 3, state: 'in_review', target: null },
+          checks: [{ id: 'eq-response', kind: 'magnitude-envelope', status: 'changed', changes: [{ path: 'upper.1.db', before: 1.5, after: 1 }], before: envelope(1.5), after: envelope(1) }],
+          summary: { added: 0, removed: 0, changed: 1, unchanged: 0 },
+          noteChanged: false,
+          targetChanged: false,
+          settingsChanges: [],
+        }),
+    });
+    renderApp('/projects/kestrel-buds/approvals');
+    const card = await screen.findByRole('article', { name: 'Revision 3 of eq.sweep' });
+    const words = await within(card).findByRole('list', { name: 'Changes in words' });
+    expect([...words.querySelectorAll('[data-change-text]')].map((n) => n.textContent)).toEqual(['upper limit at 8 kHz: +1.50 → +1.00 dB']);
+    expect(words.textContent).not.toContain('upper.1.db');
+    const legend = within(card).getByRole('list', { name: 'Legend' });
+    expect(within(legend).getAllByRole('listitem').map((li) => li.textContent)).toEqual(['Capture ', 'Old limits (revision 2)', 'New limits (revision 3)']);
+    expect(await within(card).findByText('No capture of this test case in the recent builds to draw the limits over.')).toBeTruthy();
+    expect(extra.requests.some((r) => r.path.endsWith('/masks/3/diff'))).toBe(true);
   });
 
   it('disables the decision for the author, with the reason', async () => {

@@ -165,7 +165,7 @@ describe('capture page', () => {
     expect(screen.getByRole('table', { name: 'Checks' })).toBeTruthy();
     expect(screen.getAllByText('Fail').length).toBeGreaterThan(0);
     // No plot is asked for: its audio is gone (the API would answer 410).
-    expect(screen.queryByRole('region', { name: 'Spectrum' })).toBeNull();
+    expect(screen.queryByRole('region', { name: 'Transfer magnitude' })).toBeNull();
     expect(api.fetchMock.mock.calls.some(([input]) => String(input).includes('/plot'))).toBe(false);
   });
 
@@ -182,7 +182,7 @@ describe('capture page', () => {
     const buildLink = screen.getByRole('link', { name: sha.slice(0, 10) });
     expect(buildLink.getAttribute('href')).toBe(`/projects/${projectKey}/builds/${sha}`);
 
-    const spectrum = screen.getByRole('region', { name: 'Spectrum' });
+    const spectrum = screen.getByRole('region', { name: 'Transfer magnitude' });
     const worst = await within(spectrum).findByTestId('worst-point-label');
     expect(worst.textContent).toBe(`${MINUS}1.30 dB margin at 8.02 kHz`);
     expect(within(spectrum).getByRole('figure', { name: 'Spectrum plot' })).toBeTruthy();
@@ -289,11 +289,11 @@ describe('capture page', () => {
 
     expect(await screen.findByRole('progressbar', { name: 'Analysis progress' })).toBeTruthy();
     expect(screen.getAllByText('Analysing…').length).toBeGreaterThan(0);
-    expect(screen.queryByRole('region', { name: 'Spectrum' })).toBeNull();
+    expect(screen.queryByRole('region', { name: 'Transfer magnitude' })).toBeNull();
     // No plot is asked for before there is a verdict.
     expect(api.requests.some((r) => r.path.endsWith('/plot'))).toBe(false);
 
-    expect(await screen.findByRole('region', { name: 'Spectrum' }, { timeout: 5000 })).toBeTruthy();
+    expect(await screen.findByRole('region', { name: 'Transfer magnitude' }, { timeout: 5000 })).toBeTruthy();
     expect(screen.queryByRole('progressbar', { name: 'Analysis progress' })).toBeNull();
   });
 
@@ -355,7 +355,7 @@ describe('capture page', () => {
     });
     renderApp(pagePath);
 
-    const spectrum = await screen.findByRole('region', { name: 'Spectrum' });
+    const spectrum = await screen.findByRole('region', { name: 'Transfer magnitude' });
     const alert = await within(spectrum).findByRole('alert');
     expect(alert.textContent).toContain('The analysis result for this capture is being rebuilt.');
     expect(alert.textContent).toContain('HTTP 409');
@@ -470,5 +470,94 @@ describe('listen panel', () => {
     expect(within(listen).getByRole('checkbox', { name: /I understand/ })).toHaveProperty('checked', true);
     expect(within(listen).getByRole('button', { name: 'Play capture' })).toHaveProperty('disabled', false);
     window.sessionStorage.clear();
+  });
+});
+
+describe('capture page: which check is drawn, downloads and analysing again', () => {
+  /** The mask holds two envelopes: the first passes, the second fails on channel 1 only. */
+  function twoEnvelopes(): CaptureDetail {
+    const d = detail();
+    d.mask!.checks.push({ kind: 'magnitude-envelope', id: 'hf-guard', measure: 'transfer', referenceHz: 500, upper: [{ hz: 4000, db: 0.5 }, { hz: 16000, db: 0.5 }] });
+    d.capture.verdict!.checks = [
+      { id: 'eq-response', kind: 'magnitude-envelope', label: null, pass: true, measured: 0.7, limit: 1, margin: 0.3, unit: 'dB', worstHz: 4000, channel: 0 },
+      { id: 'hf-guard', kind: 'magnitude-envelope', label: null, pass: false, measured: 1.33, limit: 0.5, margin: -0.83, unit: 'dB', worstHz: 7990, channel: 1, warnings: ['The stimulus has little energy above 15 kHz; the response there is less certain.'] },
+    ];
+    return d;
+  }
+
+  it('opens on the failing check and its channel, not the first envelope on channel 0, and follows a choice', async () => {
+    seedSession();
+    const api = mockApi({
+      ...commonHandlers([() => json(twoEnvelopes())]),
+      // The plot of the check and channel asked for.
+      [`GET ${base}/plot`]: (request) => {
+        const query = new URLSearchParams(request.search);
+        return json({ ...capturePlot(), checkId: query.get('check'), channel: Number(query.get('channel')) });
+      },
+    });
+    const user = userEvent.setup();
+    renderApp(pagePath);
+
+    const spectrum = await screen.findByRole('region', { name: 'Transfer magnitude' }, { timeout: 5000 });
+    const picker = within(spectrum).getByRole('combobox', { name: 'Check' }) as HTMLSelectElement;
+    expect(picker.value).toBe('hf-guard');
+    expect([...picker.options].map((o) => o.textContent)).toEqual([
+      'eq-response · Magnitude envelope · pass, +0.30 dB, worst on ch 0',
+      `hf-guard · Magnitude envelope · fail, ${MINUS}0.83 dB, worst on ch 1`,
+    ]);
+    expect(within(spectrum).getByRole('radio', { name: 'Ch 1' }).getAttribute('aria-checked')).toBe('true');
+    const firstPlot = await waitFor(() => {
+      const request = api.requests.find((r) => r.path.endsWith('/plot'));
+      expect(request).toBeTruthy();
+      return request!;
+    });
+    expect(new URLSearchParams(firstPlot.search).get('check')).toBe('hf-guard');
+    expect(new URLSearchParams(firstPlot.search).get('channel')).toBe('1');
+    // The warning the engine raised for this check stands beside its plot.
+    expect((await within(spectrum).findByRole('list', { name: 'Warnings for hf-guard' })).textContent).toContain('little energy above 15 kHz');
+
+    await user.selectOptions(picker, 'eq-response');
+    await waitFor(() => {
+      const last = api.requests.filter((r) => r.path.endsWith('/plot')).at(-1)!;
+      expect(new URLSearchParams(last.search).get('check')).toBe('eq-response');
+      expect(new URLSearchParams(last.search).get('channel')).toBe('0');
+    });
+  });
+
+  it('lets an engineer analyse the capture again: it posts, says so and follows the new analysis', async () => {
+    seedSession();
+    let posted = 0;
+    const api = mockApi({
+      ...commonHandlers([() => json(detail({ outcome: 'error', reason: 'The stored capture cannot be read: storage outage' })), () => json(detail({ status: 'queued' })), () => json(detail())]),
+      [`POST ${base}/reanalyse`]: () => {
+        posted++;
+        return json({ captureId, status: 'queued', reanalysisId: '0b0e0c0a-1111-4222-8333-944445555666' }, 202);
+      },
+    });
+    const user = userEvent.setup();
+    renderApp(pagePath);
+
+    await user.click(await screen.findByRole('button', { name: 'Analyse again' }));
+    expect(posted).toBe(1);
+    expect(await screen.findByText('Analysis queued')).toBeTruthy();
+    expect(await screen.findByRole('progressbar', { name: 'Analysis progress' })).toBeTruthy();
+    expect(await screen.findByRole('region', { name: 'Transfer magnitude' }, { timeout: 5000 })).toBeTruthy();
+    expect(api.requests.filter((r) => r.method === 'POST').map((r) => r.path)).toEqual([`${base}/reanalyse`]);
+  });
+
+  it('says in words why the download failed once retention removed the audio, and offers viewers no re-analysis', async () => {
+    seedSession();
+    const viewer: CurrentUser = { ...engineer, memberships: [{ projectKey, projectName: 'Kestrel Buds', role: 'viewer' }] };
+    mockApi({
+      ...commonHandlers([() => json(detail())]),
+      'GET /api/me': () => json(viewer),
+      [`GET ${base}/download`]: () => problem(410, 'Gone', 'The audio of this capture was removed by the retention policy on 2027-03-01; its verdict is kept.'),
+    });
+    const user = userEvent.setup();
+    renderApp(pagePath);
+
+    await user.click(await screen.findByRole('button', { name: 'Download capture (WAV)' }));
+    expect(await screen.findByText('The audio of this capture was removed by the retention policy on 2027-03-01; its verdict is kept.')).toBeTruthy();
+    expect(screen.queryByRole('button', { name: 'Analyse again' })).toBeNull();
   });
 });

@@ -90,12 +90,13 @@ describe('findings queue', () => {
 
     expect(await screen.findByRole('heading', { name: 'Findings' })).toBeTruthy();
     await screen.findByRole('table', { name: 'Findings' });
-    expect(findingQueries()[0]).toEqual({ page: '1', pageSize: '50', state: 'active', assignee: 'me' });
+    // The queue opens on main's findings; other branches are one filter away.
+    expect(findingQueries()[0]).toEqual({ page: '1', pageSize: '50', state: 'active', branch: 'main', assignee: 'me' });
 
     await user.selectOptions(screen.getByLabelText('State'), 'all');
     expect(Object.fromEntries(new URLSearchParams(router.state.location.search))).toEqual({ assignee: 'me', state: 'all' });
     // "Any state" sends no state filter at all.
-    await waitFor(() => expect(findingQueries().at(-1)).toEqual({ page: '1', pageSize: '50', assignee: 'me' }));
+    await waitFor(() => expect(findingQueries().at(-1)).toEqual({ page: '1', pageSize: '50', branch: 'main', assignee: 'me' }));
 
     await waitFor(() => expect(screen.getByLabelText('Assignee')).toHaveProperty('value', 'me'));
     await user.selectOptions(screen.getByLabelText('Assignee'), 'none');

@@ -1,7 +1,7 @@
 import { screen, within } from '@testing-library/react';
 import userEvent from '@testing-library/user-event';
 import { describe, expect, it } from 'vitest';
-import { json, kestrel, mockApi, problem, qaUser, seedSession } from './mock-api';
+import { json, kestrel, mockApi, problem, qaUser, quietOverview, seedSession } from './mock-api';
 import { renderApp } from './render-app';
 
 const viewerProject = { ...kestrel, myRole: 'viewer' as const };
@@ -13,6 +13,7 @@ describe('build-failure mail setting on the project page', () => {
     let stored = false;
     const api = mockApi({
       'GET /api/me': () => json(viewer),
+      'GET /api/projects/kestrel-buds/overview': () => json(quietOverview),
       'GET /api/projects/kestrel-buds': () => json(viewerProject),
       'GET /api/projects/kestrel-buds/subscription': () => json({ buildFailures: stored }),
       'PUT /api/projects/kestrel-buds/subscription': (r) => {
@@ -39,6 +40,7 @@ describe('build-failure mail setting on the project page', () => {
     seedSession();
     mockApi({
       'GET /api/me': () => json(qaUser),
+      'GET /api/projects/kestrel-buds/overview': () => json(quietOverview),
       'GET /api/projects/kestrel-buds': () => json(kestrel),
       'GET /api/projects/kestrel-buds/subscription': () => json({ buildFailures: true }),
       'PUT /api/projects/kestrel-buds/subscription': () => problem(503, 'Database unavailable', 'Earmark cannot reach its database right now.'),
@@ -55,6 +57,7 @@ describe('build-failure mail setting on the project page', () => {
     seedSession();
     const api = mockApi({
       'GET /api/me': () => json({ ...qaUser, isAdmin: true, memberships: [] }),
+      'GET /api/projects/kestrel-buds/overview': () => json(quietOverview),
       'GET /api/projects/kestrel-buds': () => json({ ...kestrel, myRole: 'admin' }),
     });
     renderApp('/projects/kestrel-buds');

@@ -166,6 +166,8 @@ function setup(revisions: MaskRevisionDto[], extra: Parameters<typeof mockApi>[0
           maxDeviationDb: 0.42,
           derivedAt: '2025-06-03T08:00:00.000Z',
         },
+        outliers: [],
+        warnings: [],
       } satisfies DeriveMaskResponse),
   });
   return api;
@@ -279,7 +281,6 @@ describe('masks page', () => {
     const dialog = screen.getByRole('dialog', { name: 'Derive limits from golden captures' });
     for (const [label, value] of [
       ['k', '2.5'],
-      ['Guard', '0.5'],
       ['Segment budget', '8'],
     ] as const) {
       const input = within(dialog).getByLabelText(new RegExp(`^${label}`));
@@ -299,12 +300,14 @@ describe('masks page', () => {
       smoothing: 12,
     });
     expect(await within(dialog).findByText('0.42 dB')).toBeTruthy();
-    expect(within(dialog).getByRole('figure', { name: 'Derived band' })).toBeTruthy();
+    expect(within(dialog).getByRole('figure', { name: 'New check preview' })).toBeTruthy();
 
+    // By default the derived check replaces the envelope being previewed and keeps its id.
     await user.click(within(dialog).getByRole('button', { name: 'Use as draft' }));
     const editor = screen.getByRole('table', { name: 'Checks editor' });
-    expect((within(editor).getByRole('textbox', { name: 'Id of check 2' }) as HTMLInputElement).value).toBe('derived-envelope');
-    expect((within(editor).getByRole('textbox', { name: 'Upper limit of check 2 point 1 level (dB)' }) as HTMLInputElement).value).toBe('1.4');
+    expect((within(editor).getByRole('textbox', { name: 'Id of check 1' }) as HTMLInputElement).value).toBe('eq-response');
+    expect((within(editor).getByRole('textbox', { name: 'Upper limit of check 1 point 1 level (dB)' }) as HTMLInputElement).value).toBe('1.4');
+    expect(within(editor).queryByRole('textbox', { name: 'Id of check 2' })).toBeNull();
   });
 
   it('edits the analysis settings and channel map of a draft and saves them with it', async () => {

@@ -1,4 +1,4 @@
-import type { CurrentUser, Problem, Project } from '@earmark/contracts';
+import type { CurrentUser, Problem, Project, ProjectOverview } from '@earmark/contracts';
 import { vi } from 'vitest';
 
 export type RecordedRequest = { method: string; path: string; authorization: string | null; body: unknown; /** The query string (`?state=approved`), '' without one; handlers are keyed by path only. */ search: string };
@@ -61,6 +61,7 @@ export const kestrel: Project = {
   storageUsedBytes: 1_610_612_736,
   storageQuotaBytes: null,
   storageQuotaSource: 'default',
+  archivedAt: null,
 };
 
 export const heron: Project = {
@@ -75,8 +76,20 @@ export const heron: Project = {
   storageUsedBytes: 0,
   storageQuotaBytes: null,
   storageQuotaSource: 'default',
+  archivedAt: null,
 };
 
 export function seedSession(accessToken = 'access-1', refreshToken = 'refresh-1'): void {
   window.localStorage.setItem('earmark.session', JSON.stringify({ accessToken, refreshToken }));
 }
+
+/** A project overview with nothing to report, for pages that render the overview or the menu's counts. */
+export const quietOverview: ProjectOverview = {
+  mainBranch: 'main',
+  main: null,
+  branches: [],
+  failing: [],
+  drifting: [],
+  awaiting: [],
+  counts: { awaitingYou: 0, openFindingsOnMain: 0 },
+};

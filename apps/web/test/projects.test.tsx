@@ -20,10 +20,8 @@ describe('projects page', () => {
     expect(rows.map((row) => row.getAttribute('data-project-key'))).toEqual(['heron-bar', 'kestrel-buds']);
 
     const kestrelRow = rows[1]!;
-    // A project opens on its builds table, where engineers start.
-    expect(within(kestrelRow).getByRole('link', { name: 'Kestrel Buds' }).getAttribute('href')).toBe(
-      '/projects/kestrel-buds/builds',
-    );
+    // A project opens on its overview, the landing page that says whether main is green.
+    expect(within(kestrelRow).getByRole('link', { name: 'Kestrel Buds' }).getAttribute('href')).toBe('/projects/kestrel-buds');
     expect(within(kestrelRow).getByText('kestrel-buds')).toBeTruthy();
     expect(within(kestrelRow).getByText('QA manager')).toBeTruthy();
     expect(within(kestrelRow).getByText('212')).toBeTruthy();

@@ -101,7 +101,10 @@ describe('revoking a waiver', () => {
     renderApp('/projects/kestrel-buds/approvals');
     expect(await screen.findByText('Only QA managers and administrators approve')).toBeTruthy();
     expect(screen.queryByRole('button', { name: 'Revoke' })).toBeNull();
-    expect(api.requests.some((r) => r.path.endsWith('/waivers'))).toBe(false);
+    // They read the waivers (a "waiver already requested" link lands here), but decide none.
+    expect(api.requests.some((r) => r.path.endsWith('/waivers'))).toBe(true);
+    expect(screen.queryByRole('button', { name: 'Approve' })).toBeNull();
+    expect(api.requests.some((r) => r.path.endsWith('/masks') && r.search.includes('in_review'))).toBe(false);
   });
 
   it('offers it only on an approved waiver still in force, and only to someone who may decide waivers', () => {

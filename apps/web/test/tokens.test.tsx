@@ -29,6 +29,7 @@ const existing: ApiTokenRow = {
   createdAt: '2025-05-01T08:00:00.000Z',
   lastUsedAt: '2025-06-10T08:00:00.000Z',
   revokedAt: null,
+  expiresAt: null,
 };
 const created: CreatedApiToken = {
   ...existing,
@@ -136,6 +137,54 @@ describe('API tokens page', () => {
     expect(screen.queryByRole('button', { name: 'Create token' })).toBeNull();
     expect(within(screen.getByRole('navigation', { name: 'Main' })).queryByRole('link', { name: 'API tokens' })).toBeNull();
     expect(api.requests.some((r) => r.path.endsWith('/tokens'))).toBe(false);
+  });
+
+  it('sends the chosen expiry and refuses a day already past, before asking the API', async () => {
+    const api = setup(admin);
+    renderApp('/projects/kestrel-buds/tokens');
+    const user = userEvent.setup();
+    await user.click(await screen.findByRole('button', { name: 'Create token' }));
+    const dialog = screen.getByRole('dialog', { name: 'Create an API token' });
+    await user.type(within(dialog).getByLabelText('Name'), 'nightly-rig');
+    expect((within(dialog).getByLabelText('Expires') as HTMLSelectElement).value).toBe('never');
+
+    await user.selectOptions(within(dialog).getByLabelText('Expires'), 'On a date…');
+    await user.type(within(dialog).getByLabelText('Last day of use'), '2020-02-03');
+    await user.click(within(dialog).getByRole('button', { name: 'Create token' }));
+    expect(within(dialog).getByText('Pick today or a later day.')).toBeTruthy();
+    expect(api.requests.some((r) => r.method === 'POST')).toBe(false);
+
+    await user.selectOptions(within(dialog).getByLabelText('Expires'), 'In 90 days');
+    const before = Date.now();
+    await user.click(within(dialog).getByRole('button', { name: 'Create token' }));
+    await screen.findByTestId('token-secret');
+    const body = api.requests.find((r) => r.method === 'POST')?.body as { expiresAt: string };
+    const days = (Date.parse(body.expiresAt) - before) / 86_400_000;
+    expect(days).toBeGreaterThan(89.99);
+    expect(days).toBeLessThan(90.01);
+  });
+
+  it('says when each token expires, and that an expired one expired', async () => {
+    seedSession();
+    const day = 86_400_000;
+    mockApi({
+      'GET /api/me': () => json(admin),
+      'GET /api/projects/kestrel-buds/tokens': () =>
+        json({
+          items: [
+            { ...existing, id: '00000000-0000-4000-8000-000000000801', name: 'soon', expiresAt: new Date(Date.now() + 30 * day - 1000).toISOString() },
+            { ...existing, id: '00000000-0000-4000-8000-000000000802', name: 'gone', expiresAt: new Date(Date.now() - 2 * day).toISOString() },
+            existing,
+          ],
+        }),
+    });
+    renderApp('/projects/kestrel-buds/tokens');
+    const table = await screen.findByRole('table', { name: 'API tokens' });
+    const row = (name: string) => within(table).getByText(name).closest('tr')!;
+    expect(row('soon').textContent).toContain('Active· expires in 30 days');
+    expect(row('gone').textContent).toContain('Expired· expired 2 days ago');
+    expect(within(row('gone')).queryByRole('button', { name: 'Revoke' })).toBeNull();
+    expect(row('gitlab-main').textContent).toContain('Active· never expires');
   });
 
   it('lists API tokens in the navigation for administrators', async () => {

@@ -39,6 +39,8 @@ export const CheckResultDto = z.object({
   warnings: z.array(z.string()).optional(),
   /** Why the check could not be evaluated (the verdict is then `error`). */
   error: z.string().optional(),
+  /** The channel that set the numbers (the worst one); null for checks over all channels at once. Optional only so older fixtures type-check. */
+  channel: z.number().int().nullable().optional(),
 });
 export type CheckResultDto = z.infer<typeof CheckResultDto>;
 

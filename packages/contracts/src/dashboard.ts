@@ -2,7 +2,7 @@ import { z } from 'zod';
 import { BuildRow, BuildStatus } from './builds.js';
 import { CaptureDto, CheckResultDto, WaiverMark } from './captures.js';
 import { DriftFlag } from './mask-derivation.js';
-import { MaskCheck } from './masks.js';
+import { CheckId, MaskCheck, SpectralMeasure } from './masks.js';
 
 /**
  * Verdict counts of a build's captures. `waived`: how many of the `pass` passed with waiver
@@ -57,6 +57,8 @@ export const MatrixCell = z.object({
   outcome: CellOutcome,
   /** Failing checks, worst margin first (a waived one carries its `waiver`). */
   failing: z.array(CheckResultDto),
+  /** For an error cell: why the capture could not be judged, in words (the verdict's reason). Optional only so older fixtures type-check. */
+  reason: z.string().nullable().optional(),
   /** For a cell passing with waiver: the waiver ending first. Always sent by the API; optional only so older fixtures type-check. */
   waiver: WaiverMark.nullable().optional(),
   /** Outcome of the same cell in the compared build; null when it had no capture there. */
@@ -95,6 +97,19 @@ export const FindingRow = z.object({
   commentCount: z.number().int(),
   createdAt: z.string(),
   updatedAt: z.string(),
+  /**
+   * Triage fields, always sent by the API (optional only so older fixtures type-check):
+   * the branch of the finding's builds, the check's kind and mask label (the title is rendered
+   * from these and the numbers above, never from a stored sentence), the first failing build of
+   * the finding, how many builds it failed, and the first build of its current failing streak
+   * (null when the newest capture of its cell on that branch passes the check).
+   */
+  branch: z.string().nullable().optional(),
+  checkKind: z.string().nullable().optional(),
+  checkLabel: z.string().nullable().optional(),
+  firstSeen: z.object({ sha: z.string(), createdAt: z.string() }).nullable().optional(),
+  occurrences: z.number().int().optional(),
+  failingSince: z.object({ sha: z.string(), createdAt: z.string() }).nullable().optional(),
 });
 export type FindingRow = z.infer<typeof FindingRow>;
 
@@ -107,6 +122,8 @@ export const FindingsQuery = z.object({
   testCase: z.string().max(80).optional(),
   target: z.string().max(60).optional(),
   captureId: z.uuid().optional(),
+  /** Findings of builds on this branch only. */
+  branch: z.string().min(1).max(200).optional(),
 });
 export type FindingsQuery = z.infer<typeof FindingsQuery>;
 
@@ -142,6 +159,20 @@ export const CaptureDetail = z.object({
 });
 export type CaptureDetail = z.infer<typeof CaptureDetail>;
 
+/** One band of a band-levels check as drawn: a step over [lowerHz, upperHz]. */
+export const PlotBand = z.object({
+  nominalHz: z.number(),
+  lowerHz: z.number(),
+  upperHz: z.number(),
+  measured: z.number().nullable(),
+  min: z.number().nullable(),
+  max: z.number().nullable(),
+  margin: z.number().nullable(),
+  /** Why this band could not be measured. */
+  error: z.string().nullable(),
+});
+export type PlotBand = z.infer<typeof PlotBand>;
+
 const Series = z.object({ hz: z.array(z.number()), min: z.array(z.number().nullable()), max: z.array(z.number().nullable()) });
 
 /**
@@ -165,6 +196,15 @@ export const CapturePlot = z.object({
   groupDelay: z.object({ hz: z.array(z.number()), ms: z.array(z.number()) }).nullable(),
   waveform: z.object({ seconds: z.array(z.number()), min: z.array(z.number()), max: z.array(z.number()) }),
   engineVersion: z.string(),
+  // The fields below are always sent by the API; optional only so older fixtures and stored plots type-check.
+  /** The kind of the check drawn: an envelope draws limit curves, band levels draw steps (`bands`). */
+  checkKind: z.enum(['magnitude-envelope', 'band-levels']).nullable().optional(),
+  /** What the spectrum is: the transfer magnitude |H| or the capture's own level. */
+  measure: SpectralMeasure.optional(),
+  /** Frequency the transfer magnitude is normalised to 0 dB at (null: absolute |H|, or a level). */
+  normalisedAtHz: z.number().nullable().optional(),
+  /** A band-levels check: each band's edges, measured level and limits (null where absent), drawn as steps. */
+  bands: z.array(PlotBand).nullable().optional(),
 });
 export type CapturePlot = z.infer<typeof CapturePlot>;
 
@@ -172,8 +212,14 @@ export const PlotQuery = z.object({
   columns: z.coerce.number().int().min(64).max(4096).default(1024),
   channel: z.coerce.number().int().min(0).max(7).optional(),
   overlay: z.enum(['none', 'last-passing']).default('last-passing'),
+  /** The spectral check (magnitude-envelope or band-levels) whose limits are drawn; default: the mask's first. */
+  check: CheckId.optional(),
 });
 export type PlotQuery = z.infer<typeof PlotQuery>;
+
+/** A re-analysis queued: the capture is `queued` again and its page follows the new verdict. */
+export const ReanalyseResponse = z.object({ captureId: z.string(), status: z.literal('queued'), reanalysisId: z.string() });
+export type ReanalyseResponse = z.infer<typeof ReanalyseResponse>;
 
 export const AudioKind = z.enum(['capture', 'stimulus', 'residual']);
 export type AudioKind = z.infer<typeof AudioKind>;

@@ -36,5 +36,8 @@ export const UpdateProjectRequest = z.strictObject({
     .max(Number.MAX_SAFE_INTEGER, 'at most 2^53 - 1 bytes')
     .nullable()
     .optional(),
+  /** true archives the project (it leaves the lists and accepts no uploads); false brings it back. */
+  archived: z.boolean().optional(),
+  name: z.string().trim().min(1).max(120).optional(),
 });
 export type UpdateProjectRequest = z.infer<typeof UpdateProjectRequest>;

@@ -88,6 +88,8 @@ export const DerivationStats = z.object({
   maxStrayDb: z.number(),
   /** The golden captures themselves, measured against the proposal: the smallest margin, dB. */
   worstGoldenMarginDb: z.number(),
+  /** Each golden capture's curve in the same columns as `hz`, in the order of `derivation.captureIds`. */
+  curves: z.array(z.array(z.number())).optional(),
 });
 export type DerivationStats = z.infer<typeof DerivationStats>;
 
@@ -134,6 +136,39 @@ export const YieldEstimate = z.object({
 });
 export type YieldEstimate = z.infer<typeof YieldEstimate>;
 
+/** Where a golden capture lies beyond 3σ of the others (docs/masks.md, "Outlying golden captures"). */
+export const OutlierRegionDto = z.object({
+  fromHz: z.number(),
+  toHz: z.number(),
+  /** At the worst band of the region: the capture minus the others' mean, dB. */
+  deviationDb: z.number(),
+  /** The same in standard deviations of the others. */
+  sigmas: z.number(),
+  atHz: z.number(),
+});
+export type OutlierRegionDto = z.infer<typeof OutlierRegionDto>;
+
+export const GoldenOutlierDto = z.object({
+  captureId: z.string(),
+  /** Target key of the capture. */
+  target: z.string(),
+  regions: z.array(OutlierRegionDto),
+  worst: OutlierRegionDto,
+});
+export type GoldenOutlierDto = z.infer<typeof GoldenOutlierDto>;
+
+/**
+ * Something the proposal should be read with. `mixed-targets`: the golden captures come from more
+ * than one target (`targets`, their keys); the limits are derived anyway, since one mask may
+ * deliberately cover several targets, but the wizard shows the warning before it is used.
+ */
+export const DeriveWarning = z.object({
+  code: z.enum(['mixed-targets']),
+  message: z.string(),
+  targets: z.array(z.string()),
+});
+export type DeriveWarning = z.infer<typeof DeriveWarning>;
+
 export const DeriveMaskResponse = z.object({
   /** A valid magnitude-envelope check (contracts' MaskCheck), ready to put in a draft. */
   check: MagnitudeEnvelopeCheck,
@@ -141,6 +176,9 @@ export const DeriveMaskResponse = z.object({
   derivation: MaskDerivation,
   /** Always sent by the API; optional so a response from a server before this field still parses. */
   yieldEstimate: YieldEstimate.optional(),
+  /** Golden captures beyond 3σ of the others somewhere (at least four captures needed). */
+  outliers: z.array(GoldenOutlierDto).default([]),
+  warnings: z.array(DeriveWarning).default([]),
 });
 export type DeriveMaskResponse = z.infer<typeof DeriveMaskResponse>;
 

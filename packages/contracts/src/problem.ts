@@ -11,6 +11,8 @@ export const Problem = z.object({
   errors: z.array(z.object({ path: z.string(), message: z.string() })).optional(),
   /** A machine-readable reason, e.g. the capture decoder's error code. */
   code: z.string().optional(),
+  /** A conflict's obstacle (the waiver already requested): clients link to it instead of showing its id. */
+  existing: z.object({ kind: z.enum(['waiver']), id: z.string(), state: z.string() }).optional(),
 });
 export type Problem = z.infer<typeof Problem>;
 

@@ -24,6 +24,8 @@ export const Project = z.object({
   storageQuotaBytes: z.number().int().nullable(),
   /** Where the quota comes from: the project's own setting, or the server's default (EARMARK_PROJECT_QUOTA_BYTES). */
   storageQuotaSource: z.enum(['project', 'default']),
+  /** When an administrator archived the project; null while it is in use. */
+  archivedAt: z.string().nullable(),
 });
 export type Project = z.infer<typeof Project>;
 
@@ -53,12 +55,16 @@ export const ApiTokenRow = z.object({
   createdAt: z.string(),
   lastUsedAt: z.string().nullable(),
   revokedAt: z.string().nullable(),
+  /** After this instant the token is refused; null: it never expires. */
+  expiresAt: z.string().nullable(),
 });
 export type ApiTokenRow = z.infer<typeof ApiTokenRow>;
 
 export const CreateApiTokenRequest = z.object({
   name: z.string().min(1).max(80),
   scopes: z.array(TokenScope).min(1).default(['submit-captures', 'read-verdicts']),
+  /** When the token stops working (ISO 8601 with offset, in the future); null or absent: never. */
+  expiresAt: z.iso.datetime({ offset: true }).nullable().optional(),
 });
 export type CreateApiTokenRequest = z.infer<typeof CreateApiTokenRequest>;
 

@@ -14,6 +14,11 @@ export const AnalyzeCaptureJob = z.object({
   captureId: z.uuid(),
   /** Re-evaluation: judge under this (approved) revision instead of the one in force, linking the new verdict to the one it replaces. */
   maskRevisionId: z.uuid().optional(),
+  /**
+   * A person asked for the capture to be analysed again: the new verdict's basis names this
+   * request, so it is written even under the same revision and engine (once per request).
+   */
+  reanalysisId: z.uuid().optional(),
 });
 export type AnalyzeCaptureJob = z.infer<typeof AnalyzeCaptureJob>;
 

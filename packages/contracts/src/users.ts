@@ -6,7 +6,10 @@ export const UserRow = z.object({
   displayName: z.string(),
   isAdmin: z.boolean(),
   disabled: z.boolean(),
+  /** `invited`: has not set a password through the invitation link yet; `disabled` wins over it. */
+  status: z.enum(['active', 'invited', 'disabled']),
   createdAt: z.string(),
+  lastLoginAt: z.string().nullable(),
 });
 export type UserRow = z.infer<typeof UserRow>;
 

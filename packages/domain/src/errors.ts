@@ -10,17 +10,27 @@ export interface FieldError {
   message: string;
 }
 
+/** An entity a conflict refers to: its kind, id and state, never shown raw (clients turn it into a link). */
+export interface ExistingEntity {
+  kind: 'waiver';
+  id: string;
+  state: string;
+}
+
 export abstract class DomainError extends Error {
   abstract readonly kind: DomainErrorKind;
   /** A stable machine-readable reason (`sample-rate-mismatch`), where clients branch on it. */
   readonly code?: string;
   readonly fieldErrors: FieldError[];
+  /** The thing that stands in the way (the waiver already requested), so a client can link to it. */
+  readonly existing?: ExistingEntity;
 
-  constructor(detail: string, options: { code?: string; fieldErrors?: FieldError[] } = {}) {
+  constructor(detail: string, options: { code?: string; fieldErrors?: FieldError[]; existing?: ExistingEntity } = {}) {
     super(detail);
     this.name = new.target.name;
     this.code = options.code;
     this.fieldErrors = options.fieldErrors ?? [];
+    this.existing = options.existing;
   }
 }
 

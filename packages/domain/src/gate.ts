@@ -6,6 +6,7 @@ import type { JobProducer } from './jobs/job-producer.js';
 import { StimulusFiles } from './services/stimulus-files.js';
 import { CaptureIngestService } from './services/capture-ingest.service.js';
 import { CaptureViewService } from './services/capture-view.service.js';
+import { CaptureReanalysisService } from './services/capture-reanalysis.service.js';
 import { CatalogService } from './services/catalog.service.js';
 import { DriftService } from './services/drift.service.js';
 import { FindingsService } from './services/findings.service.js';
@@ -18,6 +19,7 @@ import { ProjectService } from './services/project.service.js';
 import { SubscriptionService } from './services/subscription.service.js';
 import { TokenService } from './services/token.service.js';
 import { WaiverService } from './services/waiver.service.js';
+import { UserAdminService } from './services/user-admin.service.js';
 
 export interface GateDeps {
   objectStore: ObjectStore;
@@ -58,7 +60,9 @@ export function createGate(deps: GateDeps) {
     ingest: new CaptureIngestService({ objectStore, jobs, links, logger, compute, storageQuotaDefaultBytes }),
     derivation: new MaskDerivationService(views.audioLoader),
     impact: new ImpactService(jobs),
+    reanalysis: new CaptureReanalysisService(jobs),
     drift: new DriftService(),
+    users: new UserAdminService(links),
   };
 }
 export type Gate = ReturnType<typeof createGate>;

@@ -53,6 +53,7 @@ export { coherence, minimumCoherence, type CoherenceOptions, type CoherenceResul
 export { analyzeFrame, residualForListening, synthesizeFrame, type FrameSpectrum, type ResidualOptions } from './synthesis/resynthesis.js';
 // Entry point: one capture context feeds the report, the verdict and the plots
 export { CaptureContext, type ChannelDelay, type ChannelDistortion, type ChannelTiming, type ChannelTransfer, type WarningTopic } from './context/capture-context.js';
+export { bandLevelSteps, type BandLevelStep } from './plots/band-level-steps.js';
 export { captureCurves, waveformColumns, type CaptureCurves, type GroupDelayCurve, type PhaseCurve, type WaveformColumns } from './plots/capture-curves.js';
 export { listeningResidual } from './synthesis/listening-residual.js';
 export { analyzeCapture, type AnalyzeCaptureOptions, type AudioBuffers } from './analyze/analyze-capture.js';

@@ -18,6 +18,12 @@ function bearer(req: Request): string | null {
  * Resolves the caller from the Authorization header, or null when there is none.
  * @throws AuthError for a malformed, expired, revoked or unknown credential.
  */
+/** Says when, so a pipeline's log tells its owner what to renew (docs/ci.md, "Token expiry"). */
+export function tokenExpiredDetail(expiresAt: Date): string {
+  const when = `${expiresAt.toISOString().slice(0, 16).replace('T', ' ')} UTC`;
+  return `This API token expired on ${when}; a project admin can create a new one on the project's API tokens page.`;
+}
+
 /** How fresh a CI token's `lastUsedAt` is kept. */
 const LAST_USED_RESOLUTION_MS = 60_000;
 
@@ -30,6 +36,7 @@ export async function authenticate(req: Request, em: EntityManager, signer: Toke
     const token = await em.findOne(ApiToken, { prefix }, { populate: ['project'] });
     if (!token || !tokenMatches(credential, token.secretHash)) throw new AuthError('Unknown API token.');
     if (token.revokedAt) throw new AuthError('This API token has been revoked.');
+    if (token.expiresAt && token.expiresAt <= new Date()) throw new AuthError(tokenExpiredDetail(token.expiresAt), 'token-expired');
     // Once a minute at most: a CI run reads verdicts many times, and a write per read cost more than the read.
     if (!token.lastUsedAt || Date.now() - token.lastUsedAt.getTime() > LAST_USED_RESOLUTION_MS) {
       token.lastUsedAt = new Date();

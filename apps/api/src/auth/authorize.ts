@@ -60,6 +60,8 @@ export async function authorize(
     return { principal, project };
   }
   if (!membership) throw hidden();
+  // An archived project stays readable to administrators only (the branch above).
+  if (membership.project.archivedAt) throw hidden();
   if (!roleGrants(membership.role, access.permission)) {
     throw new ForbiddenError(`Your role in ${projectKey} (${membership.role}) does not allow ${access.permission}.`);
   }

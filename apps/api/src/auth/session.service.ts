@@ -5,7 +5,7 @@ import { BCRYPT_COST, Membership, RefreshSession, User, hashPassword } from '@ea
 import type { TokenSigner } from '../auth/jwt.js';
 import { inlinePasswordChecks, type PasswordChecks } from './password-checks.js';
 
-import { AuthError } from '../errors.js';
+import { AuthError, ValidationError } from '../errors.js';
 import { recordAudit } from '@earmark/domain';
 
 export function toCurrentUser(user: User, memberships: Membership[]): CurrentUser {
@@ -85,6 +85,31 @@ export class SessionService {
       throw invalid();
     }
     family.currentJti = nextJti;
+    return this.issue(em, user, family);
+  }
+
+  /**
+   * Changes the signed-in user's own password. Every session of the user ends (access tokens by
+   * the version bump, refresh chains by revocation), so a thief holding one is locked out; the
+   * caller gets a fresh session in the answer and stays signed in.
+   * @throws ValidationError (422, naming `currentPassword`) when the current password is wrong.
+   */
+  async changePassword(em: EntityManager, user: User, currentPassword: string, newPassword: string): Promise<Session> {
+    if (!(await this.passwords.verify(currentPassword, user.passwordHash))) {
+      recordAudit(em, { actor: `user:${user.email}`, action: 'auth.password_change_failed', subject: `user:${user.email}` });
+      await em.flush();
+      throw new ValidationError('The current password is wrong; the password was not changed.', [{ path: 'body.currentPassword', message: 'does not match the password you sign in with' }]);
+    }
+    user.passwordHash = await hashPassword(newPassword);
+    user.tokenVersion += 1;
+    const ended = await em.nativeUpdate(RefreshSession, { user, revokedAt: null }, { revokedAt: new Date() });
+    const family = em.create(RefreshSession, {
+      user,
+      currentJti: randomUUID(),
+      expiresAt: new Date(Date.now() + this.signer.ttlSeconds('refresh') * 1000),
+    });
+    recordAudit(em, { actor: `user:${user.email}`, action: 'auth.password_changed', subject: `user:${user.email}`, details: { sessionsEnded: ended } });
+    await em.flush();
     return this.issue(em, user, family);
   }
 

@@ -82,3 +82,19 @@ export function signInGuard(
     passwordWork(gate),
   ]);
 }
+
+/**
+ * In front of a password change: the current password can be guessed there like at sign-in, so
+ * failed attempts per address are limited the same way, and the bcrypt work takes a slot of the
+ * same gate as sign-ins (pass sign-in's gate so both share this process's CPU bound).
+ */
+export function passwordChangeGuard(
+  env: ApiEnv,
+  stores: LimitStoreFactory,
+  gate = new WorkGate(env.EARMARK_PASSWORD_WORK_CONCURRENCY, env.EARMARK_PASSWORD_WORK_QUEUE),
+): RequestHandler {
+  return inSequence([
+    limiter({ windowMs: FIFTEEN_MINUTES, limit: env.EARMARK_LOGIN_RATE_LIMIT, failedOnly: true, key: (req) => `change|${addressOf(req)}`, detail: 'Too many wrong current passwords; wait a few minutes before trying again.', store: stores('password-change') }),
+    passwordWork(gate),
+  ]);
+}

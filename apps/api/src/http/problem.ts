@@ -61,7 +61,7 @@ export function errorHandler(logger: Logger): ErrorRequestHandler {
       const headers: Record<string, string> = err instanceof ServiceUnavailableError ? { 'Retry-After': String(err.retryAfterSeconds) } : {};
       sendProblem(
         res,
-        { type: TYPED_BY_CODE.has(err.kind) && err.code ? typeFor(err.code) : typeFor(status), title, status, detail: err.message, instance: req.originalUrl, ...(err.fieldErrors.length ? { errors: err.fieldErrors } : {}), ...(err.code ? { code: err.code } : {}) },
+        { type: TYPED_BY_CODE.has(err.kind) && err.code ? typeFor(err.code) : typeFor(status), title, status, detail: err.message, instance: req.originalUrl, ...(err.fieldErrors.length ? { errors: err.fieldErrors } : {}), ...(err.code ? { code: err.code } : {}), ...(err.existing ? { existing: err.existing } : {}) },
         headers,
       );
       return;

@@ -1,43 +1,42 @@
-import { type AuditEventRow, AuditEventRow as AuditEventRowSchema, CreateUserRequest, Page, type UserRow, UserRow as UserRowSchema } from '@earmark/contracts';
-import { AuditEvent, User, hashPassword } from '@earmark/db';
+import {
+  AccountLinkSent,
+  CreateUserRequest,
+  InviteUserRequest,
+  InvitedUser,
+  UpdateUserRequest,
+  UserRow as UserRowSchema,
+  WorkspaceAuditPage,
+  WorkspaceAuditQuery,
+} from '@earmark/contracts';
+import { User, hashPassword } from '@earmark/db';
 import { z } from 'zod';
 
 import { ConflictError } from '../errors.js';
-import { recordAudit } from '@earmark/domain';
-import { requireUser, route, type RouteDef } from '../http/route.js';
+import { recordAudit, toUserRow, workspaceAudit, type Gate } from '@earmark/domain';
+import { requireUser, route, type RouteContext, type RouteDef } from '../http/route.js';
+import { wakeMailSender } from '../http/wake-mail-sender.js';
 
-const PageQuery = z.object({
-  page: z.coerce.number().int().min(1).default(1),
-  pageSize: z.coerce.number().int().min(1).max(200).default(50),
-});
+const UserIdParams = z.object({ userId: z.uuid('a user id (UUID)') });
 
-const toUserRow = (u: User): UserRow => ({
-  id: u.id,
-  email: u.email,
-  displayName: u.displayName,
-  isAdmin: u.isAdmin,
-  disabled: u.disabled,
-  createdAt: u.createdAt.toISOString(),
-});
-
-export function adminRoutes(): RouteDef[] {
+export function adminRoutes(gate: Pick<Gate, 'users' | 'jobs'>): RouteDef[] {
+  const { users } = gate;
+  const sendMail = (ctx: RouteContext) => wakeMailSender(gate.jobs, ctx);
   return [
     route({
       method: 'get',
       path: '/api/admin/users',
       access: { kind: 'admin' },
-      summary: 'All users',
+      summary: 'All users with their status (active, invited, disabled)',
       response: z.object({ items: z.array(UserRowSchema) }),
       async handle({ res, em }) {
-        const users = await em.find(User, {}, { orderBy: { email: 'asc' } });
-        res.json({ items: users.map(toUserRow) });
+        res.json({ items: await users.list(em) });
       },
     }),
     route({
       method: 'post',
       path: '/api/admin/users',
       access: { kind: 'admin' },
-      summary: 'Create a user with a password',
+      summary: 'Create a user with a password (scripts; people are invited instead)',
       body: CreateUserRequest,
       response: UserRowSchema,
       status: 201,
@@ -57,28 +56,55 @@ export function adminRoutes(): RouteDef[] {
       },
     }),
     route({
+      method: 'post',
+      path: '/api/admin/users/invitations',
+      access: { kind: 'admin' },
+      summary: `Invite a person by e-mail: they get a one-time link (valid 72 h) to choose their password, and cannot sign in before`,
+      body: InviteUserRequest,
+      response: InvitedUser,
+      status: 201,
+      async handle(ctx) {
+        const { user, expiresAt } = await users.invite(ctx.em, ctx.body, requireUser(ctx).user);
+        await sendMail(ctx);
+        ctx.res.status(201).json({ user: toUserRow(user), expiresAt: expiresAt.toISOString() });
+      },
+    }),
+    route({
+      method: 'patch',
+      path: '/api/admin/users/:userId',
+      access: { kind: 'admin' },
+      summary: 'Disable or enable a user (disabling ends their sessions), or change the administrator flag or name; one active administrator always remains',
+      params: UserIdParams,
+      body: UpdateUserRequest,
+      response: UserRowSchema,
+      async handle(ctx) {
+        const user = await users.update(ctx.em, ctx.params.userId, ctx.body, requireUser(ctx).user);
+        ctx.res.json(toUserRow(user));
+      },
+    }),
+    route({
+      method: 'post',
+      path: '/api/admin/users/:userId/password-reset',
+      access: { kind: 'admin' },
+      summary: 'Mail the user a one-time link (valid 72 h) to choose a new password; earlier links stop working',
+      params: UserIdParams,
+      response: AccountLinkSent,
+      status: 202,
+      async handle(ctx) {
+        const { expiresAt } = await users.sendPasswordReset(ctx.em, ctx.params.userId, requireUser(ctx).user);
+        await sendMail(ctx);
+        ctx.res.status(202).json({ expiresAt: expiresAt.toISOString() });
+      },
+    }),
+    route({
       method: 'get',
       path: '/api/admin/audit',
       access: { kind: 'admin' },
-      summary: 'The audit log, newest first, paged',
-      query: PageQuery,
-      response: Page(AuditEventRowSchema),
-      async handle({ query: { page, pageSize }, res, em }) {
-        const [events, total] = await em.findAndCount(
-          AuditEvent,
-          {},
-          { populate: ['project'], orderBy: { createdAt: 'desc' }, limit: pageSize, offset: (page - 1) * pageSize },
-        );
-        const items: AuditEventRow[] = events.map((e) => ({
-          id: e.id,
-          at: e.createdAt.toISOString(),
-          actor: e.actor,
-          action: e.action,
-          subject: e.subject,
-          projectKey: e.project?.key ?? null,
-          details: e.details,
-        }));
-        res.json({ items, total, page, pageSize });
+      summary: 'The workspace audit log, newest first, paged; filters: actor (e-mail or `kind:id`), action (exact or prefix ending in a dot), project key, from/to dates. Rows name the actor and the subject, with their pages',
+      query: WorkspaceAuditQuery,
+      response: WorkspaceAuditPage,
+      async handle({ query, res, em }) {
+        res.json(await workspaceAudit(em, query));
       },
     }),
   ];

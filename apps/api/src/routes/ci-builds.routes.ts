@@ -2,7 +2,7 @@ import { BuildDetail, BuildRow, CommitSha, UpsertBuildRequest } from '@earmark/c
 import { Build, Capture, type Project } from '@earmark/db';
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { z } from 'zod';
-import { actorName, buildDetail, findOrCreateBuild, type Links, recordAudit, toBuildRow } from '@earmark/domain';
+import { actorName, assertAcceptsUploads, buildDetail, findOrCreateBuild, type Links, recordAudit, toBuildRow } from '@earmark/domain';
 import { requireProject, route, type RouteDef } from '../http/route.js';
 
 const BuildListQuery = z.object({
@@ -20,15 +20,16 @@ export function ciBuildRoutes(links: Links): RouteDef[] {
       method: 'post',
       path: '/api/v1/projects/:project/builds',
       access: { kind: 'ci', permission: 'build.submit' },
-      summary: 'Create a build, or update its label/branch/pipeline URL (upsert by commit SHA)',
+      summary: 'Create a build (optionally with builtAt, when it was made), or update its label/branch/pipeline URL (upsert by commit SHA)',
       body: UpsertBuildRequest,
       response: BuildRow,
       status: 201,
       async handle(ctx) {
         const project = requireProject(ctx);
+        assertAcceptsUploads(project);
         const body = ctx.body;
         // Two pipelines racing on one SHA both get the one build; only the creator answers 201.
-        const { build, created } = await findOrCreateBuild(ctx.em, project, body.sha);
+        const { build, created } = await findOrCreateBuild(ctx.em, project, body.sha, body.builtAt === undefined ? undefined : new Date(body.builtAt));
         if (body.label !== undefined) build.label = body.label;
         if (body.branch !== undefined) build.branch = body.branch;
         if (body.pipelineUrl !== undefined) build.pipelineUrl = body.pipelineUrl;

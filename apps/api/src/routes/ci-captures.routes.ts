@@ -2,7 +2,7 @@ import { CaptureDto, CommitSha, RAW_FLOAT32_MEDIA_TYPE } from '@earmark/contract
 import { Capture } from '@earmark/db';
 import { IsolationLevel } from '@mikro-orm/postgresql';
 import { z } from 'zod';
-import { buildDetail, type CaptureIngestService, type Links, parseWith, presentCaptures, renderJunit, type ResolvedDestination } from '@earmark/domain';
+import { assertAcceptsUploads, buildDetail, type CaptureIngestService, type Links, parseWith, presentCaptures, renderJunit, type ResolvedDestination } from '@earmark/domain';
 import { readCaptureUpload } from '../http/capture-upload.js';
 import type { UploadSlots } from '../http/upload-slots.js';
 import { requireProject, route, type RouteDef } from '../http/route.js';
@@ -39,6 +39,11 @@ export function ciCaptureRoutes(ingest: CaptureIngestService, links: Links, maxC
       async handle(ctx) {
         const { sha } = ctx.params;
         const project = requireProject(ctx);
+        // Refused before the upload is read; the body is drained so the client sees the answer.
+        if (project.archivedAt) {
+          ctx.req.resume();
+          assertAcceptsUploads(project);
+        }
         let release: () => void;
         try {
           release = uploadSlots.take();

@@ -14,6 +14,7 @@ import {
   FindingsPage,
   FindingsQuery,
   PlotQuery,
+  ReanalyseResponse,
   UpdateFindingRequest,
 } from '@earmark/contracts';
 import { z } from 'zod';
@@ -28,7 +29,7 @@ const AudioParams = IdParams.extend({ kind: AudioKind });
 
 /** What the dashboard reads: builds, the build matrix, capture pages, findings triage. */
 export function dashboardRoutes(gate: Gate): RouteDef[] {
-  const { views, findings } = gate;
+  const { views, findings, reanalysis } = gate;
   return [
     route({
       method: 'get',
@@ -99,6 +100,39 @@ export function dashboardRoutes(gate: Gate): RouteDef[] {
         const { id, kind } = ctx.params;
         const wav = await views.audio(ctx.em, requireProject(ctx), id, kind);
         await sendWav(ctx.res, wav, { 'X-Earmark-Caution': LOUDNESS_CAUTION, 'Cache-Control': 'private, max-age=300' });
+      },
+    }),
+    route({
+      method: 'get',
+      path: '/api/projects/:project/captures/:id/download',
+      access: { kind: 'project', permission: 'build.read' },
+      summary: 'The capture exactly as uploaded (byte for byte from storage) as a file download; 410 once the retention policy removed it',
+      params: IdParams,
+      doc: { responseContentType: 'audio/wav' },
+      async handle(ctx) {
+        const { id } = ctx.params;
+        const file = await views.original(ctx.em, requireProject(ctx), id);
+        ctx.res
+          .status(200)
+          .type(file.contentType)
+          .setHeader('Content-Disposition', `attachment; filename="${file.filename}"`)
+          .setHeader('Content-Length', String(file.body.byteLength))
+          .setHeader('X-Earmark-Caution', LOUDNESS_CAUTION)
+          .setHeader('Cache-Control', 'private, max-age=300')
+          .end(file.body);
+      },
+    }),
+    route({
+      method: 'post',
+      path: '/api/projects/:project/captures/:id/reanalyse',
+      access: { kind: 'project', permission: 'build.submit' },
+      summary: 'Analyse a stored capture again under the mask in force (audited); the capture is queued and gets a new verdict',
+      params: IdParams,
+      response: ReanalyseResponse,
+      status: 202,
+      async handle(ctx) {
+        const { id } = ctx.params;
+        ctx.res.status(202).json(await reanalysis.reanalyse(ctx.em, requireProject(ctx), id, requireUser(ctx).user));
       },
     }),
     route({

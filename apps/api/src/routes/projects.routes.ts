@@ -4,6 +4,10 @@ import { type ProjectService } from '@earmark/domain';
 import { requireProject, requireUser, route, type RouteDef } from '../http/route.js';
 
 const UserIdParams = z.object({ userId: z.uuid() });
+const ProjectListQuery = z.object({
+  /** `include`: administrators also get archived projects (the admin area). */
+  archived: z.enum(['include', 'exclude'], 'include or exclude').default('exclude'),
+});
 
 export function projectRoutes(projects: ProjectService): RouteDef[] {
   return [
@@ -11,10 +15,11 @@ export function projectRoutes(projects: ProjectService): RouteDef[] {
       method: 'get',
       path: '/api/projects',
       access: { kind: 'user' },
-      summary: 'Projects the caller can see',
+      summary: 'Projects the caller can see; archived ones only for administrators with ?archived=include',
+      query: ProjectListQuery,
       response: z.object({ items: z.array(Project) }),
       async handle(ctx) {
-        ctx.res.json({ items: await projects.listFor(ctx.em, requireUser(ctx)) });
+        ctx.res.json({ items: await projects.listFor(ctx.em, requireUser(ctx), ctx.query.archived === 'include') });
       },
     }),
     route({
@@ -44,7 +49,7 @@ export function projectRoutes(projects: ProjectService): RouteDef[] {
       method: 'patch',
       path: '/api/projects/:project',
       access: { kind: 'project', permission: 'project.administer' },
-      summary: "Change a project's settings: its storage quota (bytes; 0 = unlimited, null = the server default)",
+      summary: "Change a project's settings: its name, storage quota (bytes; 0 = unlimited, null = the server default), or archive it (archived: true; false restores it)",
       body: UpdateProjectRequest,
       response: Project,
       async handle(ctx) {

@@ -43,6 +43,7 @@ export function registerSubmitCommand(program: Command): void {
     .option('--branch <name>', 'branch the build came from')
     .option('--label <text>', 'a label for the build, e.g. a version')
     .option('--pipeline-url <url>', 'link back to the pipeline run')
+    .option('--built-at <time>', 'when the build was made, ISO 8601 with a time zone (default: when Earmark first hears of it)')
     .requiredOption('--case <key>', 'test case the captures belong to, e.g. eq.music.sweep')
     .option('--target <key>', "target (hardware variant); omit when the project has only one")
     .option('--wait', 'wait for the verdicts and exit 0 pass / 1 fail / 2 error (3: could not finish)')

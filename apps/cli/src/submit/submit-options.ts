@@ -15,6 +15,7 @@ export interface SubmitFlags {
   branch?: string;
   label?: string;
   pipelineUrl?: string;
+  builtAt?: string;
   case: string;
   target?: string;
   wait?: boolean;
@@ -93,6 +94,7 @@ export async function planSubmit(flags: SubmitFlags, files: string[], env: Submi
   if (flags.branch !== undefined) build.branch = check(UpsertBuildRequest.shape.branch, flags.branch, '--branch');
   if (flags.label !== undefined) build.label = check(UpsertBuildRequest.shape.label, flags.label, '--label');
   if (flags.pipelineUrl !== undefined) build.pipelineUrl = check(UpsertBuildRequest.shape.pipelineUrl, flags.pipelineUrl, '--pipeline-url');
+  if (flags.builtAt !== undefined) build.builtAt = check(UpsertBuildRequest.shape.builtAt, flags.builtAt, '--built-at');
   const testCase = check(TestCaseKey, flags.case, '--case');
   const target = flags.target === undefined ? undefined : check(TargetKey, flags.target, '--target');
 

@@ -3,6 +3,7 @@ import { createBrowserRouter, redirect, type RouteObject } from 'react-router';
 import { FullPageLoading } from '@/components/full-page-status';
 import { getMeQueryOptions } from '@/features/auth/api/get-me';
 import { paths } from '@/lib/paths';
+import { AccountRoute, accountLoader } from './routes/app/account';
 import { BuildRoute, buildLoader } from './routes/app/build';
 import { BuildsRoute, buildsLoader, buildsShouldRevalidate } from './routes/app/builds';
 import { CaptureRoute, captureLoader } from './routes/app/capture';
@@ -15,6 +16,18 @@ import { ProjectRoute, projectLoader } from './routes/app/project';
 import { ProjectsRoute, projectsLoader } from './routes/app/projects';
 import { TokensRoute, tokensLoader } from './routes/app/tokens';
 import { NotFoundRoute } from './routes/not-found';
+import {
+  AdminAuditRoute,
+  AdminLayout,
+  AdminProjectsRoute,
+  AdminUsersRoute,
+  adminAuditLoader,
+  adminAuditShouldRevalidate,
+  adminProjectsLoader,
+  adminUsersLoader,
+} from './routes/app/admin';
+import { MembersRoute, membersLoader } from './routes/app/members';
+import { SetPasswordRoute } from './routes/set-password';
 import { requireSession } from './routes/require-session';
 import { RootErrorBoundary, RouteErrorBoundary } from './routes/route-error';
 import { SignInRoute, signInLoader } from './routes/sign-in';
@@ -35,6 +48,13 @@ export function createAppRoutes(queryClient: QueryClient): RouteObject[] {
       HydrateFallback: FullPageLoading,
     },
     {
+      // Opened from a mailed invitation or reset link, before the person can sign in.
+      path: '/set-password/:secret',
+      Component: SetPasswordRoute,
+      ErrorBoundary: RootErrorBoundary,
+      HydrateFallback: FullPageLoading,
+    },
+    {
       id: 'app',
       path: '/',
       // Validates a stored session against the API on start-up (and is a cache hit after).
@@ -51,6 +71,7 @@ export function createAppRoutes(queryClient: QueryClient): RouteObject[] {
           ErrorBoundary: RouteErrorBoundary,
           children: [
             { path: 'projects', loader: projectsLoader(queryClient), Component: ProjectsRoute },
+            { path: 'account', loader: accountLoader(queryClient), Component: AccountRoute },
             { path: 'projects/:projectKey', loader: projectLoader(queryClient), Component: ProjectRoute },
             {
               path: 'projects/:projectKey/builds',
@@ -79,6 +100,18 @@ export function createAppRoutes(queryClient: QueryClient): RouteObject[] {
               loader: auditLoader(queryClient),
               shouldRevalidate: auditShouldRevalidate,
               Component: AuditRoute,
+            },
+            { path: 'projects/:projectKey/members', loader: membersLoader(queryClient), Component: MembersRoute },
+            { path: 'users', loader: () => redirect(paths.adminUsers()) },
+            {
+              path: 'admin',
+              Component: AdminLayout,
+              children: [
+                { index: true, loader: () => redirect(paths.adminUsers()) },
+                { path: 'users', loader: adminUsersLoader(queryClient), Component: AdminUsersRoute },
+                { path: 'projects', loader: adminProjectsLoader(queryClient), Component: AdminProjectsRoute },
+                { path: 'audit', loader: adminAuditLoader(queryClient), shouldRevalidate: adminAuditShouldRevalidate, Component: AdminAuditRoute },
+              ],
             },
             { path: '*', Component: NotFoundRoute },
           ],

@@ -20,6 +20,8 @@ export class ApiError extends Error {
   readonly detail: string | undefined;
   readonly type: string;
   readonly fieldErrors: readonly FieldProblem[];
+  /** What a conflict refers to (the waiver already requested), for a link; never shown raw. */
+  readonly existing: Problem['existing'];
 
   constructor(init: {
     kind: ApiErrorKind;
@@ -28,6 +30,7 @@ export class ApiError extends Error {
     detail?: string | undefined;
     type?: string;
     fieldErrors?: readonly FieldProblem[];
+    existing?: Problem['existing'];
   }) {
     super(init.detail ? `${init.title}: ${init.detail}` : init.title);
     this.kind = init.kind;
@@ -36,6 +39,7 @@ export class ApiError extends Error {
     this.detail = init.detail;
     this.type = init.type ?? 'about:blank';
     this.fieldErrors = init.fieldErrors ?? [];
+    this.existing = init.existing;
   }
 
   get isUnauthorized(): boolean {
@@ -60,6 +64,7 @@ export class ApiError extends Error {
           detail: parsed.data.detail,
           type: parsed.data.type,
           fieldErrors: parsed.data.errors ?? [],
+          existing: parsed.data.existing,
         });
       }
     }

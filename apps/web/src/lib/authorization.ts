@@ -24,6 +24,8 @@ export type ProjectAbilities = {
   role: Role | null;
   /** Assign, change state, comment on findings (engineers and above). */
   canTriage: boolean;
+  /** Submit captures and have them analysed again (engineers and above). */
+  canSubmit: boolean;
   /** API tokens, members (global admins only). */
   canAdminister: boolean;
   /** Draft mask revisions (engineers and above). */
@@ -40,6 +42,7 @@ export function abilitiesIn(user: CurrentUser | undefined, projectKey: string): 
   return {
     role,
     canTriage: role === 'engineer' || role === 'qa_manager' || role === 'admin',
+    canSubmit: role === 'engineer' || role === 'qa_manager' || role === 'admin',
     canAdminister: role === 'admin',
     canDraftMasks: role === 'engineer' || role === 'qa_manager' || role === 'admin',
     canConfigure: role === 'engineer' || role === 'qa_manager' || role === 'admin',

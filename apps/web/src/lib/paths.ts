@@ -8,6 +8,8 @@ export const paths = {
     return query ? `/sign-in?${query}` : '/sign-in';
   },
   projects: (): string => '/projects',
+  /** The signed-in user's own settings: password, build mail per project. */
+  account: (): string => '/account',
   project: (key: string): string => `/projects/${encodeURIComponent(key)}`,
   /** The builds table; `search` is the table state (page, sort, filters) without the `?`. */
   builds: (key: string, search?: string): string =>
@@ -24,6 +26,14 @@ export const paths = {
     `/projects/${encodeURIComponent(key)}/test-cases/${encodeURIComponent(caseKey)}/masks${search ? `?${search}` : ''}`,
   approvals: (key: string): string => `/projects/${encodeURIComponent(key)}/approvals`,
   audit: (key: string, search?: string): string => `/projects/${encodeURIComponent(key)}/audit${search ? `?${search}` : ''}`,
+  members: (key: string): string => `/projects/${encodeURIComponent(key)}/members`,
+  admin: (): string => '/admin',
+  /** `user` (an e-mail) marks that person's row. */
+  adminUsers: (user?: string): string => `/admin/users${user ? `?user=${encodeURIComponent(user)}` : ''}`,
+  adminProjects: (): string => '/admin/projects',
+  adminAudit: (search?: string): string => `/admin/audit${search ? `?${search}` : ''}`,
+  /** The page a mailed invitation or password-reset link opens. */
+  setPassword: (secret: string): string => `/set-password/${encodeURIComponent(secret)}`,
 } as const;
 
 /**

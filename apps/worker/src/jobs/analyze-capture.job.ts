@@ -31,7 +31,9 @@ export interface AnalyzeDeps {
  * `error` so no job stays stuck.
  */
 export async function analyzeCapture(job: PgBoss.JobWithMetadata<unknown>, deps: AnalyzeDeps): Promise<void> {
-  const { captureId, maskRevisionId } = AnalyzeCaptureJob.parse(job.data);
+  const { captureId, maskRevisionId, reanalysisId } = AnalyzeCaptureJob.parse(job.data);
+  // A person's "analyse again": written once per request even under the same revision and engine.
+  const request = reanalysisId ? { reanalysisId } : {};
   const em = deps.orm.em.fork();
   const capture = await em.findOne(Capture, { id: captureId }, { populate: ['project', 'build', 'testCase', 'target'] });
   if (!capture) {
@@ -51,7 +53,7 @@ export async function analyzeCapture(job: PgBoss.JobWithMetadata<unknown>, deps:
   if (attempt >= deps.maxAttempts && job.retryCount > 0) {
     // Earlier attempts crashed or timed out: stop trying rather than loop forever.
     const judgement = errorJudgement(`Analysis abandoned after ${job.retryCount} failed attempt${job.retryCount === 1 ? "" : "s"} (worker crash, timeout or storage outage).`, ENGINE_VERSION);
-    await wakeMailSender(deps, countVerdict(deps, judgement.outcome, await recordVerdict(em, captureId, mask, judgement, deps.links)));
+    await wakeMailSender(deps, countVerdict(deps, judgement.outcome, await recordVerdict(em, captureId, mask, judgement, deps.links, request)));
     log.error('capture judged error after repeated failures');
     return;
   }
@@ -67,7 +69,7 @@ export async function analyzeCapture(job: PgBoss.JobWithMetadata<unknown>, deps:
       log.warn({ err: error }, 'object store unavailable; the job will retry');
       throw error;
     }
-    await wakeMailSender(deps, countVerdict(deps, 'error', await recordVerdict(em, captureId, mask, errorJudgement(`The stored capture cannot be read: ${(error as Error).message}`, ENGINE_VERSION), deps.links)));
+    await wakeMailSender(deps, countVerdict(deps, 'error', await recordVerdict(em, captureId, mask, errorJudgement(`The stored capture cannot be read: ${(error as Error).message}`, ENGINE_VERSION), deps.links, request)));
     return;
   }
   const started = performance.now();
@@ -75,7 +77,7 @@ export async function analyzeCapture(job: PgBoss.JobWithMetadata<unknown>, deps:
     if (error instanceof ComputePoolBusyError || error instanceof ComputeThreadError) log.warn({ err: error }, 'analysis thread unavailable; the job will retry');
     throw error;
   });
-  const result = countVerdict(deps, judgement.outcome, await recordVerdict(em, captureId, mask, judgement, deps.links));
+  const result = countVerdict(deps, judgement.outcome, await recordVerdict(em, captureId, mask, judgement, deps.links, request));
   deps.judging?.analysisTimed(judgement.outcome, (performance.now() - started) / 1000);
   // After the verdict: a plot stored for a verdict that never committed would only be unused. Advisory, like drift.
   if (run?.plot) await writeStoredPlot(deps.objectStore, run.plot.identity, run.plot.stored);

@@ -8,7 +8,7 @@ import { User } from './user.entity.js';
  * A CI token scoped to one project. Only the SHA-256 of the secret is stored; the short
  * public prefix finds the row without scanning hashes.
  */
-export class ApiToken extends BaseEntity<'scopes' | 'lastUsedAt' | 'revokedAt'> {
+export class ApiToken extends BaseEntity<'scopes' | 'lastUsedAt' | 'revokedAt' | 'expiresAt'> {
   project!: Project;
   name!: string;
   prefix!: string;
@@ -17,6 +17,8 @@ export class ApiToken extends BaseEntity<'scopes' | 'lastUsedAt' | 'revokedAt'> 
   createdBy!: User;
   lastUsedAt: Date | null = null;
   revokedAt: Date | null = null;
+  /** After this instant the token is refused (null: it never expires). */
+  expiresAt: Date | null = null;
 }
 
 export const ApiTokenSchema = new EntitySchema<ApiToken, BaseEntity>({
@@ -31,5 +33,6 @@ export const ApiTokenSchema = new EntitySchema<ApiToken, BaseEntity>({
     createdBy: { kind: 'm:1', entity: () => User },
     lastUsedAt: { type: 'datetime', nullable: true },
     revokedAt: { type: 'datetime', nullable: true },
+    expiresAt: { type: 'datetime', nullable: true },
   },
 });

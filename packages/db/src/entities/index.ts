@@ -1,3 +1,4 @@
+import { AccountLinkSchema } from './account-link.entity.js';
 import { ApiTokenSchema } from './api-token.entity.js';
 import { AuditEventSchema } from './audit-event.entity.js';
 import { BuildSchema } from './build.entity.js';
@@ -18,6 +19,7 @@ import { UserSchema } from './user.entity.js';
 import { VerdictSchema } from './verdict.entity.js';
 import { WaiverSchema } from './waiver.entity.js';
 
+export * from './account-link.entity.js';
 export * from './api-token.entity.js';
 export * from './audit-event.entity.js';
 export * from './base.js';
@@ -43,5 +45,5 @@ export const entitySchemas = [
   UserSchema, ProjectSchema, MembershipSchema, TargetSchema, TestCaseSchema, MaskRevisionSchema,
   BuildSchema, CaptureSchema, VerdictSchema, CheckResultSchema, FindingSchema, CommentSchema,
   WaiverSchema, ApiTokenSchema, AuditEventSchema, NotificationSchema, ImpactRunSchema,
-  RefreshSessionSchema, SignInLimitSchema,
+  RefreshSessionSchema, SignInLimitSchema, AccountLinkSchema,
 ];

@@ -2,7 +2,7 @@ import { BigIntType, EntitySchema } from '@mikro-orm/core';
 import { BaseEntity, baseProperties } from './base.js';
 
 /** One firmware product line. */
-export class Project extends BaseEntity<'description' | 'driftThresholdDb' | 'driftWindow' | 'storageQuotaBytes'> {
+export class Project extends BaseEntity<'description' | 'driftThresholdDb' | 'driftWindow' | 'storageQuotaBytes' | 'archivedAt'> {
   key!: string;
   name!: string;
   description = '';
@@ -15,6 +15,8 @@ export class Project extends BaseEntity<'description' | 'driftThresholdDb' | 'dr
    * (EARMARK_PROJECT_QUOTA_BYTES), 0: unlimited for this project (domain lifecycle/storage-quota.ts).
    */
   storageQuotaBytes: number | null = null;
+  /** When an administrator archived it: it leaves the project lists and accepts no uploads; admins still read it. */
+  archivedAt: Date | null = null;
 }
 
 export const ProjectSchema = new EntitySchema<Project, BaseEntity>({
@@ -27,5 +29,6 @@ export const ProjectSchema = new EntitySchema<Project, BaseEntity>({
     driftThresholdDb: { type: 'double', default: 1 },
     driftWindow: { type: 'integer', default: 10 },
     storageQuotaBytes: { type: new BigIntType('number'), nullable: true },
+    archivedAt: { type: 'datetime', nullable: true },
   },
 });

@@ -1,7 +1,7 @@
 import { EntitySchema } from '@mikro-orm/core';
 import { BaseEntity, baseProperties } from './base.js';
 
-export class User extends BaseEntity<'isAdmin' | 'disabled' | 'tokenVersion' | 'lastLoginAt'> {
+export class User extends BaseEntity<'isAdmin' | 'disabled' | 'tokenVersion' | 'lastLoginAt' | 'awaitingPassword'> {
   email!: string;
   displayName!: string;
   passwordHash!: string;
@@ -10,6 +10,8 @@ export class User extends BaseEntity<'isAdmin' | 'disabled' | 'tokenVersion' | '
   /** Bumped on sign-out and password change; refresh tokens carry it, so old ones die. */
   tokenVersion = 0;
   lastLoginAt: Date | null = null;
+  /** Invited but has not set a password through the invitation link yet: cannot sign in. */
+  awaitingPassword = false;
 }
 
 export const UserSchema = new EntitySchema<User, BaseEntity>({
@@ -24,5 +26,6 @@ export const UserSchema = new EntitySchema<User, BaseEntity>({
     disabled: { type: 'boolean', default: false },
     tokenVersion: { type: 'integer', default: 0 },
     lastLoginAt: { type: 'datetime', nullable: true },
+    awaitingPassword: { type: 'boolean', default: false },
   },
 });

@@ -13,6 +13,8 @@ import { Migration20261202190000 } from './migration-20261202190000.js';
 import { Migration20261202190100 } from './migration-20261202190100.js';
 import { Migration20261202220200 } from './migration-20261202220200.js';
 import { Migration20261203030000 } from './migration-20261203030000.js';
+import { Migration20261203060000 } from './migration-20261203060000.js';
+import { Migration20261203060100 } from './migration-20261203060100.js';
 
 /** Every migration, oldest first. Add each new file here (see DEVELOPERS.md). */
 export const migrationsList: MigrationObject[] = [
@@ -30,4 +32,6 @@ export const migrationsList: MigrationObject[] = [
   { name: 'migration-20261202190100', class: Migration20261202190100 },
   { name: 'migration-20261202220200', class: Migration20261202220200 },
   { name: 'migration-20261203030000', class: Migration20261203030000 },
+  { name: 'migration-20261203060000', class: Migration20261203060000 },
+  { name: 'migration-20261203060100', class: Migration20261203060100 },
 ];

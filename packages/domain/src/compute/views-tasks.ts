@@ -15,7 +15,7 @@ export interface UploadInspection {
 /** The tasks of `views.thread.ts`: their inputs and answers, shared by the callers and the thread. */
 export interface ViewsTasks {
   inspectUpload: { input: { bytes: Uint8Array; encoding: { kind: 'wav' } | { kind: 'raw-float32'; sampleRate: number; channels: number } }; output: UploadInspection };
-  renderPlot: { input: { bytes: Uint8Array; format: StoredCaptureFormat; settings: JudgingSettings; checks: MaskCheck[]; columns: number; channel: number }; output: CapturePlotCore };
+  renderPlot: { input: { bytes: Uint8Array; format: StoredCaptureFormat; settings: JudgingSettings; checks: MaskCheck[]; columns: number; channel: number; checkId?: string | null }; output: CapturePlotCore };
   renderCaptureWav: { input: { bytes: Uint8Array; format: StoredCaptureFormat; kind: 'capture' | 'residual'; stimulus: StimulusSpec | null }; output: Uint8Array };
   renderStimulusWav: { input: { spec: StimulusSpec }; output: { wav: Uint8Array; sha256: string } };
 }

@@ -24,7 +24,7 @@ const tasks = {
   },
   renderPlot(input: ViewsTasks['renderPlot']['input']): CapturePlotCore {
     const audio = decodeCapture(input.bytes, input.format);
-    return renderCapturePlot(audio, JudgingSettings.parse(input.settings), input.checks.map((c) => MaskCheck.parse(c)), { columns: input.columns, channel: input.channel });
+    return renderCapturePlot(audio, JudgingSettings.parse(input.settings), input.checks.map((c) => MaskCheck.parse(c)), { columns: input.columns, channel: input.channel, checkId: input.checkId ?? null });
   },
   /** The capture as 32-bit float WAV, or its residual against the stimulus as played. */
   renderCaptureWav(input: ViewsTasks['renderCaptureWav']['input']): Uint8Array {

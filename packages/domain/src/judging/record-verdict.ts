@@ -27,7 +27,8 @@ export interface RecordDeps {
  * Writes a verdict with its check results, the capture's status, the build's aggregate,
  * findings for failing checks and, once the build's status is final and failing, its one
  * build-failure mail (judging/build-failure-notice.ts) — all in one
- * transaction. Idempotent: a second call for the same capture, revision and engine version writes nothing.
+ * transaction. Idempotent: a second call for the same capture, revision and engine version writes nothing;
+ * a re-analysis a person asked for (`reanalysisId`) writes once per request, its basis naming it.
  */
 export async function recordVerdict(
   em: EntityManager,
@@ -35,14 +36,19 @@ export async function recordVerdict(
   mask: MaskRevision | null,
   analysed: Judgement,
   deps: RecordDeps,
+  options: { reanalysisId?: string } = {},
 ): Promise<RecordResult> {
+  const requestMark = options.reanalysisId ? `;reanalysis=${options.reanalysisId}` : '';
   try {
     return await em.transactional(async (tx) => {
       const capture = await tx.findOneOrFail(Capture, { id: captureId }, { populate: ['project', 'build', 'testCase', 'target'] });
       // The build row lock serialises captures of one build, so the aggregate and the
       // "turned failed" transition are decided once.
       const build = await tx.findOneOrFail(Build, { id: capture.build.id }, { lockMode: LockMode.PESSIMISTIC_WRITE });
-      if (await tx.findOne(Verdict, { capture, maskRevision: mask ? mask.id : null, engineVersion: analysed.engineVersion })) return { written: false, notificationsQueued: 0 };
+      const already = requestMark
+        ? await tx.findOne(Verdict, { capture, waiverBasis: { $like: `%${requestMark}` } })
+        : await tx.findOne(Verdict, { capture, maskRevision: mask ? mask.id : null, engineVersion: analysed.engineVersion });
+      if (already) return { written: false, notificationsQueued: 0 };
       // A retention run may have purged the audio while this analysis ran (it holds the row until it
       // commits): its verdicts stand, and a re-evaluation that lost the race must not replace them
       // with "cannot be read". Purged captures always have a verdict: retention skips unjudged ones.
@@ -60,7 +66,7 @@ export async function recordVerdict(
         engineVersion: judgement.engineVersion,
         previous: replaced,
         // Which waivers judged it: a waiver approved, revoked or expired later re-judges it under another basis (rejudge-waivers).
-        waiverBasis: waiverBasis(waivers),
+        waiverBasis: waiverBasis(waivers) + requestMark,
         // The settings judging read (the revision's), so the verdict stays explainable after they change.
         settings: settingsToRecord(capture.testCase, mask),
       });
@@ -100,8 +106,8 @@ export async function recordVerdict(
 const finite = (v: number | null) => (v !== null && Number.isFinite(v) ? v : null);
 
 /**
- * One open finding per test case, target and check: a check that keeps failing across
- * builds updates its finding (newest capture) instead of opening another. A waived check
+ * One open finding per branch, test case, target and check: a check that keeps failing across
+ * builds of a branch updates its finding (newest capture) instead of opening another. A waived check
  * updates its waiver's finding (or the accepted deviation of this target) and opens one
  * as an accepted deviation only when there is none.
  */
@@ -121,7 +127,8 @@ async function openOrUpdateFinding(
       project: capture.project,
       checkId,
       state: { $in: waived ? ['accepted_deviation', 'open', 'investigating'] : ['open', 'investigating'] },
-      capture: { testCase: capture.testCase, target: capture.target },
+      // Per branch: a feature branch's failure never moves main's finding off main (triage filters by branch).
+      capture: { testCase: capture.testCase, target: capture.target, build: { branch: capture.build.branch } },
     }, { orderBy: { updatedAt: 'desc' } }));
   if (existing) {
     existing.capture = capture;

@@ -2,7 +2,7 @@ import { CapturePlot, PlotQuery, type JudgingSettings, type MaskCheck } from '@e
 import { ENGINE_VERSION, type DecodedAudio } from '@earmark/dsp';
 import type { ObjectStore } from '@earmark/platform';
 import { z } from 'zod';
-import { plotChannel, renderCapturePlot, type CapturePlotCore } from './render-capture-plot.js';
+import { plotChannel, plotCheck, renderCapturePlot, type CapturePlotCore } from './render-capture-plot.js';
 import type { PlayedStimulus } from '../judging/stimulus-cache.js';
 
 /**
@@ -23,13 +23,15 @@ export interface PlotIdentity {
   columns: number;
   /** Resolved already (`plotChannel`), so "the default" and its number share one entry. */
   channel: number;
+  /** The spectral check drawn, resolved already (`plotCheck`); null when the mask has none. */
+  checkId: string | null;
 }
 
 /** Where every stored plot lives; one folder per capture, so its plots can be deleted together (retention). */
 export const PLOT_CACHE_PREFIX = 'plot-cache/';
 export const plotPrefixOf = (captureId: string): string => `${PLOT_CACHE_PREFIX}${captureId}/`;
 
-export const plotKey = (p: PlotIdentity): string => `${plotPrefixOf(p.captureId)}${ENGINE_VERSION}-${p.maskRevisionId ?? 'none'}-${p.columns}-${p.channel}.json`;
+export const plotKey = (p: PlotIdentity): string => `${plotPrefixOf(p.captureId)}${ENGINE_VERSION}-${p.maskRevisionId ?? 'none'}-${p.checkId ?? 'none'}-${p.columns}-${p.channel}.json`;
 
 /** The stored plot, or null when there is none (or it cannot be read: the store is only a cache). */
 export async function readStoredPlot(objectStore: ObjectStore, identity: PlotIdentity): Promise<StoredPlot | null> {
@@ -70,6 +72,7 @@ export function renderDefaultPlot(input: DefaultPlotInput): { identity: PlotIden
     maskRevisionId: input.maskRevisionId,
     columns: DEFAULT_PLOT_COLUMNS,
     channel: plotChannel(undefined, input.settings, input.audio.channels.length),
+    checkId: plotCheck(input.checks, null)?.id ?? null,
   };
   try {
     return { identity, stored: { plot: renderCapturePlot(input.audio, input.settings, input.checks, identity, input.played) } };

@@ -14,6 +14,10 @@ export interface DriftMarginRow {
   margin: number | null;
   unit: string | null;
   revision: number | null;
+  /** The check's kind and mask label, and where it was worst (the overview names failing checks with them). */
+  kind: string;
+  label: string | null;
+  worst_hz: number | null;
 }
 
 export interface DriftWindow {
@@ -42,7 +46,8 @@ export function driftMargins(em: EntityManager, project: Project, { branch, wind
         order by c.build_id, c.test_case_id, c.target_id, c.created_at desc),
      newest as (${newestVerdictsCte('cell')})
      select win.sha, win.created_at, cell.id as capture_id, tc.key as test_case, t.key as target,
-            cr.check_id, cr.pass, cr.margin, cr.details->>'unit' as unit, mr.revision
+            cr.check_id, cr.pass, cr.margin, cr.details->>'unit' as unit, mr.revision,
+            cr.kind, cr.details->>'label' as label, cr.worst_hz
        from newest n
        join cell on cell.id = n.capture_id
        join win on win.id = cell.build_id

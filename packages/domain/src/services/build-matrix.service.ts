@@ -38,6 +38,8 @@ export async function buildMatrix(em: EntityManager, project: Project, sha: stri
       captureId: capture.id,
       outcome: outcomeOf(verdict),
       failing: (verdict?.checks ?? []).filter((c) => !c.pass).sort((a, b) => (a.margin ?? 0) - (b.margin ?? 0)),
+      // An error cell says why in words: the verdict's reason, else the first check that could not be evaluated.
+      reason: verdict?.outcome === 'error' ? (verdict.reason ?? verdict.checks.find((c) => c.error)?.error ?? null) : null,
       previous: prior ? outcomeOf(before!.verdicts.get(prior.id)) : null,
       waiver: verdict?.waiver ?? null,
     };

@@ -17,6 +17,7 @@ import { actorName, type Principal } from '../actor.js';
 import { storedSettingsFor } from '../judging/judging-settings.js';
 import { maskInForce } from '../repositories/masks.js';
 import { assertWithinQuota } from '../lifecycle/storage-quota.js';
+import { assertAcceptsUploads } from '../rules/project-archive.js';
 
 /** A capture upload as the HTTP edge parsed it: bytes, how to read them, and where they go. */
 export interface CaptureUpload {
@@ -61,6 +62,7 @@ export class CaptureIngestService {
 
   /** @param resolved the test case and target `resolveCaseAndTarget` already found for this upload (raw bodies), saving their look-up */
   async ingest(em: EntityManager, project: Project, sha: string, upload: CaptureUpload, principal: Principal, resolved?: ResolvedDestination): Promise<IngestResult> {
+    assertAcceptsUploads(project);
     const { testCase, target } =
       resolved && resolved.testCase.key === upload.testCase && (!upload.target || resolved.target.key === upload.target) ? resolved : await this.resolveCaseAndTarget(em, project, upload);
     const { idempotencyKey } = upload;

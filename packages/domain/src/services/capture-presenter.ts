@@ -30,6 +30,7 @@ export async function latestVerdicts(em: EntityManager, captures: Capture[]): Pr
       waiver: waiverMarkOf(c.details),
       ...(Array.isArray(c.details.warnings) && c.details.warnings.length ? { warnings: c.details.warnings.filter((w): w is string => typeof w === 'string') } : {}),
       ...(typeof c.details.error === 'string' ? { error: c.details.error } : {}),
+      channel: typeof c.details.channel === 'number' ? c.details.channel : null,
     });
     byVerdict.set(c.verdict.id, list);
   }

@@ -1,16 +1,16 @@
 import { Readable } from 'node:stream';
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { JudgingSettings, MaskCheck, type AudioKind, type CaptureDetail, type CapturePlot, type PlotQuery } from '@earmark/contracts';
+import { JudgingSettings, MaskCheck, RAW_FLOAT32_MEDIA_TYPE, type AudioKind, type CaptureDetail, type CapturePlot, type PlotQuery } from '@earmark/contracts';
 import { Capture, type MaskRevision, type Project, type Verdict } from '@earmark/db';
 import { type ObjectStore } from '@earmark/platform';
 import { decodeRefusalOf, plotRefusalOf } from '../compute/compute-errors.js';
 import { ownBuffer } from '../compute/views-compute.js';
 import { DEFAULT_MAX_PLOT_SAMPLES, type ViewsCompute } from '../compute/views-tasks.js';
-import { GoneError, NotFoundError, UnsupportedCaptureError } from '../errors.js';
+import { GoneError, NotFoundError, UnsupportedCaptureError, ValidationError } from '../errors.js';
 import { assertAudioStored } from '../lifecycle/purged-capture.js';
 import { storedSettingsFor } from '../judging/judging-settings.js';
 import { plotKey, readStoredPlot, writeStoredPlot, type PlotIdentity, type StoredPlot } from '../plots/plot-store.js';
-import { plotChannel, type CapturePlotCore } from '../plots/render-capture-plot.js';
+import { isSpectralCheck, plotChannel, plotCheck, type CapturePlotCore } from '../plots/render-capture-plot.js';
 import { SingleFlight } from '../util/single-flight.js';
 import { storedFormatOf } from '../judging/judge-capture.js';
 import { CaptureAudioLoader } from './capture-audio.js';
@@ -92,7 +92,7 @@ export class CaptureViewService {
    */
   async plot(em: EntityManager, project: Project, id: string, q: PlotQuery): Promise<CapturePlot> {
     const capture = await this.load(em, project, id);
-    const main = await this.storedPlot(capture, await newestVerdict(em, capture, ['maskRevision']), q.columns, q.channel);
+    const main = await this.storedPlot(capture, await newestVerdict(em, capture, ['maskRevision']), q.columns, q.channel, { id: q.check, strict: true });
     const overlay = q.overlay === 'last-passing' ? await this.overlayFor(em, project, capture, main, q.columns) : null;
     return { ...main, overlay };
   }
@@ -102,7 +102,8 @@ export class CaptureViewService {
     if (!passing) return null;
     const other = await this.load(em, project, passing.captureId);
     try {
-      const plot = await this.storedPlot(other, await newestVerdict(em, other, ['maskRevision']), columns, main.channel);
+      // The same check when the last pass was judged with it too, else its mask's default: the curve is what is compared.
+      const plot = await this.storedPlot(other, await newestVerdict(em, other, ['maskRevision']), columns, main.channel, { id: main.checkId ?? undefined, strict: false });
       // Curves in different units (one drew its level, the other its transfer) do not share an axis.
       return plot.unit === main.unit ? { captureId: other.id, buildSha: passing.buildSha, spectrum: plot.spectrum } : null;
     } catch (error) {
@@ -112,11 +113,32 @@ export class CaptureViewService {
     }
   }
 
-  /** The stored plot of a capture, computed and stored first on a miss. @throws UnsupportedCaptureError (stored refusal) */
-  private async storedPlot(capture: Capture, verdict: Verdict | null, columns: number, askedChannel: number | undefined): Promise<CapturePlotCore> {
+  /**
+   * The stored plot of a capture, computed and stored first on a miss.
+   * @throws UnsupportedCaptureError (stored refusal); ValidationError when `strict` and the check asked for is no spectral check of the mask
+   */
+  private async storedPlot(
+    capture: Capture,
+    verdict: Verdict | null,
+    columns: number,
+    askedChannel: number | undefined,
+    askedCheck: { id: string | undefined; strict: boolean },
+  ): Promise<CapturePlotCore> {
     const settings = JudgingSettings.parse(verdict?.settings ?? storedSettingsFor(capture.testCase, verdict?.maskRevision ?? null));
     const mask = verdict?.maskRevision ?? null;
-    const identity: PlotIdentity = { captureId: capture.id, maskRevisionId: mask?.id ?? null, columns, channel: plotChannel(askedChannel, settings, capture.channelCount) };
+    const checks = (mask?.checks ?? []).map((c) => MaskCheck.parse(c));
+    let check = plotCheck(checks, askedCheck.id);
+    if (!check && askedCheck.id !== undefined) {
+      if (askedCheck.strict) {
+        const spectral = checks.filter(isSpectralCheck).map((c) => c.id);
+        throw new ValidationError(
+          `Check "${askedCheck.id}" is not a spectral check of the mask capture ${capture.id} was judged against; ${spectral.length ? `its spectral checks are ${spectral.join(', ')}` : 'that mask has no spectral check'}.`,
+          [{ path: 'check', message: spectral.length ? `choose one of ${spectral.join(', ')}` : 'the mask has no spectral check' }],
+        );
+      }
+      check = plotCheck(checks, undefined);
+    }
+    const identity: PlotIdentity = { captureId: capture.id, maskRevisionId: mask?.id ?? null, columns, channel: plotChannel(askedChannel, settings, capture.channelCount), checkId: check?.id ?? null };
     const stored = (await readStoredPlot(this.objectStore, identity)) ?? (await this.computing.run(plotKey(identity), () => this.computePlot(capture, identity, settings, mask)));
     if ('refusal' in stored) throw new UnsupportedCaptureError(stored.refusal.detail, stored.refusal.code);
     return stored.plot;
@@ -140,7 +162,7 @@ export class CaptureViewService {
     const checks = (mask?.checks ?? []).map((c) => MaskCheck.parse(c));
     let stored: StoredPlot;
     try {
-      const input = { bytes, format: storedFormatOf(capture), settings, checks, columns: identity.columns, channel: identity.channel };
+      const input = { bytes, format: storedFormatOf(capture), settings, checks, columns: identity.columns, channel: identity.channel, checkId: identity.checkId };
       stored = { plot: await this.compute.run('renderPlot', input, ownBuffer(bytes)) };
     } catch (error) {
       const refusal = plotRefusalOf(error, capture.id);
@@ -149,6 +171,19 @@ export class CaptureViewService {
     }
     await writeStoredPlot(this.objectStore, identity, stored);
     return stored;
+  }
+
+  /**
+   * The capture exactly as uploaded, byte for byte from the object store, with a file name people
+   * can keep (`<test case>_<target>_<sha7>.wav`, `.f32` for a raw float upload).
+   * @throws GoneError (410) when the retention policy removed it; NotFoundError; ServiceUnavailableError (503)
+   */
+  async original(em: EntityManager, project: Project, id: string): Promise<{ body: Buffer; contentType: string; filename: string }> {
+    const capture = await this.load(em, project, id);
+    const bytes = await this.audioLoader.bytes(capture);
+    const raw = storedFormatOf(capture).container === 'raw-f32le';
+    const filename = `${capture.testCase.key}_${capture.target.key}_${capture.build.sha.slice(0, 7)}.${raw ? 'f32' : 'wav'}`;
+    return { body: bytes, contentType: raw ? RAW_FLOAT32_MEDIA_TYPE : 'audio/wav', filename };
   }
 
   /**

@@ -12,6 +12,8 @@ export function createLinks(publicUrl: string) {
     findingsPage: (project: string) => `${base}/projects/${project}/findings`,
     /** The project page's mail section, where a member switches build mail on or off. */
     settingsPage: (project: string) => `${base}/projects/${project}#mail`,
+    /** The one-time page of an invitation or password reset: the secret is the last path segment. */
+    accountLinkPage: (secret: string) => `${base}/set-password/${secret}`,
   };
 }
 export type Links = ReturnType<typeof createLinks>;

@@ -1,7 +1,7 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { AnalysisSettings, CAPTURE_PURGED, StimulusSpec, type DeriveMaskRequest, type DeriveMaskResponse } from '@earmark/contracts';
+import { AnalysisSettings, CAPTURE_PURGED, StimulusSpec, type DeriveMaskRequest, type DeriveMaskResponse, type DeriveWarning, type GoldenOutlierDto } from '@earmark/contracts';
 import { Capture, type Project, type TestCase } from '@earmark/db';
-import { DEFAULT_YIELD_GUARD_BANDS_DB, ENGINE_VERSION, deriveEnvelope, estimateYield, stimulusAsPlayed, type YieldEstimate } from '@earmark/dsp';
+import { DEFAULT_YIELD_GUARD_BANDS_DB, ENGINE_VERSION, deriveEnvelope, estimateYield, findGoldenOutliers, stimulusAsPlayed, type YieldEstimate } from '@earmark/dsp';
 import { GoneError, ValidationError } from '../errors.js';
 import type { CaptureAudioLoader } from './capture-audio.js';
 
@@ -17,7 +17,7 @@ export class MaskDerivationService {
   constructor(private readonly audio: CaptureAudioLoader) {}
 
   async derive(em: EntityManager, project: Project, testCase: TestCase, req: DeriveMaskRequest): Promise<DeriveMaskResponse> {
-    const captures = await em.find(Capture, { id: { $in: req.captureIds }, project, testCase });
+    const captures = await em.find(Capture, { id: { $in: req.captureIds }, project, testCase }, { populate: ['target'] });
     const found = new Map(captures.map((c) => [c.id, c]));
     const missing = req.captureIds.map((id, i) => ({ id, i })).filter(({ id }) => !found.has(id));
     if (missing.length > 0) {
@@ -73,8 +73,15 @@ export class MaskDerivationService {
       if (error instanceof RangeError) throw new ValidationError(`The limits cannot be derived: ${error.message}`, [{ path: 'body', message: error.message }]);
       throw error;
     }
+    const targetOf = (c: Capture) => c.target.key;
+    const outliers: GoldenOutlierDto[] = findGoldenOutliers(derived.hz, derived.curves, { bandsPerOctave: smoothing }).map((o) => {
+      const capture = ordered[o.index] as Capture;
+      return { captureId: capture.id, target: targetOf(capture), regions: o.regions, worst: o.worst };
+    });
     return {
       yieldEstimate: yieldOf(derived.hz, derived.curves, req, smoothing),
+      outliers,
+      warnings: mixedTargetWarnings(ordered.map(targetOf)),
       check: derived.check,
       stats: {
         captures: ordered.length,
@@ -114,4 +121,22 @@ function yieldOf(hz: Float64Array, curves: Float64Array[], req: DeriveMaskReques
   const steps = Math.max(DEFAULT_YIELD_GUARD_BANDS_DB.length - 1, Math.ceil(req.guardDb * 10 - 1e-9));
   const guardBandsDb = Array.from({ length: steps + 1 }, (_, i) => i / 10);
   return estimateYield(hz, curves, { k: req.k, guardDb: req.guardDb, maxSegments: req.maxSegments, guardBandsDb, bandsPerOctave: smoothing });
+}
+
+/**
+ * Golden captures of several targets are derived from anyway (one mask may deliberately cover
+ * them), but never silently: the target-to-target difference then counts as unit spread.
+ */
+export function mixedTargetWarnings(targets: readonly string[]): DeriveWarning[] {
+  const counts = new Map<string, number>();
+  for (const t of targets) counts.set(t, (counts.get(t) ?? 0) + 1);
+  if (counts.size < 2) return [];
+  const keys = [...counts.keys()].sort();
+  return [
+    {
+      code: 'mixed-targets',
+      targets: keys,
+      message: `The golden captures come from ${keys.length} targets: ${keys.map((k) => `${k} (${counts.get(k)})`).join(', ')}. Their differences count as unit-to-unit spread and widen the limits; derive from one target unless one mask should cover them all.`,
+    },
+  ];
 }

@@ -19,6 +19,7 @@ import { ConflictError, NotFoundError } from '../errors.js';
 import { assertMayDecide, assertMayEditDraft, assertMaySubmit, contributorsOf, maskUnderReview, withContributor } from '../rules/four-eyes.js';
 import { normalizedSettings } from '../judging/judging-settings.js';
 import { parseWith } from '../validate.js';
+import { assertAcceptanceChecks, withoutSelfTests } from '../rules/acceptance-checks.js';
 import type { Links } from './links.js';
 import { changedFields } from './audit.service.js';
 import { MASK_POPULATE, maskSubject, recordMaskTransition, type MaskService } from './mask.service.js';
@@ -133,6 +134,7 @@ export class MaskWorkflowService {
     const before = editableFields(mask);
     if (input.checks !== undefined) {
       mask.checks = parseWith(MaskDocument, { checks: input.checks }, 'body').checks;
+      assertAcceptanceChecks(mask.checks);
     }
     if (input.note !== undefined) {
       mask.note = input.note;
@@ -166,6 +168,8 @@ export class MaskWorkflowService {
       const mask = await this.masks.get(tx, testCase, revision);
       assertDraft(mask, 'submitted');
       assertMaySubmit(mask, actor);
+      // A draft saved before the self-test rule must lose the self-test before review.
+      assertAcceptanceChecks(mask.checks);
       moveTo(MASK_REVISION, mask, 'in_review', 'person');
       mask.submittedAt = new Date();
       recordMaskTransition(tx, project, mask, { actor, action: 'mask.submit', from: 'draft', to: 'in_review' });
@@ -209,13 +213,16 @@ export class MaskWorkflowService {
   /** Any revision → a new draft with the same checks and settings, remembering where it came from. */
   async copy(em: EntityManager, project: Project, testCase: TestCase, revision: number, input: CopyMaskRevisionRequest, author: User): Promise<MaskRevision> {
     const source = await this.masks.get(em, testCase, revision);
+    // A revision stored before the self-test rule is copied without it; the note says so.
+    const { kept, left } = withoutSelfTests(source.checks as { id?: unknown }[]);
+    const leftOut = left.length ? ` (left out the engine self-test ${left.map((id) => `“${id}”`).join(', ')}: not an acceptance check)` : '';
     const draft = await this.masks.createDraft(
       em,
       project,
       testCase,
       {
-        checks: source.checks,
-        note: input.note ?? `Copy of revision ${source.revision}${source.note ? `: ${source.note}` : ''}`.slice(0, 4000),
+        checks: kept,
+        note: (input.note ?? `Copy of revision ${source.revision}${source.note ? `: ${source.note}` : ''}`).concat(leftOut).slice(0, 4000),
         target: input.target === undefined ? (source.target?.key ?? null) : input.target,
       },
       author,

@@ -4,6 +4,7 @@ import { MaskRevision, Target, User, testCaseSettings, type MaskRevisionState, t
 import { ConflictError, NotFoundError, ValidationError } from '../errors.js';
 import { assertMayDecide, contributorsOf, maskUnderReview } from '../rules/four-eyes.js';
 import { parseWith } from '../validate.js';
+import { assertAcceptanceChecks } from '../rules/acceptance-checks.js';
 import { changedFields, recordAudit, type AuditEntry } from './audit.service.js';
 import type { Links } from './links.js';
 import { mailMaskDecision } from './mask-decision-mail.js';
@@ -129,6 +130,7 @@ export class MaskService {
     settings: StoredJudgingSettings = testCaseSettings(testCase),
   ): Promise<MaskRevision> {
     const document = parseWith(MaskDocument, { checks: input.checks }, 'body');
+    assertAcceptanceChecks(document.checks);
     const target = await this.resolveTarget(em, project, input.target);
     const last = await em.findOne(MaskRevision, { testCase }, { orderBy: { revision: 'desc' } });
     const revision = em.create(MaskRevision, {

@@ -5,6 +5,7 @@ import type { Principal } from '../actor.js';
 import { actorName } from '../actor.js';
 import { ConflictError, NotFoundError } from '../errors.js';
 import { recordAudit } from './audit.service.js';
+import { assertKeepsAQaManager } from '../rules/last-admin.js';
 import { effectiveQuota, storageUsedBytes, type EffectiveQuota } from '../lifecycle/storage-quota.js';
 
 interface ProjectCounts {
@@ -41,6 +42,7 @@ function toDto(project: Project, myRole: ProjectDto['myRole'], counts: ProjectCo
     storageUsedBytes: storage.usedBytes,
     storageQuotaBytes: storage.quota.bytes,
     storageQuotaSource: storage.quota.source,
+    archivedAt: project.archivedAt?.toISOString() ?? null,
   };
 }
 
@@ -52,12 +54,17 @@ export class ProjectService {
     return { usedBytes: used.get(project.id) ?? 0, quota: effectiveQuota(project, this.storageQuotaDefaultBytes) };
   }
 
-  /** Projects the user can see: all for admins, their memberships otherwise. */
-  async listFor(em: EntityManager, principal: Extract<Principal, { kind: 'user' }>): Promise<ProjectDto[]> {
+  /**
+   * Projects the user can see: all for admins, their memberships otherwise. Archived projects
+   * leave the list; admins ask for them with `includeArchived` (the admin area).
+   */
+  async listFor(em: EntityManager, principal: Extract<Principal, { kind: 'user' }>, includeArchived = false): Promise<ProjectDto[]> {
     const roleByProject = new Map(principal.memberships.map((m) => [m.project.id, m.role] as const));
-    const projects = principal.user.isAdmin
-      ? await em.find(Project, {}, { orderBy: { name: 'asc' } })
-      : principal.memberships.map((m) => m.project).sort((a, b) => a.name.localeCompare(b.name));
+    const projects = (
+      principal.user.isAdmin
+        ? await em.find(Project, {}, { orderBy: { name: 'asc' } })
+        : principal.memberships.map((m) => m.project).sort((a, b) => a.name.localeCompare(b.name))
+    ).filter((p) => !p.archivedAt || (includeArchived && principal.user.isAdmin));
     const ids = projects.map((p) => p.id);
     const [counts, used] = [await countsFor(em, ids), await storageUsedBytes(em, ids)];
     return projects.map((p) => toDto(p, roleByProject.get(p.id) ?? 'admin', counts.get(p.id), this.storage(p, used)));
@@ -75,6 +82,15 @@ export class ProjectService {
    * Lowering the quota below what is stored refuses only the next uploads; nothing stored is removed.
    */
   async update(em: EntityManager, project: Project, input: UpdateProjectRequest, principal: Principal): Promise<ProjectDto> {
+    if (input.archived !== undefined && input.archived !== (project.archivedAt !== null)) {
+      recordAudit(em, { actor: actorName(principal), action: input.archived ? 'project.archive' : 'project.restore', subject: `project:${project.key}`, project });
+      project.archivedAt = input.archived ? new Date() : null;
+    }
+    if (input.name !== undefined && input.name !== project.name) {
+      recordAudit(em, { actor: actorName(principal), action: 'project.rename', subject: `project:${project.key}`, project, change: { before: { name: project.name }, after: { name: input.name } } });
+      project.name = input.name;
+    }
+    await em.flush();
     if (input.storageQuotaBytes !== undefined && input.storageQuotaBytes !== project.storageQuotaBytes) {
       recordAudit(em, {
         actor: actorName(principal),
@@ -112,6 +128,7 @@ export class ProjectService {
     // A new membership, or a new role, starts with the role's build-mail default; the member may change it after.
     if (!membership) membership = em.create(Membership, { project, user, role, subscribed: subscribesToBuildMailByDefault(role) });
     else if (membership.role !== role) {
+      assertKeepsAQaManager({ role: membership.role, email: user.email }, role, await em.count(Membership, { project, role: 'qa_manager' }), project.key);
       membership.role = role;
       membership.subscribed = subscribesToBuildMailByDefault(role);
     }
@@ -124,6 +141,7 @@ export class ProjectService {
   async removeMember(em: EntityManager, project: Project, userId: string, principal: Principal): Promise<void> {
     const membership = await em.findOne(Membership, { project, user: { id: userId } }, { populate: ['user'] });
     if (!membership) throw new NotFoundError(`That user is not a member of ${project.key}.`);
+    assertKeepsAQaManager({ role: membership.role, email: membership.user.email }, null, await em.count(Membership, { project, role: 'qa_manager' }), project.key);
     recordAudit(em, { actor: actorName(principal), action: 'membership.remove', subject: `user:${membership.user.email}`, project });
     em.remove(membership);
     await em.flush();

@@ -3,7 +3,7 @@ import type { ApiTokenRow, CreateApiTokenRequest, CreatedApiToken } from '@earma
 import { ApiToken, type Project, type User } from '@earmark/db';
 import { generateTokenSecret } from '@earmark/platform';
 
-import { NotFoundError } from '../errors.js';
+import { NotFoundError, ValidationError } from '../errors.js';
 import { recordAudit } from './audit.service.js';
 
 function toRow(token: ApiToken): ApiTokenRow {
@@ -15,6 +15,7 @@ function toRow(token: ApiToken): ApiTokenRow {
     createdAt: token.createdAt.toISOString(),
     lastUsedAt: token.lastUsedAt?.toISOString() ?? null,
     revokedAt: token.revokedAt?.toISOString() ?? null,
+    expiresAt: token.expiresAt?.toISOString() ?? null,
   };
 }
 
@@ -25,7 +26,12 @@ export class TokenService {
     return tokens.map(toRow);
   }
 
-  async create(em: EntityManager, project: Project, input: CreateApiTokenRequest, creator: User): Promise<CreatedApiToken> {
+  /** @throws ValidationError when `expiresAt` is not in the future (a token born expired helps no pipeline). */
+  async create(em: EntityManager, project: Project, input: CreateApiTokenRequest, creator: User, now = new Date()): Promise<CreatedApiToken> {
+    const expiresAt = input.expiresAt ? new Date(input.expiresAt) : null;
+    if (expiresAt && expiresAt <= now) {
+      throw new ValidationError('The token would expire before it is used.', [{ path: 'body.expiresAt', message: `must be in the future (it is ${expiresAt.toISOString()})` }]);
+    }
     const secret = generateTokenSecret();
     const token = em.create(ApiToken, {
       project,
@@ -34,8 +40,9 @@ export class TokenService {
       secretHash: secret.hash,
       scopes: [...new Set(input.scopes)],
       createdBy: creator,
+      expiresAt,
     });
-    recordAudit(em, { actor: `user:${creator.email}`, action: 'token.create', subject: `token:${secret.prefix}`, project, details: { name: input.name, scopes: token.scopes } });
+    recordAudit(em, { actor: `user:${creator.email}`, action: 'token.create', subject: `token:${secret.prefix}`, project, details: { name: input.name, scopes: token.scopes, expiresAt: expiresAt?.toISOString() ?? null } });
     await em.flush();
     return { ...toRow(token), secret: secret.token };
   }

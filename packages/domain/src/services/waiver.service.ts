@@ -10,6 +10,7 @@ import { composeWaiverDecisionMail } from '../mail/waiver-decision.mail.js';
 import { composeWaiverRequestMail } from '../mail/waiver-request.mail.js';
 import { composeWaiverRevokedMail } from '../mail/waiver-revoked.mail.js';
 import { writeToOutbox } from '../mail/outbox.js';
+import { formatDay } from '../mail/mail-format.js';
 import { qaManagersOf } from '../mail/recipients.js';
 import type { Links } from './links.js';
 import { FINDING, WAIVER, moveTo } from '../rules/state-machines.js';
@@ -50,6 +51,12 @@ export function parseUntil(until: string): Date {
  * it governs at once, and so do a revocation and the sweeper's expiry, which also re-open the
  * finding (expiry mails its assignee).
  */
+/** A second request, refused in words: which waiver exists, who asked, until when (no ids; the client links to it). */
+export function existingWaiverDetail(checkId: string, waiver: Pick<Waiver, 'state' | 'createdAt' | 'expiresAt'> & { requestedBy: { email: string } }): string {
+  const standing = waiver.state === 'requested' ? 'a waiver awaiting a QA manager’s decision' : 'a waiver in force';
+  return `The ${checkId} check of this finding already has ${standing}: requested by ${waiver.requestedBy.email} on ${formatDay(waiver.createdAt)}, to run until ${formatDay(waiver.expiresAt)}. Follow that one instead of requesting another.`;
+}
+
 export class WaiverService {
   constructor(private readonly pages: Links) {}
 
@@ -77,8 +84,8 @@ export class WaiverService {
       const until = parseUntil(input.until);
       if (!(until.getTime() > Date.now())) throw new ValidationError('A waiver must run until a date in the future.', [{ path: 'body.until', message: 'must be in the future' }]);
       if (finding.state === 'fixed' || finding.state === 'not_a_defect') throw new ConflictError(`Finding ${finding.id} is ${finding.state.replaceAll('_', ' ')}; there is nothing to waive.`);
-      const pending = await tx.findOne(Waiver, { finding, $or: [{ state: 'requested' }, { state: 'approved', expiresAt: { $gt: new Date() } }] });
-      if (pending) throw new ConflictError(`Finding ${finding.id} already has a ${pending.state} waiver (${pending.id}).`);
+      const pending = await tx.findOne(Waiver, { finding, $or: [{ state: 'requested' }, { state: 'approved', expiresAt: { $gt: new Date() } }] }, { populate: ['requestedBy'] });
+      if (pending) throw new ConflictError(existingWaiverDetail(finding.checkId, pending), { code: 'waiver-exists', existing: { kind: 'waiver', id: pending.id, state: pending.state } });
       const { testCase, target } = finding.capture;
       const waiver = tx.create(Waiver, {
         project,

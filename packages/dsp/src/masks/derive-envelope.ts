@@ -52,7 +52,8 @@ export interface DerivedEnvelope {
   upperRaw: Float64Array;
   lowerRaw: Float64Array;
   /** The statistics averaged into log-spaced columns, for plotting. */
-  plot: { hz: number[]; mean: number[]; std: number[]; upperRaw: number[]; lowerRaw: number[] };
+  /** `curves`: each golden capture's curve in the same columns, in input order. */
+  plot: { hz: number[]; mean: number[]; std: number[]; upperRaw: number[]; lowerRaw: number[]; curves: number[][] };
   /** Largest |simplified − raw| over the measured frequencies, dB. */
   maxDeviationDb: { upper: number; lower: number; overall: number };
   /** Largest amount the simplified upper falls below the raw upper (lower above raw lower), dB; 0 by construction. */
@@ -270,34 +271,43 @@ export function deriveEnvelope(input: DeriveEnvelopeInput, options: DeriveEnvelo
     std,
     upperRaw,
     lowerRaw,
-    plot: decimate(hz, { mean, std, upperRaw, lowerRaw }, columns),
+    plot: decimate(hz, { mean, std, upperRaw, lowerRaw }, golden, columns),
     maxDeviationDb: { upper: devUpper, lower: devLower, overall: Math.max(devUpper, devLower) },
     maxStrayDb: Math.max(0, stray),
     worstGoldenMarginDb: worstGolden,
   };
 }
 
-/** Column means over equal steps of log frequency; empty columns are left out. */
-function decimate(hz: Float64Array, series: Record<'mean' | 'std' | 'upperRaw' | 'lowerRaw', Float64Array>, columns: number): DerivedEnvelope['plot'] {
+/** Column means over equal steps of log frequency; empty columns are left out. Each golden curve is averaged into the same columns. */
+function decimate(hz: Float64Array, series: Record<'mean' | 'std' | 'upperRaw' | 'lowerRaw', Float64Array>, curves: readonly Float64Array[], columns: number): DerivedEnvelope['plot'] {
   const first = hz[0] as number;
   const last = hz[hz.length - 1] as number;
   const step = last > first ? Math.log(last / first) / columns : 1;
-  const out: DerivedEnvelope['plot'] = { hz: [], mean: [], std: [], upperRaw: [], lowerRaw: [] };
+  // Index runs [from, to) of the non-empty columns.
+  const runs: [number, number][] = [];
   let j = 0;
   for (let c = 0; c < columns && j < hz.length; c++) {
     const edge = c === columns - 1 ? Infinity : first * Math.exp((c + 1) * step);
-    let count = 0;
-    let sumLog = 0;
-    const sums = { mean: 0, std: 0, upperRaw: 0, lowerRaw: 0 };
-    while (j < hz.length && (hz[j] as number) < edge) {
-      sumLog += Math.log(hz[j] as number);
-      for (const key of ['mean', 'std', 'upperRaw', 'lowerRaw'] as const) sums[key] += series[key][j] as number;
-      count++;
-      j++;
-    }
-    if (count === 0) continue;
-    out.hz.push(Math.exp(sumLog / count));
-    for (const key of ['mean', 'std', 'upperRaw', 'lowerRaw'] as const) out[key].push(sums[key] / count);
+    const from = j;
+    while (j < hz.length && (hz[j] as number) < edge) j++;
+    if (j > from) runs.push([from, j]);
   }
-  return out;
+  const average = (values: Float64Array) =>
+    runs.map(([from, to]) => {
+      let s = 0;
+      for (let i = from; i < to; i++) s += values[i] as number;
+      return s / (to - from);
+    });
+  return {
+    hz: runs.map(([from, to]) => {
+      let s = 0;
+      for (let i = from; i < to; i++) s += Math.log(hz[i] as number);
+      return Math.exp(s / (to - from));
+    }),
+    mean: average(series.mean),
+    std: average(series.std),
+    upperRaw: average(series.upperRaw),
+    lowerRaw: average(series.lowerRaw),
+    curves: curves.map(average),
+  };
 }

@@ -13,4 +13,5 @@ export type { FailingRegion } from './checks/magnitude-envelope.check.js';
 export { deriveEnvelope, limitsFromCurves, simplifyPolyline, type DeriveEnvelopeInput, type DeriveEnvelopeOptions, type DerivedEnvelope, type EnvelopeLimits, type EnvelopeLimitSettings } from './derive-envelope.js';
 export { DEFAULT_YIELD_GUARD_BANDS_DB, estimateYield, wilsonInterval, type ParametricRate, type RateInterval, type YieldAtGuard, type YieldEstimate, type YieldEstimateOptions } from './yield-estimate.js';
 export { studentTUpperTail } from './student-t.js';
+export { findGoldenOutliers, OUTLIER_MIN_OTHERS, type GoldenOutlier, type GoldenOutlierOptions, type OutlierRegion } from './golden-outliers.js';
 export { twoDigitHz } from './rounded-limit.js';

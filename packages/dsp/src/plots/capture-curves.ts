@@ -1,4 +1,5 @@
-import type { MagnitudeEnvelopeCheck } from '@earmark/contracts';
+import type { BandLevelsCheck, MagnitudeEnvelopeCheck } from '@earmark/contracts';
+import { bandLevelSteps, type BandLevelStep } from './band-level-steps.js';
 import { CaptureContext } from '../context/capture-context.js';
 import { MaskCheckError } from '../masks/mask-check-error.js';
 import { maskPlotDataIn, type MaskPlotData } from '../masks/mask-plot-data.js';
@@ -32,6 +33,8 @@ export interface CaptureCurves {
   waveform: WaveformColumns;
   /** The plain-word warnings of the channel's measures (the same the verdict carries). */
   warnings: string[];
+  /** The bands of the band-levels check asked for (`options.bands`), else null. */
+  bandLevels: BandLevelStep[] | null;
 }
 
 /**
@@ -104,7 +107,7 @@ export function waveformColumns(x: Float64Array, sampleRate: number, columns: nu
  * @throws RangeError on a bad capture, channel or column count; MaskCheckError when the check
  *   cannot be evaluated (e.g. a transfer measure without a stimulus)
  */
-export function captureCurves(input: EvaluateMaskInput, check: MagnitudeEnvelopeCheck, options: { columns: number; channel: number }): CaptureCurves {
+export function captureCurves(input: EvaluateMaskInput, check: MagnitudeEnvelopeCheck, options: { columns: number; channel: number; bands?: BandLevelsCheck }): CaptureCurves {
   const analysed = validateMaskInput(input, 'captureCurves');
   precondition(Number.isInteger(options.columns) && options.columns >= 1 && options.columns <= 8192, 'captureCurves', `columns must be a whole number 1…8192 (got ${options.columns})`);
   const ctx = new CaptureContext(input, analysed);
@@ -115,5 +118,6 @@ export function captureCurves(input: EvaluateMaskInput, check: MagnitudeEnvelope
     ...(input.reference ? phaseAndDelay(ctx, options.channel, options.columns) : { phase: null, groupDelay: null }),
     waveform: waveformColumns(x, ctx.sampleRate, options.columns),
     warnings: ctx.warnings(options.channel),
+    bandLevels: options.bands ? bandLevelSteps(ctx, options.bands, options.channel) : null,
   };
 }

@@ -7,6 +7,7 @@ import { useMe } from '@/features/auth/api/get-me';
 import { paths } from '@/lib/paths';
 import { useSession } from '@/lib/use-session';
 import { MainNav } from './main-nav';
+import { NavDrawer } from './nav-drawer';
 import { UserMenu } from './user-menu';
 
 function NavigationProgress() {
@@ -57,9 +58,9 @@ export function AppShell() {
         >
           <Wordmark />
         </Link>
-        <div className="min-w-0 flex-1 md:mt-4 md:flex-none">
+        <NavDrawer>
           <MainNav />
-        </div>
+        </NavDrawer>
         <div className="md:mt-auto md:border-t md:border-white/[0.07] md:py-3">
           <UserMenu user={me.data} />
         </div>

@@ -1,10 +1,14 @@
 import type { ReactNode } from 'react';
 import { NavLink, useMatch } from 'react-router';
+import { useOverview } from '@/features/projects/api/get-overview';
 import { useProjectAbilities } from '@/lib/authorization';
 import { cn } from '@/lib/cn';
 import { paths } from '@/lib/paths';
 
-type NavItem = { label: string; to: string; icon: ReactNode; end?: boolean };
+/** `count`: a number that needs attention (open findings on main, decisions awaiting the viewer); `countLabel` says what it counts. */
+type NavItem = { label: string; to: string; icon: ReactNode; end?: boolean; count?: number; countLabel?: string };
+
+type NavCounts = { openFindingsOnMain?: number; awaitingYou?: number };
 
 // Only areas that exist are listed; masks, approvals, test cases and admin join these
 // lists (and their sections) as their pages land.
@@ -21,7 +25,7 @@ const workspaceItems: NavItem[] = [
   },
 ];
 
-function projectItems(projectKey: string, canAdminister: boolean, canApprove = false): NavItem[] {
+function projectItems(projectKey: string, canAdminister: boolean, canApprove = false, counts: NavCounts = {}): NavItem[] {
   const items: NavItem[] = [
     {
       label: 'Overview',
@@ -48,6 +52,8 @@ function projectItems(projectKey: string, canAdminister: boolean, canApprove = f
     {
       label: 'Findings',
       to: paths.findings(projectKey),
+      count: counts.openFindingsOnMain,
+      countLabel: 'open on main',
       icon: (
         <svg viewBox="0 0 16 16" aria-hidden="true" className="size-4">
           <path d="M4 13.5V2.5h7.5l-1.8 3 1.8 3H4" fill="none" stroke="currentColor" strokeWidth="1.4" strokeLinejoin="round" />
@@ -69,6 +75,8 @@ function projectItems(projectKey: string, canAdminister: boolean, canApprove = f
       {
         label: 'Approvals',
         to: paths.approvals(projectKey),
+        count: counts.awaitingYou,
+        countLabel: 'awaiting your decision',
         icon: (
           <svg viewBox="0 0 16 16" aria-hidden="true" className="size-4">
             <path d="M8 1.8 13.5 4v3.8c0 3-2.4 5.3-5.5 6.4-3.1-1.1-5.5-3.4-5.5-6.4V4Z" fill="none" stroke="currentColor" strokeWidth="1.4" strokeLinejoin="round" />
@@ -90,6 +98,16 @@ function projectItems(projectKey: string, canAdminister: boolean, canApprove = f
   }
   if (canAdminister) {
     items.push({
+      label: 'Members',
+      to: paths.members(projectKey),
+      icon: (
+        <svg viewBox="0 0 16 16" aria-hidden="true" className="size-4">
+          <circle cx="6" cy="5.5" r="2.3" fill="none" stroke="currentColor" strokeWidth="1.4" />
+          <path d="M1.8 13c.6-2.2 2.2-3.4 4.2-3.4s3.6 1.2 4.2 3.4M10.5 3.4a2.3 2.3 0 0 1 0 4.3M12 9.8c1.1.5 1.9 1.6 2.2 3.2" fill="none" stroke="currentColor" strokeWidth="1.4" strokeLinecap="round" />
+        </svg>
+      ),
+    });
+    items.push({
       label: 'API tokens',
       to: paths.tokens(projectKey),
       icon: (
@@ -105,7 +123,7 @@ function projectItems(projectKey: string, canAdminister: boolean, canApprove = f
 
 function NavList({ items }: { items: NavItem[] }) {
   return (
-    <ul className="flex gap-1 md:block md:space-y-0.5">
+    <ul className="space-y-0.5">
       {items.map((item) => (
         <li key={item.to} className="shrink-0">
           <NavLink
@@ -122,6 +140,17 @@ function NavList({ items }: { items: NavItem[] }) {
           >
             {item.icon}
             {item.label}
+            {item.count ? (
+              // Left out of the link's name (it stays "Findings"); the title says what the number counts.
+              <span
+                aria-hidden="true"
+                title={`${item.count} ${item.countLabel ?? ''}`.trim()}
+                data-nav-count={item.count}
+                className="ml-auto rounded-full bg-brass-400/90 px-1.5 font-mono text-[11px] leading-[18px] font-semibold tabular-nums text-ink-950"
+              >
+                {item.count}
+              </span>
+            ) : null}
           </NavLink>
         </li>
       ))}
@@ -131,7 +160,7 @@ function NavList({ items }: { items: NavItem[] }) {
 
 function SectionLabel({ children }: { children: ReactNode }) {
   return (
-    <p className="mb-2 hidden truncate px-3 text-[11px] font-semibold uppercase tracking-[0.09em] text-ink-500 md:block">{children}</p>
+    <p className="mb-2 truncate px-3 text-[11px] font-semibold uppercase tracking-[0.09em] text-ink-500">{children}</p>
   );
 }
 
@@ -140,17 +169,20 @@ export function MainNav() {
   const match = useMatch('/projects/:projectKey/*');
   const projectKey = match?.params.projectKey;
   const { canAdminister, canApprove } = useProjectAbilities(projectKey ?? '');
+  // The counts come with the project's overview (cached; a failed load just shows no numbers).
+  const overview = useOverview(projectKey ?? '', Boolean(projectKey));
 
   return (
-    <nav aria-label="Main" className="flex min-w-0 items-center gap-1 overflow-x-auto md:block md:overflow-visible">
+    // One vertical list at every width: the rail from 768 px, the menu drawer below it (shell/nav-drawer.tsx).
+    <nav aria-label="Main" className="min-w-0">
       <SectionLabel>Workspace</SectionLabel>
       <NavList items={workspaceItems} />
       {projectKey ? (
-        <div className="flex md:mt-6 md:block">
+        <div className="mt-5 md:mt-6">
           <SectionLabel>
             Project · <span className="font-mono normal-case tracking-normal text-ink-400">{projectKey}</span>
           </SectionLabel>
-          <NavList items={projectItems(projectKey, canAdminister, canApprove)} />
+          <NavList items={projectItems(projectKey, canAdminister, canApprove, overview.data?.counts)} />
         </div>
       ) : null}
     </nav>

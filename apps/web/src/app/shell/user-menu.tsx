@@ -1,10 +1,12 @@
 import type { CurrentUser } from '@earmark/contracts';
 import { useEffect, useId, useRef, useState } from 'react';
+import { Link } from 'react-router';
 import { RoleBadge, roleLabels } from '@/components/role-badge';
 import { Spinner } from '@/components/spinner';
 import { useLogout } from '@/features/auth/api/logout';
 import { highestRole } from '@/features/auth/utils/highest-role';
 import { cn } from '@/lib/cn';
+import { paths } from '@/lib/paths';
 
 function initials(name: string): string {
   const parts = name.trim().split(/\s+/).filter(Boolean);
@@ -20,7 +22,7 @@ export function UserMenu({ user }: { user: CurrentUser }) {
   const menuId = useId();
   const rootRef = useRef<HTMLDivElement>(null);
   const triggerRef = useRef<HTMLButtonElement>(null);
-  const firstItemRef = useRef<HTMLButtonElement>(null);
+  const firstItemRef = useRef<HTMLAnchorElement>(null);
   const logout = useLogout();
   const role = highestRole(user);
 
@@ -107,8 +109,36 @@ export function UserMenu({ user }: { user: CurrentUser }) {
             </div>
           ) : null}
           <div className="p-1.5">
-            <button
+            <Link
               ref={firstItemRef}
+              to={paths.account()}
+              role="menuitem"
+              onClick={() => setOpen(false)}
+              className="flex w-full items-center gap-2.5 rounded-md px-2.5 py-2 text-sm text-ink-800 hover:bg-ink-900/5 focus-visible:bg-ink-900/5 focus-visible:outline-none"
+            >
+              <svg viewBox="0 0 16 16" aria-hidden="true" className="size-4 text-ink-500">
+                <circle cx="8" cy="5.5" r="2.75" fill="none" stroke="currentColor" strokeWidth="1.4" />
+                <path d="M2.75 13.5c.8-2.4 2.8-3.75 5.25-3.75s4.45 1.35 5.25 3.75" fill="none" stroke="currentColor" strokeWidth="1.4" strokeLinecap="round" />
+              </svg>
+              Account
+            </Link>
+            {user.isAdmin ? (
+              <Link
+                to={paths.admin()}
+                role="menuitem"
+                onClick={() => setOpen(false)}
+                className="flex w-full items-center gap-2.5 rounded-md px-2.5 py-2 text-sm text-ink-800 hover:bg-ink-900/5 focus-visible:bg-ink-900/5 focus-visible:outline-none"
+              >
+                <svg viewBox="0 0 16 16" aria-hidden="true" className="size-4 text-ink-500">
+                  <path d="M2.5 4h11M2.5 8h11M2.5 12h11" stroke="currentColor" strokeWidth="1.4" strokeLinecap="round" />
+                  <circle cx="5.5" cy="4" r="1.5" fill="var(--color-paper-raised)" stroke="currentColor" strokeWidth="1.4" />
+                  <circle cx="10.5" cy="8" r="1.5" fill="var(--color-paper-raised)" stroke="currentColor" strokeWidth="1.4" />
+                  <circle cx="6.5" cy="12" r="1.5" fill="var(--color-paper-raised)" stroke="currentColor" strokeWidth="1.4" />
+                </svg>
+                Admin
+              </Link>
+            ) : null}
+            <button
               type="button"
               role="menuitem"
               disabled={logout.isPending}

@@ -1,6 +1,7 @@
 import type uPlot from 'uplot';
-import { formatHzTick, logFrequencyTicks, plain, type FrequencyRange } from './log-frequency';
+import { formatHzTick, logFrequencyTicks, type FrequencyRange } from './log-frequency';
 import { plotFonts, plotPalette } from './palette';
+import { linearTicks, tickLabels } from './ticks';
 
 /** A log-frequency x scale that keeps exactly the range asked for (uPlot would snap to decades). */
 export function logFrequencyScale(domain: FrequencyRange | null): uPlot.Scale {
@@ -29,7 +30,7 @@ export function frequencyAxes({ showLabel = true }: { showLabel?: boolean } = {}
     {
       ...axisCommon,
       scale: 'x',
-      label: showLabel ? 'Frequency (Hz)' : undefined,
+      label: showLabel ? 'Frequency, Hz' : undefined,
       labelSize: showLabel ? 22 : 0,
       splits: (_u, _i, min, max) => logFrequencyTicks(min, max),
       // uPlot thins log-axis labels to powers of ten by default; these ticks are already chosen.
@@ -60,16 +61,44 @@ export function frequencyAxes({ showLabel = true }: { showLabel?: boolean } = {}
   ];
 }
 
-/** A value axis on the left with a unit label and typographic minus signs. */
-export function valueAxis(label: string, decimals: (span: number) => number, scale = 'y'): uPlot.Axis {
+/** About one labelled tick per this many CSS pixels of axis length. */
+const PIXELS_PER_TICK = 42;
+
+/** Round ticks for a linear axis of the chart, at least three however short it is drawn. */
+export function linearSplits(u: uPlot, min: number, max: number, vertical: boolean): number[] {
+  const ratio = pixelRatio();
+  const length = (vertical ? u.bbox.height : u.bbox.width) / ratio;
+  const wanted = Math.max(3, Math.min(8, Math.floor(length / PIXELS_PER_TICK)));
+  return linearTicks(min, max, wanted).ticks;
+}
+
+/**
+ * A value axis on the left: its title says quantity and unit ("Phase, degrees"), its ticks are
+ * round steps (`linearTicks`) labelled with the decimals the step needs and a real minus sign.
+ * `_decimals` is kept for callers written before the ticks were chosen here.
+ */
+export function valueAxis(label: string, _decimals?: (span: number) => number, scale = 'y'): uPlot.Axis {
   return {
     ...axisCommon,
     scale,
     label,
     labelSize: 20,
     size: 56,
-    // Decimals follow the tick step uPlot chose (a 0.5 dB step needs one, a 10 dB step none).
-    values: (_u, splits, _axis, _space, increment) => splits.map((v) => plain(v, decimals(increment))),
+    splits: (u, _i, min, max) => linearSplits(u, min, max, true),
+    values: (_u, splits) => tickLabels(splits),
+    grid: { stroke: plotPalette.grid, width: 1 },
+  };
+}
+
+/** A linear time axis at the bottom ("Time, s") with exact tick labels (0.25 s reads 0.25). */
+export function timeAxis(label = 'Time, s'): uPlot.Axis {
+  return {
+    ...axisCommon,
+    scale: 'x',
+    label,
+    labelSize: 22,
+    splits: (u, _i, min, max) => linearSplits(u, min, max, false),
+    values: (_u, splits) => tickLabels(splits),
     grid: { stroke: plotPalette.grid, width: 1 },
   };
 }

@@ -17,8 +17,13 @@ export const plotPalette = {
   brass400: '#dca640',
   fail: '#c2411f',
   measuredBand: 'rgba(27, 29, 42, 0.20)',
-  overlayLine: '#686d86',
-  overlayBand: 'rgba(104, 109, 134, 0.14)',
+  /** The lower limit: the mask's brass, darker and in another dash than the upper. */
+  lowerLimit: '#6e4a10',
+  /** The last passing capture: a blue of its own, dashed, never mistaken for the measured ink. */
+  overlayLine: '#2f68a8',
+  overlayBand: 'rgba(47, 104, 168, 0.10)',
+  /** A band's measured level, drawn as a step over the band. */
+  bandLevel: '#1b1d2a',
   allowedZone: 'rgba(220, 166, 64, 0.10)',
   failFill: 'rgba(194, 65, 31, 0.08)',
   failHatch: 'rgba(194, 65, 31, 0.30)',

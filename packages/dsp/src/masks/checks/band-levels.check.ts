@@ -6,8 +6,8 @@ import { MaskCheckError } from '../mask-check-error.js';
 import type { CaptureContext } from '../../context/capture-context.js';
 import { DEFAULT_REFERENCE_HZ, DB_FLOOR, powerDb, referenceGain, transferBandGain } from '../spectral-curves.js';
 
-/** One band's level in dB (transfer, normalised) or dBFS (level). */
-function bandValue(ctx: CaptureContext, channel: number, check: BandLevelsCheck, band: OctaveBand): number {
+/** One band's level in dB (transfer, normalised) or dBFS (level); the plots draw the same number. */
+export function bandValue(ctx: CaptureContext, channel: number, check: BandLevelsCheck, band: OctaveBand): number {
   if (band.upperHz > ctx.sampleRate / 2) throw new MaskCheckError(`the ${band.nominalHz} Hz band reaches above half the sample rate (${ctx.sampleRate / 2} Hz)`);
   if (check.measure === 'transfer') {
     const t = ctx.transfer(channel);

@@ -20,9 +20,10 @@ export const approvalsLoader = (queryClient: QueryClient) =>
   requireSession(async ({ params }) => {
     if (!params.projectKey) throw new Error('projectKey route parameter is missing');
     const me = await queryClient.ensureQueryData(getMeQueryOptions());
+    // Every member reads the waivers (a "waiver already requested" link lands here); QA managers also get the revision queue.
+    void queryClient.prefetchQuery(getRequestedWaiversQueryOptions(params.projectKey));
+    void queryClient.prefetchQuery(getApprovedWaiversQueryOptions(params.projectKey));
     if (abilitiesIn(me, params.projectKey).canApprove) {
-      void queryClient.prefetchQuery(getRequestedWaiversQueryOptions(params.projectKey));
-      void queryClient.prefetchQuery(getApprovedWaiversQueryOptions(params.projectKey));
       await queryClient.ensureQueryData(getReviewQueueQueryOptions(params.projectKey));
     }
     return null;
@@ -94,6 +95,44 @@ function Queues({ projectKey }: { projectKey: string }) {
   );
 }
 
+/** Members who may not decide still see which waivers are requested and in force (read-only). */
+function WaiversToRead({ projectKey }: { projectKey: string }) {
+  const me = useCurrentUser();
+  const waivers = useRequestedWaivers(projectKey);
+  const approved = useApprovedWaivers(projectKey);
+  const email = me?.email ?? null;
+  return (
+    <div className="space-y-8">
+      <Section title="Waivers requested" count={waivers.data?.length ?? null}>
+        {waivers.isPending ? (
+          <Skeleton className="h-32 rounded-lg" />
+        ) : waivers.isError ? (
+          <ErrorState error={waivers.error} onRetry={() => void waivers.refetch()} />
+        ) : waivers.data.length === 0 ? (
+          <EmptyState title="No waivers requested">Waivers are requested from a failing finding and expire on their date.</EmptyState>
+        ) : (
+          <div className="space-y-4">
+            {waivers.data.map((w) => (
+              <WaiverReviewCard key={w.id} projectKey={projectKey} waiver={w} myEmail={email} mayDecide={false} />
+            ))}
+          </div>
+        )}
+      </Section>
+      <Section title="Waivers in force" count={approved.data?.length ?? null}>
+        {approved.isPending ? (
+          <Skeleton className="h-24 rounded-lg" />
+        ) : approved.isError ? (
+          <ErrorState error={approved.error} onRetry={() => void approved.refetch()} />
+        ) : approved.data.length === 0 ? (
+          <EmptyState title="No waivers in force">An approved waiver shows here until its date.</EmptyState>
+        ) : (
+          <WaiversInForce projectKey={projectKey} waivers={approved.data} mayDecideWaivers={false} />
+        )}
+      </Section>
+    </div>
+  );
+}
+
 export function ApprovalsRoute() {
   const { projectKey = '' } = useParams();
   const { canApprove } = useProjectAbilities(projectKey);
@@ -108,7 +147,10 @@ export function ApprovalsRoute() {
       {canApprove ? (
         <Queues projectKey={projectKey} />
       ) : (
-        <EmptyState title="Only QA managers and administrators approve">Ask a QA manager of this project to review your revision or waiver.</EmptyState>
+        <>
+          <EmptyState title="Only QA managers and administrators approve">Ask a QA manager of this project to review your revision or waiver.</EmptyState>
+          <WaiversToRead projectKey={projectKey} />
+        </>
       )}
     </div>
   );

@@ -1,11 +1,13 @@
 import type { CaptureDetail } from '@earmark/contracts';
 import type { QueryClient } from '@tanstack/react-query';
+import { useMemo } from 'react';
 import { useParams } from 'react-router';
 import { ErrorState } from '@/components/error-state';
 import { PageHeader } from '@/components/page-header';
 import { Skeleton } from '@/components/skeleton';
 import { getCaptureQueryOptions, isCaptureInProgress, useCapture } from '@/features/captures/api/get-capture';
 import { AnalysisFailed, AnalysisProgress, CaptureHeader } from '@/features/captures/components/capture-header';
+import { CaptureActions } from '@/features/captures/components/capture-actions';
 import { ChecksTable } from '@/features/captures/components/checks-table';
 import { ListenPanel } from '@/features/captures/components/listen-panel';
 import { PurgedAudioNote } from '@/features/captures/components/purged-audio-note';
@@ -13,6 +15,7 @@ import { ResponsePanel } from '@/features/captures/components/response-panel';
 import { SpectrumPanel } from '@/features/captures/components/spectrum-panel';
 import { WaveformPanel } from '@/features/captures/components/waveform-panel';
 import { useCaptureView } from '@/features/captures/hooks/use-capture-view';
+import { defaultPlotSelection } from '@/features/captures/utils/plot-selection';
 import { FindingsTriagePanel } from '@/features/findings/components/findings-triage-panel';
 import { requireSession } from '../require-session';
 
@@ -43,12 +46,15 @@ export function CaptureRoute() {
 
   if (capture.isPending) return <CaptureSkeleton />;
   if (capture.isError) return <ErrorState error={capture.error} onRetry={() => void capture.refetch()} />;
-  // Keyed so zoom, channel and playback start afresh on another capture.
-  return <CaptureWorkspace key={`${projectKey}/${captureId}`} projectKey={projectKey} captureId={captureId} detail={capture.data} />;
+  // Keyed so zoom, check, channel and playback start afresh on another capture, and the view
+  // opens on the worst check again when a new analysis (re-analyse) brings a new verdict.
+  const judgedAt = capture.data.capture.verdict?.createdAt ?? 'none';
+  return <CaptureWorkspace key={`${projectKey}/${captureId}/${judgedAt}`} projectKey={projectKey} captureId={captureId} detail={capture.data} />;
 }
 
 function CaptureWorkspace({ projectKey, captureId, detail }: { projectKey: string; captureId: string; detail: CaptureDetail }) {
-  const view = useCaptureView({ hasLastPassing: detail.lastPassing !== null });
+  const initial = useMemo(() => defaultPlotSelection(detail), [detail]);
+  const view = useCaptureView({ hasLastPassing: detail.lastPassing !== null, initial });
   const status = detail.capture.status;
   const inProgress = isCaptureInProgress(status);
   const analysed = !inProgress && detail.capture.verdict !== null;
@@ -60,6 +66,7 @@ function CaptureWorkspace({ projectKey, captureId, detail }: { projectKey: strin
     <div className="space-y-6">
       <title>{`${detail.testCase.name} · ${detail.build.sha.slice(0, 7)} · Earmark`}</title>
       <CaptureHeader detail={detail} />
+      <CaptureActions projectKey={projectKey} detail={detail} />
 
       {status === 'queued' || status === 'analysing' ? <AnalysisProgress status={status} /> : null}
 

@@ -1,4 +1,4 @@
-import type { MaskCheck } from '@earmark/contracts';
+import { isEngineSelfTest, type MaskCheck } from '@earmark/contracts';
 import type { QueryClient } from '@tanstack/react-query';
 import { useState } from 'react';
 import { useParams, useSearchParams } from 'react-router';
@@ -8,6 +8,7 @@ import { ErrorState } from '@/components/error-state';
 import { PageHeader } from '@/components/page-header';
 import { ProjectBreadcrumb } from '@/components/project-breadcrumb';
 import { Skeleton } from '@/components/skeleton';
+import { notify } from '@/components/toast';
 import { getMaskRevisionsQueryOptions, useMaskRevisions } from '@/features/masks/api/get-mask-revisions';
 import { getTestCaseQueryOptions, useTestCase } from '@/features/masks/api/get-test-case';
 import { MaskWorkspace } from '@/features/masks/components/mask-workspace';
@@ -51,7 +52,12 @@ export function MasksRoute() {
     setUnsaved(null);
     setSearch({ rev: String(revision) });
   };
-  const startDraft = (checks: MaskCheck[]) => setUnsaved({ checks, nonce: Date.now() });
+  const startDraft = (checks: MaskCheck[]) => {
+    // A stored mask may hold the engine self-test (from before it was refused); a new draft starts without it.
+    const kept = checks.filter((check) => !isEngineSelfTest(check));
+    if (kept.length < checks.length) notify.info('The engine self-test was left out', 'It checks the analysis, not the firmware, so a new revision cannot hold it.');
+    setUnsaved({ checks: kept, nonce: Date.now() });
+  };
 
   let body;
   if (revisions.isPending) {

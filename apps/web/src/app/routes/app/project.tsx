@@ -4,6 +4,7 @@ import { ErrorState } from '@/components/error-state';
 import { PageHeader } from '@/components/page-header';
 import { RoleBadge } from '@/components/role-badge';
 import { Skeleton } from '@/components/skeleton';
+import { getOverviewQueryOptions } from '@/features/projects/api/get-overview';
 import { getProjectQueryOptions, useProject } from '@/features/projects/api/get-project';
 import { MailSubscription } from '@/features/projects/components/mail-subscription';
 import { ProjectOverview } from '@/features/projects/components/project-overview';
@@ -14,6 +15,8 @@ export const projectLoader = (queryClient: QueryClient) =>
   requireSession(async ({ params }) => {
     // The route only matches with a key, so an empty one is a bug in the route table.
     if (!params.projectKey) throw new Error('projectKey route parameter is missing');
+    // The overview loads beside the project; the page shows its skeleton until it arrives.
+    void queryClient.prefetchQuery(getOverviewQueryOptions(params.projectKey));
     await queryClient.ensureQueryData(getProjectQueryOptions(params.projectKey));
     return null;
   });

@@ -3,7 +3,17 @@ import { useId, useState } from 'react';
 import { Button } from '@/components/button';
 import { TextArea } from '@/components/form-controls';
 import { InlineError } from '@/components/inline-error';
-import { useDecide, type DecisionTarget } from '../api/decide';
+import { notify } from '@/components/toast';
+import { ApiError } from '@/lib/api-error';
+import { useDecide, type Decision, type DecisionTarget } from '../api/decide';
+import { ApproveRevisionDialog } from './approve-revision-dialog';
+
+function successDetail(target: DecisionTarget, verdict: Decision['verdict']): string {
+  if (target.kind === 'revision') {
+    return verdict === 'approve' ? `It now judges new captures of ${target.caseKey}.` : 'Its author is told why, with your comment.';
+  }
+  return verdict === 'approve' ? 'Its finding counts as an accepted deviation until the waiver’s date.' : 'The requester is told why, with your comment.';
+}
 
 /**
  * Approve or reject, with a comment (required to reject). Whoever wrote, edited or requested
@@ -28,11 +38,26 @@ export function DecisionPanel({
   const [commentError, setCommentError] = useState<string | null>(null);
   const ids = useId();
   const blocked = blockedReason !== null;
+  const [confirming, setConfirming] = useState(false);
 
+  const send = (decision: Decision) =>
+    decide.mutate(
+      { target, decision },
+      {
+        onSuccess: () => {
+          setConfirming(false);
+          notify.success(`${label}: ${decision.verdict === 'approve' ? 'approved' : 'rejected'}`, successDetail(target, decision.verdict));
+        },
+        onError: (error) => {
+          setConfirming(false);
+          notify.error(`${label} was not ${decision.verdict === 'approve' ? 'approved' : 'rejected'}`, error instanceof ApiError ? error.detail : undefined);
+        },
+      },
+    );
   const approve = () => {
     setCommentError(null);
     const trimmed = comment.trim();
-    decide.mutate({ target, decision: { verdict: 'approve', body: trimmed ? { comment: trimmed } : {} } });
+    send({ verdict: 'approve', body: trimmed ? { comment: trimmed } : {} });
   };
   const reject = () => {
     const parsed = MaskRejectRequest.safeParse({ comment });
@@ -41,7 +66,7 @@ export function DecisionPanel({
       return;
     }
     setCommentError(null);
-    decide.mutate({ target, decision: { verdict: 'reject', body: { comment: parsed.data.comment } } });
+    send({ verdict: 'reject', body: { comment: parsed.data.comment } });
   };
 
   return (
@@ -64,7 +89,7 @@ export function DecisionPanel({
         </p>
       ) : null}
       <div className="flex flex-wrap gap-2">
-        <Button onClick={approve} disabled={blocked} busy={decide.isPending && decide.variables?.decision.verdict === 'approve'} aria-describedby={blocked ? `${ids}-blocked` : undefined}>
+        <Button onClick={target.kind === 'revision' ? () => setConfirming(true) : approve} disabled={blocked} busy={decide.isPending && decide.variables?.decision.verdict === 'approve'} aria-describedby={blocked ? `${ids}-blocked` : undefined}>
           Approve
         </Button>
         <Button variant="secondary" onClick={reject} disabled={blocked} busy={decide.isPending && decide.variables?.decision.verdict === 'reject'} aria-describedby={blocked ? `${ids}-blocked` : undefined}>
@@ -82,6 +107,17 @@ export function DecisionPanel({
       ) : null}
       {decide.error ? <InlineError error={decide.error} /> : null}
       <span className="sr-only">{label}</span>
+      {target.kind === 'revision' && confirming ? (
+        <ApproveRevisionDialog
+          open
+          projectKey={projectKey}
+          caseKey={target.caseKey}
+          revision={target.revision}
+          busy={decide.isPending}
+          onConfirm={approve}
+          onClose={() => setConfirming(false)}
+        />
+      ) : null}
     </div>
   );
 }

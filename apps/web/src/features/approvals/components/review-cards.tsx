@@ -7,6 +7,9 @@ import { paths } from '@/lib/paths';
 import { revisionReviewBlock } from '../utils/review-block';
 import { DecisionPanel } from './decision-panel';
 import { ImpactPanel } from './impact-panel';
+import { RevisionChanges } from './revision-changes';
+import { cn } from '@/lib/cn';
+import { useLinkedCard, waiverAnchor } from '../utils/linked-card';
 
 /** A revision in review: what it is, its impact table, and the decision beside it. */
 export function RevisionReviewCard({ projectKey, revision, myEmail }: { projectKey: string; revision: MaskRevisionDto; myEmail: string | null }) {
@@ -28,6 +31,9 @@ export function RevisionReviewCard({ projectKey, revision, myEmail }: { projectK
           {revision.note ? <p className="mt-1.5 max-w-2xl text-sm text-ink-800">{revision.note}</p> : null}
         </div>
       </header>
+      <div className="border-b border-line px-4 py-4">
+        <RevisionChanges projectKey={projectKey} revision={revision} />
+      </div>
       <div className="grid gap-6 px-4 py-4 lg:grid-cols-[minmax(0,1fr)_280px]">
         <ImpactPanel projectKey={projectKey} caseKey={revision.testCase} revision={revision.revision} canRun />
         <DecisionPanel
@@ -42,12 +48,30 @@ export function RevisionReviewCard({ projectKey, revision, myEmail }: { projectK
 }
 
 /** A waiver request: the check it excuses, until when and why, and the decision beside it. */
-export function WaiverReviewCard({ projectKey, waiver, myEmail }: { projectKey: string; waiver: WaiverDto; myEmail: string | null }) {
+export function WaiverReviewCard({
+  projectKey,
+  waiver,
+  myEmail,
+  mayDecide = true,
+}: {
+  projectKey: string;
+  waiver: WaiverDto;
+  myEmail: string | null;
+  /** False for members who may only read (the card a "waiver already requested" link opens). */
+  mayDecide?: boolean;
+}) {
   const mine = myEmail !== null && waiver.requestedBy === myEmail;
   const name = `Waiver of ${waiver.checkId} on ${waiver.testCase}`;
+  const linked = useLinkedCard(waiverAnchor(waiver.id));
   return (
-    <article aria-label={name} className="rounded-lg border border-line bg-paper-raised">
-      <div className="grid gap-6 px-4 py-4 lg:grid-cols-[minmax(0,1fr)_280px]">
+    <article
+      id={waiverAnchor(waiver.id)}
+      ref={linked.ref}
+      aria-label={name}
+      aria-current={linked.current ? 'true' : undefined}
+      className={cn('scroll-mt-20 rounded-lg border bg-paper-raised', linked.current ? 'border-brass-600 ring-2 ring-brass-300/60' : 'border-line')}
+    >
+      <div className={cn('grid gap-6 px-4 py-4', mayDecide && 'lg:grid-cols-[minmax(0,1fr)_280px]')}>
         <div className="min-w-0 space-y-2">
           <h3 className="text-base font-semibold text-ink-950">
             Waive <span className="font-mono">{waiver.checkId}</span> on <span className="font-mono">{waiver.testCase}</span>
@@ -70,12 +94,14 @@ export function WaiverReviewCard({ projectKey, waiver, myEmail }: { projectKey: 
             </Link>
           ) : null}
         </div>
-        <DecisionPanel
-          projectKey={projectKey}
-          target={{ kind: 'waiver', id: waiver.id }}
-          label={name}
-          blockedReason={mine ? 'You requested this waiver; another QA manager must approve it' : null}
-        />
+        {mayDecide ? (
+          <DecisionPanel
+            projectKey={projectKey}
+            target={{ kind: 'waiver', id: waiver.id }}
+            label={name}
+            blockedReason={mine ? 'You requested this waiver; another QA manager must approve it' : null}
+          />
+        ) : null}
       </div>
     </article>
   );

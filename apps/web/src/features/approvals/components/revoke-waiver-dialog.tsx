@@ -4,6 +4,8 @@ import { Button } from '@/components/button';
 import { Dialog } from '@/components/dialog';
 import { TextArea } from '@/components/form-controls';
 import { InlineError } from '@/components/inline-error';
+import { notify } from '@/components/toast';
+import { ApiError } from '@/lib/api-error';
 import { useRevokeWaiver } from '../api/revoke-waiver';
 
 /**
@@ -30,7 +32,17 @@ export function RevokeWaiverDialog({ projectKey, waiver, onClose }: { projectKey
       return;
     }
     setProblem(null);
-    revoke.mutate({ waiverId: waiver.id, body: parsed.data }, { onSuccess: close });
+    const what = `${waiver.checkId} on ${waiver.testCase}`;
+    revoke.mutate(
+      { waiverId: waiver.id, body: parsed.data },
+      {
+        onSuccess: () => {
+          notify.success(`Waiver of ${what} revoked`, 'The captures it covered are judged again now; the requester is mailed.');
+          close();
+        },
+        onError: (error) => notify.error(`The waiver of ${what} was not revoked`, error instanceof ApiError ? error.detail : undefined),
+      },
+    );
   };
   return (
     <Dialog

@@ -3,14 +3,26 @@ import { useState } from 'react';
 import { Button } from '@/components/button';
 import { RelativeTime } from '@/components/relative-time';
 import { formatDate } from '@/lib/format';
+import { cn } from '@/lib/cn';
+import { useLinkedCard, waiverAnchor } from '../utils/linked-card';
 import { isRevocable } from '../utils/revocable';
 import { RevokeWaiverDialog } from './revoke-waiver-dialog';
 
 /** One approved waiver: what it excuses, until when, who asked and who approved, and "Revoke" where allowed. */
 function WaiverInForceCard({ waiver, mayDecideWaivers, onRevoke }: { waiver: WaiverDto; mayDecideWaivers: boolean; onRevoke: (waiver: WaiverDto) => void }) {
   const name = `Waiver in force: ${waiver.checkId} on ${waiver.testCase}`;
+  const linked = useLinkedCard(waiverAnchor(waiver.id));
   return (
-    <article aria-label={name} className="flex flex-wrap items-start justify-between gap-4 rounded-lg border border-line bg-paper-raised px-4 py-3">
+    <article
+      id={waiverAnchor(waiver.id)}
+      ref={linked.ref}
+      aria-label={name}
+      aria-current={linked.current ? 'true' : undefined}
+      className={cn(
+        'flex scroll-mt-20 flex-wrap items-start justify-between gap-4 rounded-lg border bg-paper-raised px-4 py-3',
+        linked.current ? 'border-brass-600 ring-2 ring-brass-300/60' : 'border-line',
+      )}
+    >
       <div className="min-w-0 space-y-1">
         <h3 className="text-sm font-semibold text-ink-950">
           <span className="font-mono">{waiver.checkId}</span> on <span className="font-mono">{waiver.testCase}</span>

@@ -90,6 +90,11 @@ function Cell({
           {verdictLabels[cell.outcome]}
         </span>
         {cell.waiver ? <WaiverNote waiver={cell.waiver} className="mt-1 text-[11.5px]" /> : null}
+        {cell.outcome === 'error' && cell.reason ? (
+          <span data-testid="error-reason" className="mt-1 line-clamp-3 block max-w-[22rem] text-[11.5px] leading-snug text-ink-800" title={cell.reason}>
+            {cell.reason}
+          </span>
+        ) : null}
         {worst ? (
           <span className="mt-1 block font-mono text-[11.5px] leading-snug text-ink-800" title={describeCheck(worst)}>
             {describeCheck(worst)}

@@ -29,12 +29,14 @@ function columnsFor(projectKey: string) {
     column.accessor('sha', {
       header: 'Build',
       cell: ({ row }) => (
-        <div className="min-w-[180px]">
+        <div className="min-w-[120px] sm:min-w-[180px]">
           <ShortSha sha={row.original.sha} to={paths.build(projectKey, row.original.sha)} />
           {row.original.label ? <p className="mt-0.5 line-clamp-1 max-w-xs text-[13px] text-ink-600">{row.original.label}</p> : null}
         </div>
       ),
     }),
+    // Status second, so a phone shows it without scrolling the table's frame sideways.
+    column.accessor('status', { header: 'Status', cell: ({ getValue }) => <VerdictBadge verdict={getValue()} /> }),
     column.accessor('branch', {
       header: 'Branch',
       cell: ({ getValue }) => {
@@ -48,7 +50,6 @@ function columnsFor(projectKey: string) {
         );
       },
     }),
-    column.accessor('status', { header: 'Status', cell: ({ getValue }) => <VerdictBadge verdict={getValue()} /> }),
     column.accessor('counts', {
       header: 'Captures',
       enableSorting: false,

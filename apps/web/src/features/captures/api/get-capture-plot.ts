@@ -8,10 +8,13 @@ export type CapturePlotParams = {
   columns: number;
   channel: number;
   overlay: 'last-passing' | 'none';
+  /** The spectral check whose limits are drawn; null: the mask has none (the API's default). */
+  check: string | null;
 };
 
 export function getCapturePlot(projectKey: string, captureId: string, params: CapturePlotParams, signal?: AbortSignal): Promise<CapturePlot> {
   const query = new URLSearchParams({ columns: String(params.columns), channel: String(params.channel), overlay: params.overlay });
+  if (params.check) query.set('check', params.check);
   return apiRequest(`${capturePath(projectKey, captureId)}/plot?${query.toString()}`, { schema: CapturePlot, signal });
 }
 
@@ -28,7 +31,7 @@ export function getCapturePlotQueryOptions(projectKey: string, captureId: string
 
 export function useCapturePlot(projectKey: string, captureId: string, params: CapturePlotParams | null) {
   return useQuery({
-    ...getCapturePlotQueryOptions(projectKey, captureId, params ?? { columns: 0, channel: 0, overlay: 'none' }),
+    ...getCapturePlotQueryOptions(projectKey, captureId, params ?? { columns: 0, channel: 0, overlay: 'none', check: null }),
     enabled: params !== null,
   });
 }

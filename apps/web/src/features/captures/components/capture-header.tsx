@@ -192,7 +192,7 @@ export function AnalysisFailed() {
         <h2 className="text-base font-semibold text-ink-950">No verdict for this capture</h2>
         <p className="mt-1 text-sm text-ink-600">
           The capture is stored, but its analysis ended with an error before a verdict was reached, so there is nothing to plot.
-          Listening still works; uploading the capture again starts a new analysis.
+          Listening still works, and engineers can judge the stored capture anew with Analyse again.
         </p>
       </div>
     </div>

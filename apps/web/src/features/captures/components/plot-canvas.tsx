@@ -51,6 +51,35 @@ function loadUPlot(): Promise<UPlotConstructor> | null {
 }
 void loadUPlot();
 
+type AxisText = { scale: string; title: string; ticks: string[] };
+
+/** The axis with its tick labels recorded each time uPlot asks for them. */
+function recordingAxis(axis: uPlot.Axis, index: number, into: Map<number, AxisText>): uPlot.Axis {
+  const values = axis.values;
+  const title = typeof axis.label === 'string' ? axis.label : '';
+  if (typeof values !== 'function' || !title) return axis;
+  return {
+    ...axis,
+    values: (u, splits, axisIdx, space, incr) => {
+      const labels = values(u, splits, axisIdx, space, incr);
+      into.set(index, { scale: axis.scale ?? (index === 0 ? 'x' : 'y'), title, ticks: labels.map((l) => String(l ?? '')).filter((l) => l !== '') });
+      return labels;
+    },
+  };
+}
+
+function writeAxesText(host: HTMLElement, axes: Map<number, AxisText>) {
+  const lines = [...axes.values()].map((a) => {
+    const line = document.createElement('p');
+    line.dataset.axis = a.scale;
+    line.dataset.title = a.title;
+    line.dataset.ticks = a.ticks.join('|');
+    line.textContent = `${a.scale === 'x' ? 'Horizontal' : 'Vertical'} axis ${a.title}: ${a.ticks.join(', ')}`;
+    return line;
+  });
+  host.replaceChildren(...lines);
+}
+
 function nearlyEqual(a: number | undefined, b: number): boolean {
   return a !== undefined && Math.abs(a - b) <= Math.abs(b) * 1e-6;
 }
@@ -75,6 +104,7 @@ function PlotCanvasImpl({
   const wrapperRef = useRef<HTMLDivElement>(null);
   const hostRef = useRef<HTMLDivElement>(null);
   const chartRef = useRef<uPlot | null>(null);
+  const axesTextRef = useRef<HTMLDivElement>(null);
 
   // Latest callbacks and props, read by uPlot hooks without rebuilding the chart.
   const latest = useRef({ onXRangeChange, onDraw, onCursor, xDomain, xRange, timing, data });
@@ -106,8 +136,10 @@ function PlotCanvasImpl({
     void loading.then((UPlot) => {
       if (cancelled) return;
       const base = buildOptions();
+      const axisText = new Map<number, AxisText>();
       const options: uPlot.Options = {
         ...base,
+        axes: base.axes?.map((axis, index) => recordingAxis(axis, index, axisText)),
         width,
         height,
         hooks: {
@@ -115,6 +147,7 @@ function PlotCanvasImpl({
           draw: [
             ...(base.hooks?.draw ?? []),
             (chart) => {
+              if (axesTextRef.current) writeAxesText(axesTextRef.current, axisText);
               const wrapperRect = wrapperRef.current?.getBoundingClientRect();
               const overRect = chart.over.getBoundingClientRect();
               latest.current.onDraw?.(chart, {
@@ -242,6 +275,8 @@ function PlotCanvasImpl({
       className={cn('relative m-0 rounded-md outline-offset-4', className)}
     >
       {summary ? <figcaption className="sr-only">{summary}</figcaption> : null}
+      {/* What the canvas draws as text: each axis's title and tick labels, for screen readers and tests. */}
+      <div ref={axesTextRef} className="sr-only" data-testid="plot-axes" />
       <div ref={wrapperRef} className="earmark-plot relative" style={{ minHeight: height }}>
         <div ref={hostRef} />
         {children}

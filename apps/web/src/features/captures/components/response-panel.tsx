@@ -4,8 +4,10 @@ import type uPlot from 'uplot';
 import { ErrorState } from '@/components/error-state';
 import { useCapturePlot } from '../api/get-capture-plot';
 import type { CaptureView } from '../hooks/use-capture-view';
-import { responseColumns } from '../utils/plot-data';
-import { frequencyAxes, logFrequencyScale, tickDecimals, valueAxis } from '@/lib/plot/axes';
+import { responseColumns, spectrumColumns } from '../utils/plot-data';
+import { GROUP_DELAY_AXIS_TITLE, PHASE_AXIS_TITLE } from '../utils/plot-titles';
+import { frequencyAxes, logFrequencyScale, valueAxis } from '@/lib/plot/axes';
+import type { FrequencyRange } from '@/lib/plot/log-frequency';
 import { plotPalette } from '@/lib/plot/palette';
 import { PanelCard } from './panel-card';
 import { PlotCanvas } from './plot-canvas';
@@ -15,8 +17,7 @@ const HEIGHT = 190;
 
 type Curve = { hz: number[]; values: number[] };
 
-function curveOptions(curve: Curve, axisLabel: string): () => Omit<uPlot.Options, 'width' | 'height'> {
-  const domain = { min: curve.hz[0] as number, max: curve.hz[curve.hz.length - 1] as number };
+function curveOptions(domain: FrequencyRange, axisLabel: string): () => Omit<uPlot.Options, 'width' | 'height'> {
   return () => ({
     legend: { show: false },
     padding: [10, 18, 0, 0],
@@ -30,15 +31,23 @@ function curveOptions(curve: Curve, axisLabel: string): () => Omit<uPlot.Options
         },
       },
     },
-    axes: [...frequencyAxes(), valueAxis(axisLabel, tickDecimals)],
+    axes: [...frequencyAxes(), valueAxis(axisLabel)],
     series: [{}, { label: axisLabel, stroke: plotPalette.ink900, width: 1.5, points: { show: false } }],
   });
 }
 
-function ResponsePlot({ label, axisLabel, curve, view }: { label: string; axisLabel: string; curve: Curve; view: CaptureView }) {
+/**
+ * The frequency span these plots share with the magnitude plot above, so a frequency sits at the
+ * same place in all three; the curve's own span when there is no magnitude curve.
+ */
+function sharedDomain(spectrum: FrequencyRange | null, curve: Curve): FrequencyRange {
+  return spectrum ?? { min: curve.hz[0] as number, max: curve.hz[curve.hz.length - 1] as number };
+}
+
+function ResponsePlot({ label, axisLabel, curve, view, spectrumDomain }: { label: string; axisLabel: string; curve: Curve; view: CaptureView; spectrumDomain: FrequencyRange | null }) {
   const data = useMemo<uPlot.AlignedData>(() => [curve.hz, curve.values], [curve]);
-  const buildOptions = useMemo(() => curveOptions(curve, axisLabel), [curve, axisLabel]);
-  const domain = useMemo(() => ({ min: curve.hz[0] as number, max: curve.hz[curve.hz.length - 1] as number }), [curve]);
+  const domain = useMemo(() => sharedDomain(spectrumDomain, curve), [spectrumDomain, curve]);
+  const buildOptions = useMemo(() => curveOptions(domain, axisLabel), [domain, axisLabel]);
   return (
     <PlotCanvas
       label={label}
@@ -53,8 +62,9 @@ function ResponsePlot({ label, axisLabel, curve, view }: { label: string; axisLa
   );
 }
 
-function curves(plot: CapturePlot): { phase: Curve | null; groupDelay: Curve | null } {
+function curves(plot: CapturePlot): { phase: Curve | null; groupDelay: Curve | null; domain: FrequencyRange | null } {
   return {
+    domain: spectrumColumns({ spectrum: plot.spectrum, overlay: null }).domain,
     phase: responseColumns(plot.phase ? { hz: plot.phase.hz, values: plot.phase.deg } : null),
     groupDelay: responseColumns(plot.groupDelay ? { hz: plot.groupDelay.hz, values: plot.groupDelay.ms } : null),
   };
@@ -85,13 +95,13 @@ export function ResponsePanel({ projectKey, captureId, view }: { projectKey: str
           {prepared.phase ? (
             <div>
               <h3 className="mb-1 text-xs font-semibold uppercase tracking-[0.06em] text-ink-500">Unwrapped phase</h3>
-              <ResponsePlot label="Unwrapped phase" axisLabel="Phase (°)" curve={prepared.phase} view={view} />
+              <ResponsePlot label="Unwrapped phase" axisLabel={PHASE_AXIS_TITLE} curve={prepared.phase} view={view} spectrumDomain={prepared.domain} />
             </div>
           ) : null}
           {prepared.groupDelay ? (
             <div>
               <h3 className="mb-1 text-xs font-semibold uppercase tracking-[0.06em] text-ink-500">Group delay</h3>
-              <ResponsePlot label="Group delay" axisLabel="Group delay (ms)" curve={prepared.groupDelay} view={view} />
+              <ResponsePlot label="Group delay" axisLabel={GROUP_DELAY_AXIS_TITLE} curve={prepared.groupDelay} view={view} spectrumDomain={prepared.domain} />
             </div>
           ) : null}
         </div>

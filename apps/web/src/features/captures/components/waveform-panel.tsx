@@ -1,13 +1,13 @@
-import type { CaptureDetail, CapturePlot } from '@earmark/contracts';
+import { formatFrequency, formatSeconds, type CaptureDetail, type CapturePlot } from '@earmark/contracts';
 import { useDeferredValue, useMemo } from 'react';
 import type uPlot from 'uplot';
 import { ErrorState } from '@/components/error-state';
 import { useCapturePlot } from '../api/get-capture-plot';
 import type { CaptureView } from '../hooks/use-capture-view';
-import { plain } from '@/lib/plot/log-frequency';
 import { waveformYRange } from '../utils/plot-data';
-import { pixelRatio, tickDecimals, valueAxis } from '@/lib/plot/axes';
-import { plotFonts, plotPalette } from '@/lib/plot/palette';
+import { SAMPLE_AXIS_TITLE, TIME_AXIS_TITLE } from '../utils/plot-titles';
+import { pixelRatio, timeAxis, valueAxis } from '@/lib/plot/axes';
+import { plotPalette } from '@/lib/plot/palette';
 import { PanelCard } from './panel-card';
 import { PlotCanvas } from './plot-canvas';
 import { PlotSkeleton } from './plot-skeleton';
@@ -22,21 +22,8 @@ function waveformOptions(waveform: CapturePlot['waveform']): () => Omit<uPlot.Op
     cursor: { drag: { x: true, y: false, setScale: true }, points: { show: false }, y: false },
     scales: { x: { time: false }, y: { range: () => [y.min, y.max] } },
     axes: [
-      {
-        scale: 'x',
-        label: 'Time (s)',
-        labelSize: 22,
-        stroke: plotPalette.ink500,
-        font: plotFonts.axis,
-        labelFont: plotFonts.label,
-        values: (u, splits) => {
-          const span = (u.scales.x?.max ?? 1) - (u.scales.x?.min ?? 0);
-          return splits.map((s) => plain(s, span < 0.05 ? 4 : span < 1 ? 3 : span < 10 ? 1 : 0));
-        },
-        grid: { stroke: plotPalette.grid, width: 1 },
-        ticks: { stroke: plotPalette.lineStrong, width: 1, size: 4 },
-      },
-      valueAxis('Sample (FS)', tickDecimals),
+      timeAxis(TIME_AXIS_TITLE),
+      valueAxis(SAMPLE_AXIS_TITLE),
     ],
     series: [
       {},
@@ -86,7 +73,7 @@ export function WaveformPanel({ projectKey, captureId, detail, view }: { project
       title="Waveform"
       aside={
         <span className="font-mono text-xs text-ink-500">
-          ch {view.channel} · {plain(seconds, 2)} s · {(detail.capture.sampleRate / 1000).toString()} kHz
+          ch {view.channel} · {formatSeconds(seconds)} · {formatFrequency(detail.capture.sampleRate)} sampling
         </span>
       }
     >

@@ -2,6 +2,7 @@ import { useCallback, useMemo, useRef, useState } from 'react';
 import type { CapturePlotParams } from '../api/get-capture-plot';
 import { columnsForWidth } from '../utils/plot-data';
 import type { FrequencyRange } from '@/lib/plot/log-frequency';
+import type { PlotSelection } from '../utils/plot-selection';
 
 /**
  * What the capture page's panels share: the channel shown, the plot resolution (set by the
@@ -11,6 +12,10 @@ import type { FrequencyRange } from '@/lib/plot/log-frequency';
 export type CaptureView = {
   channel: number;
   setChannel: (channel: number) => void;
+  /** The spectral check whose limits the spectrum draws (null: the mask has none). */
+  checkId: string | null;
+  /** Shows another check, on the channel given (its worst). */
+  setCheck: (checkId: string | null, channel: number) => void;
   showOverlay: boolean;
   setShowOverlay: (show: boolean) => void;
   /** null until the spectrum has been laid out. */
@@ -24,8 +29,10 @@ export type CaptureView = {
   spectrumRef: React.RefObject<HTMLElement | null>;
 };
 
-export function useCaptureView({ hasLastPassing }: { hasLastPassing: boolean }): CaptureView {
-  const [channel, setChannelState] = useState(0);
+export function useCaptureView({ hasLastPassing, initial }: { hasLastPassing: boolean; initial?: PlotSelection }): CaptureView {
+  // The page opens on the worst failing check and channel (utils/plot-selection.ts).
+  const [channel, setChannelState] = useState(initial?.channel ?? 0);
+  const [checkId, setCheckId] = useState<string | null>(initial?.checkId ?? null);
   const [showOverlay, setShowOverlay] = useState(true);
   const [columns, setColumns] = useState<number | null>(null);
   const [frequencyRange, setRange] = useState<FrequencyRange | null>(null);
@@ -46,6 +53,13 @@ export function useCaptureView({ hasLastPassing }: { hasLastPassing: boolean }):
     setChannelState(next);
   }, []);
 
+  const setCheck = useCallback((next: string | null, nextChannel: number) => {
+    setCheckId(next);
+    setChannelState(nextChannel);
+    // Another check's limits span other frequencies: start from its whole range.
+    setRange(null);
+  }, []);
+
   const showFrequency = useCallback(
     (hz: number) => {
       setFrequencyRange({ min: hz / 2, max: hz * 2 });
@@ -61,13 +75,15 @@ export function useCaptureView({ hasLastPassing }: { hasLastPassing: boolean }):
 
   // The last-pass curve is always fetched when there is one; the toggle only hides it.
   const plotParams = useMemo<CapturePlotParams | null>(
-    () => (columns === null ? null : { columns, channel, overlay: hasLastPassing ? 'last-passing' : 'none' }),
-    [columns, channel, hasLastPassing],
+    () => (columns === null ? null : { columns, channel, overlay: hasLastPassing ? 'last-passing' : 'none', check: checkId }),
+    [columns, channel, hasLastPassing, checkId],
   );
 
   return {
     channel,
     setChannel,
+    checkId,
+    setCheck,
     showOverlay,
     setShowOverlay,
     plotParams,

@@ -144,9 +144,10 @@ export function limitValueAt(curve: readonly LimitPoint[] | null, hz: number): n
   return curve ? limitAt(curve, hz) : null;
 }
 
-/** Where the mask applies: from the first to the last breakpoint of either limit; null without limits. */
-export function limitSpan(plot: Pick<CapturePlot, 'upper' | 'lower'>): FrequencyRange | null {
+/** Where the mask applies: from the first to the last breakpoint of either limit (or band edge); null without limits. */
+export function limitSpan(plot: Pick<CapturePlot, 'upper' | 'lower'> & Partial<Pick<CapturePlot, 'bands'>>): FrequencyRange | null {
   const hzs = [...(plot.upper ?? []), ...(plot.lower ?? [])].map((p) => p.hz);
+  for (const b of plot.bands ?? []) hzs.push(b.lowerHz, b.upperHz);
   if (hzs.length < 2) return null;
   return { min: Math.min(...hzs), max: Math.max(...hzs) };
 }
@@ -159,7 +160,7 @@ export function limitSpan(plot: Pick<CapturePlot, 'upper' | 'lower'>): Frequency
  */
 export function spectrumYRange(
   columns: SpectrumColumns,
-  plot: Pick<CapturePlot, 'upper' | 'lower' | 'worst'>,
+  plot: Pick<CapturePlot, 'upper' | 'lower' | 'worst'> & Partial<Pick<CapturePlot, 'bands'>>,
   visible: FrequencyRange,
   includeOverlay: boolean,
 ): { min: number; max: number } {
@@ -188,6 +189,12 @@ export function spectrumYRange(
     for (const p of curve) if (p.hz >= visible.min && p.hz <= visible.max) take(p.db);
     take(limitAt(curve, visible.min));
     take(limitAt(curve, visible.max));
+  }
+  for (const b of plot.bands ?? []) {
+    if (b.upperHz < visible.min || b.lowerHz > visible.max) continue;
+    take(b.measured);
+    take(b.min);
+    take(b.max);
   }
   if (plot.worst && plot.worst.hz >= visible.min && plot.worst.hz <= visible.max) take(plot.worst.db);
   if (!Number.isFinite(lo)) return { min: -60, max: 6 };

@@ -3,26 +3,33 @@ import { useId } from 'react';
 import { Button } from '@/components/button';
 import { FieldLabel, Select } from '@/components/form-controls';
 import { findingStateLabels, findingStates } from '../utils/finding-states';
-import { FindingsStateFilter, defaultFindingsSearch, type FindingsSearch } from '../utils/findings-search';
+import { ANY_BRANCH, FindingsStateFilter, defaultFindingsSearch, type FindingsSearch } from '../utils/findings-search';
 
-export type FindingsFilterPatch = Partial<Pick<FindingsSearch, 'state' | 'assignee' | 'testCase' | 'target'>>;
+export type FindingsFilterPatch = Partial<Pick<FindingsSearch, 'state' | 'branch' | 'assignee' | 'testCase' | 'target'>>;
 
 export function FindingsFilters({
   search,
   members,
   testCases,
   targets,
+  branches,
   onChange,
 }: {
   search: FindingsSearch;
+  /** Branches with builds, main first. */
+  branches: string[];
   members: MemberRow[];
   testCases: Array<{ key: string; name: string }>;
   targets: Array<{ key: string; name: string }>;
   onChange: (patch: FindingsFilterPatch) => void;
 }) {
-  const ids = { state: useId(), assignee: useId(), testCase: useId(), target: useId() };
+  const ids = { state: useId(), branch: useId(), assignee: useId(), testCase: useId(), target: useId() };
+  const branch = search.branch ?? ANY_BRANCH;
+  const branchOptions = [...new Set([defaultFindingsSearch.branch ?? ANY_BRANCH, ...branches, branch].filter((b) => b !== ANY_BRANCH))];
   const filtered =
-    search.state !== defaultFindingsSearch.state || Boolean(search.assignee || search.testCase || search.target);
+    search.state !== defaultFindingsSearch.state ||
+    branch !== defaultFindingsSearch.branch ||
+    Boolean(search.assignee || search.testCase || search.target);
   return (
     <div role="search" aria-label="Filter findings" className="flex flex-wrap items-end gap-3">
       <div>
@@ -42,6 +49,17 @@ export function FindingsFilters({
             </option>
           ))}
           <option value="all">Any state</option>
+        </Select>
+      </div>
+      <div>
+        <FieldLabel htmlFor={ids.branch}>Branch</FieldLabel>
+        <Select id={ids.branch} value={branch} onChange={(event) => onChange({ branch: event.target.value })}>
+          {branchOptions.map((name) => (
+            <option key={name} value={name}>
+              {name}
+            </option>
+          ))}
+          <option value={ANY_BRANCH}>Any branch</option>
         </Select>
       </div>
       <div>
@@ -86,7 +104,9 @@ export function FindingsFilters({
       {filtered ? (
         <Button
           variant="ghost"
-          onClick={() => onChange({ state: defaultFindingsSearch.state, assignee: undefined, testCase: undefined, target: undefined })}
+          onClick={() =>
+            onChange({ state: defaultFindingsSearch.state, branch: defaultFindingsSearch.branch, assignee: undefined, testCase: undefined, target: undefined })
+          }
         >
           Reset filters
         </Button>

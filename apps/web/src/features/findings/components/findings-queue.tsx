@@ -3,6 +3,7 @@ import { useCallback, useMemo, useState } from 'react';
 import { EmptyState } from '@/components/empty-state';
 import { ErrorState } from '@/components/error-state';
 import { Pagination } from '@/components/pagination';
+import { useOverview } from '@/features/projects/api/get-overview';
 import { useProjectAbilities, useCurrentUser } from '@/lib/authorization';
 import { useFindings } from '../api/get-findings';
 import { useMembers } from '../api/get-members';
@@ -33,6 +34,9 @@ export function FindingsQueue({
   const findings = useFindings(projectKey, search);
   const members = useMembers(projectKey);
   const testCases = useTestCaseOptions(projectKey);
+  // The branch filter offers the branches the overview lists (main first, then the most recent).
+  const overview = useOverview(projectKey);
+  const branches = useMemo(() => overview.data?.branches.map((b) => b.branch) ?? [], [overview.data]);
   const [commentsFor, setCommentsFor] = useState<string | null>(null);
   const assignees = useMemo(() => assigneeOptions(members.data ?? [], me?.id), [members.data, me?.id]);
   const openComments = useCallback((finding: FindingRow) => setCommentsFor(finding.id), []);
@@ -48,6 +52,7 @@ export function FindingsQueue({
         members={members.data ?? []}
         testCases={testCases.data ?? []}
         targets={targets}
+        branches={branches}
         onChange={patch}
       />
       {findings.isPending ? (

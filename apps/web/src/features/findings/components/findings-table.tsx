@@ -1,4 +1,4 @@
-import type { FindingRow } from '@earmark/contracts';
+import { findingCheckName, type FindingRow } from '@earmark/contracts';
 import {
   createColumnHelper,
   flexRender,
@@ -61,14 +61,15 @@ const columns = [
   column.accessor('title', {
     header: 'Finding',
     cell: ({ row, table }) => (
-      <div className="min-w-[220px]">
+      <div className="min-w-[140px] sm:min-w-[220px]">
         <Link
           to={paths.capture(metaOf(table).projectKey, row.original.buildSha, row.original.captureId)}
           className="font-medium text-ink-950 underline-offset-4 hover:underline"
+          title={row.original.title}
         >
-          {row.original.title}
+          {readableName(row.original)}
         </Link>
-        <p className="mt-0.5 text-[11.5px] text-ink-500">
+        <p className="mt-0.5 text-[11.5px] break-words text-ink-500">
           <span className="font-mono">
             {row.original.testCase} · {row.original.target}
           </span>
@@ -78,16 +79,7 @@ const columns = [
       </div>
     ),
   }),
-  column.accessor('margin', {
-    header: 'Margin',
-    cell: ({ row }) => (
-      <span className="font-mono text-[12.5px] whitespace-nowrap tabular-nums text-ink-800">{describeMargin(row.original)}</span>
-    ),
-  }),
-  column.accessor('buildSha', {
-    header: 'Build',
-    cell: ({ getValue, table }) => <ShortSha sha={getValue()} to={paths.build(metaOf(table).projectKey, getValue())} />,
-  }),
+  // State right after the name: on a phone the frame shows both before it scrolls.
   column.accessor('state', {
     header: 'State',
     cell: ({ row, table }) => {
@@ -100,6 +92,53 @@ const columns = [
         />
       ) : (
         <FindingStateLabel state={row.original.state} />
+      );
+    },
+  }),
+  column.accessor('margin', {
+    header: 'Margin',
+    cell: ({ row }) => (
+      <span className="font-mono text-[12.5px] whitespace-nowrap tabular-nums text-ink-800">{describeMargin(row.original)}</span>
+    ),
+  }),
+  column.accessor('failingSince', {
+    header: 'Failing since',
+    cell: ({ row, table }) => {
+      const since = row.original.failingSince;
+      if (since === undefined) return <span className="text-ink-400">—</span>;
+      return since ? (
+        <span data-failing-since={since.sha}>
+          <ShortSha sha={since.sha} to={paths.build(metaOf(table).projectKey, since.sha)} />
+        </span>
+      ) : (
+        <span className="text-xs whitespace-nowrap text-pass">passing now</span>
+      );
+    },
+  }),
+  column.accessor('occurrences', {
+    header: 'Seen',
+    cell: ({ row, table }) => {
+      const { firstSeen, occurrences, buildSha } = row.original;
+      return (
+        <div className="text-xs whitespace-nowrap text-ink-600" data-occurrences={occurrences}>
+          <span className="font-mono tabular-nums text-ink-900">{occurrences ?? '—'}</span> {occurrences === 1 ? 'build' : 'builds'}
+          <p className="mt-0.5 flex items-center gap-1">
+            first <ShortSha sha={firstSeen?.sha ?? buildSha} to={paths.build(metaOf(table).projectKey, firstSeen?.sha ?? buildSha)} />
+          </p>
+        </div>
+      );
+    },
+  }),
+  column.accessor('branch', {
+    header: 'Branch',
+    cell: ({ getValue }) => {
+      const branch = getValue();
+      return branch ? (
+        <span className="inline-block max-w-[160px] truncate font-mono text-[12.5px] text-ink-800" title={branch}>
+          {branch}
+        </span>
+      ) : (
+        <span className="text-ink-400">—</span>
       );
     },
   }),
@@ -127,6 +166,11 @@ const columns = [
     cell: ({ row, table }) => <CommentsButton finding={row.original} onOpen={() => metaOf(table).onOpenComments(row.original)} />,
   }),
 ];
+
+/** The failing check in words, rendered from the row's fields (stored titles may carry old wording). */
+function readableName(finding: FindingRow): string {
+  return finding.checkKind === undefined ? finding.title : findingCheckName(finding);
+}
 
 function Checkbox({
   checked,

@@ -1,12 +1,31 @@
 import { RequestWaiverRequest, type FindingRow } from '@earmark/contracts';
 import { useId, useState, type FormEvent } from 'react';
+import { Link } from 'react-router';
 import { Button } from '@/components/button';
 import { Dialog } from '@/components/dialog';
 import { TextArea, TextInput } from '@/components/form-controls';
 import { InlineError } from '@/components/inline-error';
+import { notify } from '@/components/toast';
+import { ApiError } from '@/lib/api-error';
+import { paths } from '@/lib/paths';
 import { useRequestWaiver } from '../api/request-waiver';
 
 const inDays = (days: number) => new Date(Date.now() + days * 86_400_000).toISOString().slice(0, 10);
+
+/** A second request refused (409): the API's words, and a link to the waiver that already exists (no id shown). */
+function ExistingWaiverNotice({ projectKey, error }: { projectKey: string; error: ApiError }) {
+  const existing = error.existing;
+  if (!existing) return null;
+  return (
+    <div role="alert" className="space-y-1.5 rounded-md border border-line-strong bg-paper px-3 py-2.5 text-sm text-ink-900">
+      <p className="font-semibold">A waiver for this check already exists</p>
+      <p className="text-ink-700">{error.detail}</p>
+      <Link to={`${paths.approvals(projectKey)}#waiver-${existing.id}`} className="inline-block font-medium text-ink-900 underline underline-offset-2">
+        {existing.state === 'requested' ? 'Open the waiver awaiting review' : 'Open the waiver in force'}
+      </Link>
+    </div>
+  );
+}
 
 /**
  * Request a waiver for a finding: the failing check counts as "passed with waiver" until the
@@ -34,7 +53,17 @@ export function RequestWaiverDialog({ projectKey, finding, onClose }: { projectK
       return;
     }
     setProblem(null);
-    request.mutate({ findingId: finding.id, body: parsed.data }, { onSuccess: close });
+    const what = `${finding.checkId} on ${finding.testCase}`;
+    request.mutate(
+      { findingId: finding.id, body: parsed.data },
+      {
+        onSuccess: () => {
+          notify.success(`Waiver of ${what} requested`, 'The project’s QA managers are mailed; one of them decides under Approvals.');
+          close();
+        },
+        onError: (error) => notify.error(`The waiver of ${what} was not requested`, error instanceof ApiError ? error.detail : undefined),
+      },
+    );
   };
   return (
     <Dialog
@@ -74,7 +103,11 @@ export function RequestWaiverDialog({ projectKey, finding, onClose }: { projectK
         </div>
         <p className="text-xs text-ink-600">A QA manager other than you decides. While approved, the check counts as passed with waiver; when it expires the finding re-opens.</p>
         {problem ? <p className="text-[13px] text-fail">{problem}</p> : null}
-        {request.error ? <InlineError error={request.error} /> : null}
+        {request.error instanceof ApiError && request.error.existing?.kind === 'waiver' ? (
+          <ExistingWaiverNotice projectKey={projectKey} error={request.error} />
+        ) : request.error ? (
+          <InlineError error={request.error} />
+        ) : null}
       </form>
     </Dialog>
   );

@@ -1,4 +1,4 @@
-import { FindingState, FindingsQuery } from '@earmark/contracts';
+import { FindingState, FindingsQuery, MAIN_BRANCH } from '@earmark/contracts';
 import { z } from 'zod';
 
 /**
@@ -8,27 +8,33 @@ import { z } from 'zod';
 export const FindingsStateFilter = z.union([FindingState, z.literal('active'), z.literal('all')]);
 export type FindingsStateFilter = z.infer<typeof FindingsStateFilter>;
 
+/** The branch filter's "every branch" (git branch names cannot contain `*`). */
+export const ANY_BRANCH = '*';
+
 export type FindingsSearch = {
   page: number;
   pageSize: number;
   state: FindingsStateFilter;
+  /** A branch, or ANY_BRANCH; the queue opens on main's findings. Left out (the capture page's list): every branch. */
+  branch?: string;
   assignee?: string;
   testCase?: string;
   target?: string;
 };
 
-export const defaultFindingsSearch: FindingsSearch = { page: 1, pageSize: 50, state: 'active' };
+export const defaultFindingsSearch: FindingsSearch = { page: 1, pageSize: 50, state: 'active', branch: MAIN_BRANCH };
 
 const Search = z.object({
   page: FindingsQuery.shape.page,
   pageSize: FindingsQuery.shape.pageSize,
   state: FindingsStateFilter.default('active'),
+  branch: z.union([FindingsQuery.shape.branch.unwrap(), z.literal(ANY_BRANCH)]).default(MAIN_BRANCH),
   assignee: FindingsQuery.shape.assignee,
   testCase: FindingsQuery.shape.testCase,
   target: FindingsQuery.shape.target,
 });
 
-const keys = ['page', 'pageSize', 'state', 'assignee', 'testCase', 'target'] as const;
+const keys = ['page', 'pageSize', 'state', 'branch', 'assignee', 'testCase', 'target'] as const;
 type Key = (typeof keys)[number];
 
 export function parseFindingsSearch(params: URLSearchParams): FindingsSearch {
@@ -64,6 +70,7 @@ export function findingsUrlParams(search: FindingsSearch): URLSearchParams {
 export function findingsApiParams(search: FindingsSearch & { captureId?: string }): URLSearchParams {
   const params = new URLSearchParams({ page: String(search.page), pageSize: String(search.pageSize) });
   if (search.state !== 'all') params.set('state', search.state);
+  if (search.branch && search.branch !== ANY_BRANCH) params.set('branch', search.branch);
   if (search.assignee) params.set('assignee', search.assignee);
   if (search.testCase) params.set('testCase', search.testCase);
   if (search.target) params.set('target', search.target);

@@ -4,7 +4,7 @@ import { Button } from '@/components/button';
 import { Select } from '@/components/form-controls';
 import { cn } from '@/lib/cn';
 import type { FieldIssues } from '@/lib/field-issues';
-import { CHECK_KIND_LABELS, CHECK_KINDS, freeId, KIND_FIELDS, move, starterCheck, type EditorCheck, type FieldSpec } from '../utils/editor-checks';
+import { CHECK_KIND_LABELS, CHECK_KINDS, fieldUnit, freeId, KIND_FIELDS, move, optionLabel, starterCheck, type EditorCheck, type FieldSpec } from '../utils/editor-checks';
 import { IssueText, SmallButton } from './editor-parts';
 import { BandTable, LimitCurveTable } from './limit-curve-table';
 
@@ -20,7 +20,7 @@ function FieldCell({
   readOnly,
   onChange,
 }: {
-  spec: Pick<FieldSpec, 'name' | 'label' | 'unit' | 'type' | 'options' | 'placeholder'>;
+  spec: Pick<FieldSpec, 'name' | 'label' | 'unit' | 'type' | 'options' | 'placeholder' | 'unitFromMetric'>;
   value: string;
   path: string;
   issues: FieldIssues;
@@ -31,15 +31,32 @@ function FieldCell({
   const messages = issues[path] ?? [];
   const name = `${spec.label}${spec.unit ? ` (${spec.unit})` : ''} of check ${checkNumber}`;
   const numeric = spec.type === 'number';
+  if (readOnly) {
+    // Read-only values are text, never a fixed-width input, so a long value is never cut off.
+    const shown = spec.type === 'select' ? optionLabel(spec, value) : value;
+    return (
+      <div className="flex min-w-0 flex-col gap-0.5" role="group" aria-label={name}>
+        <span className="text-[11px] text-ink-500">
+          {spec.label}
+          {spec.unit ? <span className="ml-1 font-mono">{spec.unit}</span> : null}
+        </span>
+        <span data-field={spec.name} className={cn('min-h-8 py-1.5 text-[13px] break-words text-ink-950', numeric && 'font-mono tabular-nums', !shown && 'text-ink-400')}>
+          {shown || (spec.placeholder === 'auto' ? 'auto' : '—')}
+        </span>
+      </div>
+    );
+  }
   return (
     <label className="flex min-w-0 flex-col gap-0.5">
       <span className="text-[11px] text-ink-500">
         {spec.label}
         {spec.unit ? <span className="ml-1 font-mono">{spec.unit}</span> : null}
       </span>
-      {spec.type === 'select' && !readOnly ? (
+      {spec.type === 'select' ? (
         <select aria-label={name} aria-invalid={messages.length ? true : undefined} className={cn(input, 'pr-6')} value={value} onChange={(e) => onChange(e.target.value)}>
           {spec.options?.some((o) => o.value === '') ? null : <option value="">—</option>}
+          {/* A stored value the list no longer offers (the engine self-test) stays visible, so its cell can say why it must go. */}
+          {value && !spec.options?.some((o) => o.value === value) ? <option value={value}>{optionLabel(spec, value)}</option> : null}
           {spec.options?.map((o) => (
             <option key={o.value} value={o.value}>
               {o.label}
@@ -152,7 +169,7 @@ export function ChecksEditor({
                         {KIND_FIELDS[check.kind].map((spec) => (
                           <FieldCell
                             key={spec.name}
-                            spec={spec}
+                            spec={{ ...spec, unit: fieldUnit(spec, check) }}
                             value={check.fields[spec.name] ?? ''}
                             path={`${base}.${spec.name}`}
                             issues={fieldIssues(issues, base, spec.name)}

@@ -15,9 +15,13 @@ import { drawablePoints, starterCheck, toEditorCheck, validateChecks, type Edito
 import { settingsFromForm, settingsToForm, type SettingsFormValues } from '../utils/settings-form';
 import { ChecksEditor } from './checks-editor';
 import { DeriveWizard } from './derive-wizard';
+import { placeDerived, placeDerivedInChecks, type DerivedPlacement } from '../utils/derive-wizard';
 import { LimitPreview } from './limit-preview';
 import { ReevaluateButton } from './reevaluate-button';
 import { RevisionSettings } from './revision-settings';
+import { useUnsavedChangesGuard } from './unsaved-changes-guard';
+import { notify } from '@/components/toast';
+import { ApiError } from '@/lib/api-error';
 
 /** What the editor holds: a stored revision, or a new draft that is not saved yet. */
 export type EditorSource = { revision: MaskRevisionDto } | { unsaved: { checks: MaskCheck[]; note: string; target: string | null } };
@@ -27,10 +31,6 @@ function initialChecks(source: EditorSource): EditorCheck[] {
   return checks.length ? checks.map(toEditorCheck) : [starterCheck('magnitude-envelope', 'response')];
 }
 
-/** Puts a derived envelope into a list of checks: it replaces a check with the same id, else it is added. */
-export function withDerived(checks: readonly MaskCheck[], derived: MagnitudeEnvelopeCheck): MaskCheck[] {
-  return checks.some((c) => c.id === derived.id) ? checks.map((c) => (c.id === derived.id ? derived : c)) : [...checks, derived];
-}
 
 /**
  * One revision open: its checks in the table editor (editable for the user's own drafts,
@@ -77,6 +77,7 @@ export function MaskWorkspace({
   const targets = useTargets(projectKey);
   const candidates = useCandidateCaptures(projectKey, caseKey);
 
+  const guard = useUnsavedChangesGuard(editable && dirty);
   const validation = useMemo(() => validateChecks(checks), [checks]);
   const settingsResult = useMemo(() => (settingsEditable && settingsForm ? settingsFromForm(settingsForm) : null), [settingsEditable, settingsForm]);
   const settingsIssues = settingsResult && !settingsResult.ok ? settingsResult.issues : save.error ? apiFieldIssues(save.error) : {};
@@ -104,12 +105,19 @@ export function MaskWorkspace({
     return saved;
   };
 
+  const failed = (what: string) => (error: unknown) => notify.error(what, error instanceof ApiError ? error.detail : undefined);
+
   const onSave = () => {
     void saveDraft()
       .then((saved) => {
-        if (saved && stored === null) onOpenRevision(saved.revision);
+        if (!saved) return;
+        notify.success(`Draft saved as revision ${saved.revision}`, `${caseKey}: ${saved.checks.length} ${saved.checks.length === 1 ? 'check' : 'checks'}`);
+        if (stored === null) {
+          guard.allowNext();
+          onOpenRevision(saved.revision);
+        }
       })
-      .catch(() => undefined);
+      .catch(failed('The draft was not saved'));
   };
 
   const onSubmit = () => {
@@ -117,25 +125,32 @@ export function MaskWorkspace({
       const revision = dirty || stored === null ? await saveDraft() : stored;
       if (!revision) return;
       await submit.mutateAsync(revision.revision);
+      notify.success(`Revision ${revision.revision} submitted for review`, 'A QA manager of this project decides it under Approvals.');
+      guard.allowNext();
       onOpenRevision(revision.revision);
-    })().catch(() => undefined);
+    })().catch(failed('The revision was not submitted'));
   };
 
-  const onUseDerived = (derived: MagnitudeEnvelopeCheck) => {
+  const onUseDerived = (derived: MagnitudeEnvelopeCheck, placement: DerivedPlacement) => {
     setDeriving(false);
+    const where = placement.mode === 'replace' ? `${placement.checkId} now holds the derived limits` : 'The derived limits were added as a new check';
     if (editable) {
-      const next = toEditorCheck(derived);
-      const at = checks.findIndex((c) => (c.fields.id ?? '') === derived.id);
-      change(at >= 0 ? checks.map((c, i) => (i === at ? next : c)) : [...checks, next]);
-      setPreviewUid(next.uid);
+      const next = placeDerived(checks, derived, placement, (c) => c.fields.id ?? '', toEditorCheck);
+      const before = new Set(checks.map((c) => c.uid));
+      change(next);
+      // The preview follows the new check, not the one it replaced.
+      setPreviewUid(next.find((c) => !before.has(c.uid))?.uid ?? null);
+      notify.success('Derived limits in the draft', `${where}. Save the draft to keep them.`);
     } else {
-      onStartDraft(withDerived(stored?.checks ?? [], derived));
+      onStartDraft(placeDerivedInChecks(stored?.checks ?? [], derived, placement));
+      notify.success('New draft with derived limits', `${where}. Save the draft to keep them.`);
     }
   };
 
   const actionError = save.error ?? submit.error ?? copy.error;
   return (
-    <div className="space-y-4">
+    <div className="min-w-0 space-y-4">
+      {guard.prompt}
       <div className="flex flex-wrap items-start justify-between gap-3 rounded-lg border border-line bg-paper-raised px-4 py-3">
         <div className="min-w-0 space-y-1">
           <div className="flex flex-wrap items-center gap-2">
@@ -159,7 +174,15 @@ export function MaskWorkspace({
               Derive from captures
             </Button>
             {stored ? (
-              <Button variant="secondary" busy={copy.isPending} onClick={() => copy.mutate({ revision: stored.revision, body: {} }, { onSuccess: (r) => onOpenRevision(r.revision) })}>
+              <Button variant="secondary" busy={copy.isPending} onClick={() => copy.mutate(
+                    { revision: stored.revision, body: {} },
+                    {
+                      onSuccess: (r) => {
+                        notify.success(`Copied to a new draft, revision ${r.revision}`);
+                        onOpenRevision(r.revision);
+                      },
+                    },
+                  )}>
                 Copy to new draft
               </Button>
             ) : null}
@@ -267,6 +290,9 @@ export function MaskWorkspace({
           open
           onClose={() => setDeriving(false)}
           candidates={candidates.data}
+          envelopeIds={envelopes.map((c) => c.fields.id ?? '').filter(Boolean)}
+          checkIds={checks.map((c) => c.fields.id ?? '')}
+          replaceId={previewed?.fields.id || null}
           onUse={onUseDerived}
         />
       ) : null}

@@ -1,4 +1,4 @@
-import type { CheckDiffStatus, MaskDiff, MaskRevisionDto } from '@earmark/contracts';
+import { describeCheckDiff, type CheckDiffStatus, type MaskDiff, type MaskRevisionDto } from '@earmark/contracts';
 import { ErrorState } from '@/components/error-state';
 import { Select } from '@/components/form-controls';
 import { RevisionStateBadge } from '@/components/revision-state-badge';
@@ -109,39 +109,48 @@ export function RevisionDiff({
             {diff.data.settingsChanges.length === 0 ? <span>· settings unchanged</span> : null}
           </p>
           {diff.data.settingsChanges.length ? <SettingsChanges changes={diff.data.settingsChanges} /> : null}
-          <table aria-label="Check differences" className="w-full border-collapse text-sm">
-            <thead>
-              <tr className="border-b border-line text-left text-xs font-semibold uppercase tracking-[0.06em] text-ink-500">
-                <th scope="col" className="h-9 w-32 pr-3">Status</th>
-                <th scope="col" className="pr-3">Check</th>
-                <th scope="col" className="pr-3">Field</th>
-                <th scope="col" className="pr-3">Before</th>
-                <th scope="col">After</th>
-              </tr>
-            </thead>
-            <tbody>
-              {diff.data.checks.map((check) => {
-                const style = statusStyle[check.status];
-                const rows = check.changes.length ? check.changes : [{ path: '', before: undefined, after: undefined }];
-                return rows.map((change, i) => (
-                  <tr key={`${check.id}-${change.path}-${i}`} className={cn('align-top', i === rows.length - 1 && 'border-b border-line')}>
-                    <td className="py-2 pr-3">
-                      {i === 0 ? (
+          <div className="overflow-x-auto">
+            <table aria-label="Check differences" className="w-full min-w-[520px] border-collapse text-sm">
+              <thead>
+                <tr className="border-b border-line text-left text-xs font-semibold uppercase tracking-[0.06em] text-ink-500">
+                  <th scope="col" className="h-9 w-32 pr-3">Status</th>
+                  <th scope="col" className="pr-3">Check</th>
+                  <th scope="col">What changes</th>
+                </tr>
+              </thead>
+              <tbody>
+                {diff.data.checks.map((check) => {
+                  const style = statusStyle[check.status];
+                  // In words ("upper limit at 8 kHz: +1.50 → +1.00 dB"), never raw paths like `upper.0.db`.
+                  const sentences = describeCheckDiff(check);
+                  return (
+                    <tr key={check.id} className="border-b border-line align-top">
+                      <td className="py-2 pr-3">
                         <span className={cn('inline-flex h-6 items-center gap-1.5 rounded-[5px] border px-2 text-xs font-medium', style.className)}>
                           <span aria-hidden="true" className="font-mono">{style.mark}</span>
                           {style.label}
                         </span>
-                      ) : null}
-                    </td>
-                    <td className="py-2 pr-3 font-mono text-[13px]">{i === 0 ? check.id : ''}</td>
-                    <td className="py-2 pr-3 font-mono text-xs text-ink-700">{change.path || (check.status === 'unchanged' ? '' : 'whole check')}</td>
-                    <td className="max-w-72 py-2 pr-3 font-mono text-xs break-all text-ink-600">{change.path ? show(change.before) : check.status === 'removed' ? check.kind : ''}</td>
-                    <td className="max-w-72 py-2 font-mono text-xs break-all text-ink-900">{change.path ? show(change.after) : check.status === 'added' ? check.kind : ''}</td>
-                  </tr>
-                ));
-              })}
-            </tbody>
-          </table>
+                      </td>
+                      <td className="py-2 pr-3 font-mono text-[13px]">{check.id}</td>
+                      <td className="py-2 text-[13px] text-ink-900">
+                        {sentences.length ? (
+                          <ul className="space-y-0.5">
+                            {sentences.map((sentence, i) => (
+                              <li key={i} className="break-words">
+                                {sentence}
+                              </li>
+                            ))}
+                          </ul>
+                        ) : (
+                          <span className="text-ink-500">—</span>
+                        )}
+                      </td>
+                    </tr>
+                  );
+                })}
+              </tbody>
+            </table>
+          </div>
         </>
       )}
     </section>

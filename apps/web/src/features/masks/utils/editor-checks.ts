@@ -1,11 +1,16 @@
 import {
+  ACCEPTANCE_LEVEL_METRICS,
+  CHECK_KIND_LABELS,
   CHECK_KINDS,
   DISTORTION_METRICS,
   INTEGRITY_METRICS,
-  LEVEL_METRICS,
   MaskDocument,
   HARMONIC_METRICS,
   TIMING_METRICS,
+  metricLabel,
+  metricUnit,
+  selfTestIssues,
+  smoothingLabel,
   type CheckKind,
   type LimitPoint,
   type MaskCheck,
@@ -41,26 +46,24 @@ export type FieldSpec = {
   type: 'text' | 'number' | 'select' | 'list' | 'pairs';
   options?: readonly { value: string; label: string }[];
   placeholder?: string;
+  /** min/max whose unit follows the check's metric ("dBFS" for an RMS level). */
+  unitFromMetric?: boolean;
 };
 
-export const CHECK_KIND_LABELS: Record<CheckKind, string> = {
-  'magnitude-envelope': 'Magnitude envelope',
-  'band-levels': 'Band levels',
-  level: 'Level and energy',
-  'phase-linearity': 'Phase linearity',
-  distortion: 'Distortion and noise',
-  timing: 'Timing',
-  integrity: 'Time-domain integrity',
-  'distortion-vs-frequency': 'Distortion vs frequency',
-  coherence: 'Coherence',
-  crosstalk: 'Crosstalk',
-};
+export { CHECK_KIND_LABELS };
 
-const options = (values: readonly string[]) => values.map((value) => ({ value, label: value }));
-const measure: FieldSpec = { name: 'measure', label: 'Measure', type: 'select', options: options(['transfer', 'level']) };
+/** Metrics by their labels with units ("RMS level (dBFS)"); the slug stays the stored value. */
+const metricOptions = (values: readonly string[]) => values.map((value) => ({ value, label: metricLabel(value) }));
+/** 1/N-octave designators in words ("1/6 octave"), never a bare "6". */
+const fractionOptions = (values: readonly number[]) => values.map((value) => ({ value: String(value), label: smoothingLabel(value) }));
+const measureOptions = [
+  { value: 'transfer', label: 'Transfer function |H|' },
+  { value: 'level', label: 'Level spectrum' },
+];
+const measure: FieldSpec = { name: 'measure', label: 'Measure', type: 'select', options: measureOptions };
 const referenceHz: FieldSpec = { name: 'referenceHz', label: 'Reference', unit: 'Hz', type: 'number', placeholder: '1000' };
-const min: FieldSpec = { name: 'min', label: 'Min', type: 'number' };
-const max: FieldSpec = { name: 'max', label: 'Max', type: 'number' };
+const min: FieldSpec = { name: 'min', label: 'Min', type: 'number', unitFromMetric: true };
+const max: FieldSpec = { name: 'max', label: 'Max', type: 'number', unitFromMetric: true };
 const band = (label: string): FieldSpec[] => [
   { name: 'bandHz.0', label: `${label} from`, unit: 'Hz', type: 'number', placeholder: 'auto' },
   { name: 'bandHz.1', label: `${label} to`, unit: 'Hz', type: 'number', placeholder: 'auto' },
@@ -71,11 +74,12 @@ export const KIND_FIELDS: Record<CheckKind, FieldSpec[]> = {
   'magnitude-envelope': [
     measure,
     referenceHz,
-    { name: 'smoothing', label: 'Smoothing', unit: '1/N oct', type: 'select', options: [{ value: '', label: 'none' }, ...options(['1', '3', '6', '12', '24'])] },
+    { name: 'smoothing', label: 'Smoothing', type: 'select', options: [{ value: '', label: 'none' }, ...fractionOptions([1, 3, 6, 12, 24])] },
   ],
-  'band-levels': [{ name: 'fraction', label: 'Bands', unit: '1/N oct', type: 'select', options: options(['1', '3', '6', '12']) }, measure, referenceHz],
+  'band-levels': [{ name: 'fraction', label: 'Bands', type: 'select', options: fractionOptions([1, 3, 6, 12]) }, measure, referenceHz],
   level: [
-    { name: 'metric', label: 'Metric', type: 'select', options: options(LEVEL_METRICS) },
+    // The engine's self-test (energy-parseval) is not offered: it is not an acceptance check.
+    { name: 'metric', label: 'Metric', type: 'select', options: metricOptions(ACCEPTANCE_LEVEL_METRICS) },
     min,
     max,
     { name: 'timeSeconds.0', label: 'From', unit: 's', type: 'number', placeholder: 'start' },
@@ -87,26 +91,26 @@ export const KIND_FIELDS: Record<CheckKind, FieldSpec[]> = {
     { name: 'maxGroupDelayVariationMs', label: 'Max GD variation', unit: 'ms', type: 'number' },
   ],
   distortion: [
-    { name: 'metric', label: 'Metric', type: 'select', options: options(DISTORTION_METRICS) },
+    { name: 'metric', label: 'Metric', type: 'select', options: metricOptions(DISTORTION_METRICS) },
     min,
     max,
     { name: 'weighting', label: 'Weighting', type: 'select', options: [{ value: '', label: 'default' }, { value: 'none', label: 'none' }, { value: 'a', label: 'A' }] },
     ...band('Band'),
   ],
   timing: [
-    { name: 'metric', label: 'Metric', type: 'select', options: options(TIMING_METRICS) },
-    { ...min, unit: 'ms' },
-    { ...max, unit: 'ms' },
+    { name: 'metric', label: 'Metric', type: 'select', options: metricOptions(TIMING_METRICS) },
+    min,
+    max,
     { name: 'pairs', label: 'Pairs', type: 'pairs', placeholder: '0-1, 0-2' },
   ],
   integrity: [
-    { name: 'metric', label: 'Metric', type: 'select', options: options(INTEGRITY_METRICS) },
+    { name: 'metric', label: 'Metric', type: 'select', options: metricOptions(INTEGRITY_METRICS) },
     max,
     { name: 'clipThreshold', label: 'Clip threshold', unit: 'FS', type: 'number' },
     { name: 'minDropoutMs', label: 'Min dropout', unit: 'ms', type: 'number' },
   ],
-  'distortion-vs-frequency': [{ name: 'metric', label: 'Metric', type: 'select', options: options(HARMONIC_METRICS) }],
-  coherence: [...band('Band'), { name: 'min', label: 'Min γ²', type: 'number' }],
+  'distortion-vs-frequency': [{ name: 'metric', label: 'Metric', type: 'select', options: metricOptions(HARMONIC_METRICS) }],
+  coherence: [...band('Band'), { name: 'min', label: 'Min coherence γ²', type: 'number' }],
   crosstalk: [
     { name: 'drivenChannel', label: 'Driven channel', type: 'number' },
     { name: 'minDb', label: 'Min separation', unit: 'dB', type: 'number' },
@@ -115,6 +119,20 @@ export const KIND_FIELDS: Record<CheckKind, FieldSpec[]> = {
 };
 
 export { CHECK_KINDS };
+
+/** The unit a field is shown in: its own, or for min/max the unit of the check's metric. */
+export function fieldUnit(spec: FieldSpec, check: EditorCheck): string | undefined {
+  if (!spec.unitFromMetric) return spec.unit;
+  const unit = metricUnit(check.fields.metric ?? '');
+  if (unit === null || unit === 'ratio') return undefined;
+  return unit === 'deg' ? '°' : unit;
+}
+
+/** A select's value in words for read-only display (the option's label, else the value as stored). */
+export function optionLabel(spec: FieldSpec, value: string): string {
+  if (spec.name === 'metric' && value) return metricLabel(value);
+  return spec.options?.find((o) => o.value === value)?.label ?? value;
+}
 
 let uidCounter = 0;
 export function newUid(): string {
@@ -272,9 +290,13 @@ export type Validation = { ok: true; checks: MaskCheck[] } | { ok: false; issues
 
 /** The whole draft against MaskDocument: every message keyed by its path (`checks.0.upper.1.hz`). */
 export function validateChecks(checks: readonly EditorCheck[]): Validation {
-  const parsed = MaskDocument.safeParse({ checks: checks.map(toCheckInput) });
-  if (parsed.success) return { ok: true, checks: parsed.data.checks };
-  const issues = issuesByPath(parsed.error);
+  const inputs = checks.map(toCheckInput);
+  const parsed = MaskDocument.safeParse({ checks: inputs });
+  // The API refuses the engine's self-test in a new revision; say so at its cell before saving.
+  const selfTests = selfTestIssues(inputs);
+  if (parsed.success && selfTests.length === 0) return { ok: true, checks: parsed.data.checks };
+  const issues = parsed.success ? {} : issuesByPath(parsed.error);
+  for (const { path, message } of selfTests) issues[path] = [...(issues[path] ?? []), message];
   // zod words a NaN as "expected number, received NaN"; say it the way a person typed it.
   for (const messages of Object.values(issues)) {
     messages.forEach((message, i) => {

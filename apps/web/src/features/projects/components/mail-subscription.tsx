@@ -4,33 +4,12 @@ import { useLocation } from 'react-router';
 import { InlineError } from '@/components/inline-error';
 import { Skeleton } from '@/components/skeleton';
 import { Spinner } from '@/components/spinner';
+import { Switch } from '@/components/switch';
 import { useSubscription } from '../api/get-subscription';
 import { useSetSubscription } from '../api/set-subscription';
-import { cn } from '@/lib/cn';
 
 /** The anchor build mail links to ("Change it on the project page"). */
 export const MAIL_SECTION_ID = 'mail';
-
-function Switch({ checked, busy, labelledBy, describedBy, onChange }: { checked: boolean; busy: boolean; labelledBy: string; describedBy: string; onChange: (next: boolean) => void }) {
-  return (
-    <button
-      type="button"
-      role="switch"
-      aria-checked={checked}
-      aria-labelledby={labelledBy}
-      aria-describedby={describedBy}
-      aria-busy={busy || undefined}
-      disabled={busy}
-      onClick={() => onChange(!checked)}
-      className={cn(
-        'relative inline-flex h-6 w-11 shrink-0 items-center rounded-full border transition-colors disabled:cursor-wait',
-        checked ? 'border-ink-900 bg-ink-900' : 'border-line-strong bg-ink-100',
-      )}
-    >
-      <span className={cn('inline-block size-4.5 rounded-full bg-white shadow transition-transform', checked ? 'translate-x-5.5' : 'translate-x-0.5')} />
-    </button>
-  );
-}
 
 /**
  * The member's own build-mail setting for this project: build failures (and drift notices)

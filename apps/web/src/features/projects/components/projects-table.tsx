@@ -34,7 +34,7 @@ const columns = [
     cell: ({ row }) => (
       <div className="min-w-[220px]">
         <Link
-          to={paths.builds(row.original.key)}
+          to={paths.project(row.original.key)}
           className="font-medium text-ink-950 underline-offset-4 hover:underline focus-visible:underline"
         >
           {row.original.name}

@@ -3,9 +3,10 @@ import { useEffect, useId, useRef, useState, type FormEvent } from 'react';
 import { Button } from '@/components/button';
 import { CopyButton } from '@/components/copy-button';
 import { Dialog } from '@/components/dialog';
-import { TextInput } from '@/components/form-controls';
+import { Select, TextInput } from '@/components/form-controls';
 import { InlineError } from '@/components/inline-error';
 import { useCreateToken } from '../api/create-token';
+import { expiryChoiceLabels, expiryChoices, expiryInstant, localDateInputValue, type ExpiryChoice } from '../utils/token-expiry';
 import { scopeDescriptions } from './scopes';
 
 function SecretView({ token }: { token: CreatedApiToken }) {
@@ -50,28 +51,35 @@ function SecretView({ token }: { token: CreatedApiToken }) {
  * resets the mutation so the secret is gone from memory, not just from view.
  */
 export function CreateTokenDialog({ projectKey, open, onClose }: { projectKey: string; open: boolean; onClose: () => void }) {
-  const ids = { name: useId(), nameError: useId() };
+  const ids = { name: useId(), nameError: useId(), expiry: useId(), expiryDate: useId(), expiryError: useId() };
   const [name, setName] = useState('');
+  const [expiry, setExpiry] = useState<ExpiryChoice>('never');
+  const [expiryDate, setExpiryDate] = useState('');
   const [scopes, setScopes] = useState<TokenScope[]>(['submit-captures', 'read-verdicts']);
-  const [problem, setProblem] = useState<{ name?: string; scopes?: string }>({});
+  const [problem, setProblem] = useState<{ name?: string; scopes?: string; expiry?: string }>({});
   const create = useCreateToken(projectKey);
 
   const close = () => {
     create.reset();
     setName('');
     setScopes(['submit-captures', 'read-verdicts']);
+    setExpiry('never');
+    setExpiryDate('');
     setProblem({});
     onClose();
   };
 
   const onSubmit = (event: FormEvent) => {
     event.preventDefault();
-    const parsed = CreateApiTokenRequest.safeParse({ name: name.trim(), scopes });
-    if (!parsed.success) {
-      const fields = new Set(parsed.error.issues.map((issue) => issue.path[0]));
+    const until = expiryInstant(expiry, expiryDate, new Date());
+    // "Never" sends no expiry at all, as before expiry existed.
+    const parsed = CreateApiTokenRequest.safeParse({ name: name.trim(), scopes, ...('expiresAt' in until && until.expiresAt ? { expiresAt: until.expiresAt } : {}) });
+    if (!parsed.success || 'error' in until) {
+      const fields = new Set(parsed.error?.issues.map((issue) => issue.path[0]));
       setProblem({
         name: fields.has('name') ? 'Give the token a name (up to 80 characters), e.g. the pipeline that uses it.' : undefined,
         scopes: fields.has('scopes') ? 'Choose at least one scope.' : undefined,
+        expiry: 'error' in until ? until.error : undefined,
       });
       return;
     }
@@ -153,6 +161,41 @@ export function CreateTokenDialog({ projectKey, open, onClose }: { projectKey: s
             </div>
             {problem.scopes ? <p className="mt-1.5 text-[13px] text-fail">{problem.scopes}</p> : null}
           </fieldset>
+          <div>
+            <label htmlFor={ids.expiry} className="mb-1.5 block text-sm font-medium text-ink-800">
+              Expires
+            </label>
+            <div className="flex flex-wrap items-center gap-2">
+              <Select id={ids.expiry} value={expiry} onChange={(event) => setExpiry(event.target.value as ExpiryChoice)} className="w-44">
+                {expiryChoices.map((choice) => (
+                  <option key={choice} value={choice}>
+                    {expiryChoiceLabels[choice]}
+                  </option>
+                ))}
+              </Select>
+              {expiry === 'date' ? (
+                <TextInput
+                  id={ids.expiryDate}
+                  type="date"
+                  aria-label="Last day of use"
+                  min={localDateInputValue(new Date())}
+                  value={expiryDate}
+                  aria-invalid={problem.expiry ? true : undefined}
+                  aria-describedby={problem.expiry ? ids.expiryError : undefined}
+                  onChange={(event) => setExpiryDate(event.target.value)}
+                  className="w-44"
+                />
+              ) : null}
+            </div>
+            <p className="mt-1.5 text-[13px] text-ink-600">
+              After this the API refuses the token and the pipeline&apos;s log says it expired. A picked day is usable to its end.
+            </p>
+            {problem.expiry ? (
+              <p id={ids.expiryError} className="mt-1.5 text-[13px] text-fail">
+                {problem.expiry}
+              </p>
+            ) : null}
+          </div>
           {create.error ? <InlineError error={create.error} /> : null}
         </form>
       )}

@@ -6,7 +6,9 @@ import { InlineError } from '@/components/inline-error';
 import { RelativeTime } from '@/components/relative-time';
 import { Skeleton } from '@/components/skeleton';
 import { cn } from '@/lib/cn';
+import { formatDateTime } from '@/lib/format-time';
 import { useRevokeToken } from '../api/revoke-token';
+import { describeExpiry } from '../utils/token-expiry';
 import { scopeDescriptions } from './scopes';
 
 function RevokeDialog({ projectKey, token, onClose }: { projectKey: string; token: ApiTokenRow | null; onClose: () => void }) {
@@ -66,8 +68,10 @@ export function TokensTable({ projectKey, tokens }: { projectKey: string; tokens
           <tbody>
             {sorted.map((token) => {
               const revoked = token.revokedAt !== null;
+              const expiry = describeExpiry(token.expiresAt);
+              const expired = expiry?.expired === true;
               return (
-                <tr key={token.id} data-token-id={token.id} className={cn('border-b border-line last:border-b-0', revoked && 'text-ink-500')}>
+                <tr key={token.id} data-token-id={token.id} className={cn('border-b border-line last:border-b-0', (revoked || expired) && 'text-ink-500')}>
                   <td className="px-4 py-3 font-medium text-ink-900">{token.name}</td>
                   <td className="px-4 py-3">
                     <code className="rounded bg-ink-900/[0.05] px-1.5 py-0.5 font-mono text-[12.5px]">{token.prefix}…</code>
@@ -96,17 +100,33 @@ export function TokensTable({ projectKey, tokens }: { projectKey: string; tokens
                         </svg>
                         Revoked <RelativeTime iso={token.revokedAt} />
                       </span>
+                    ) : expired && token.expiresAt ? (
+                      <span className="inline-flex items-center gap-1.5 text-[13px] text-fail" title={formatDateTime(token.expiresAt)}>
+                        <svg viewBox="0 0 12 12" aria-hidden="true" className="size-3">
+                          <circle cx="6" cy="6" r="4.5" fill="none" stroke="currentColor" strokeWidth="1.3" />
+                          <path d="M6 3.5V6l1.6 1.2" fill="none" stroke="currentColor" strokeWidth="1.3" strokeLinecap="round" />
+                        </svg>
+                        Expired
+                        <span className="text-ink-500">· {expiry.text}</span>
+                      </span>
                     ) : (
                       <span className="inline-flex items-center gap-1.5 text-[13px] text-ink-800">
                         <svg viewBox="0 0 12 12" aria-hidden="true" className="size-3">
                           <circle cx="6" cy="6" r="4.5" fill="currentColor" />
                         </svg>
                         Active
+                        {expiry && token.expiresAt ? (
+                          <span className="text-ink-500" title={formatDateTime(token.expiresAt)}>
+                            · {expiry.text}
+                          </span>
+                        ) : (
+                          <span className="text-ink-500">· never expires</span>
+                        )}
                       </span>
                     )}
                   </td>
                   <td className="px-4 py-3 text-right">
-                    {revoked ? null : (
+                    {revoked || expired ? null : (
                       <Button variant="secondary" className="h-8" onClick={() => setRevoking(token)}>
                         Revoke
                       </Button>
