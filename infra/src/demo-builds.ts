@@ -30,7 +30,7 @@ export async function seedDemoBuilds(apiUrl: string, token: string, log: (l: str
   log(`Sending the demo history (${DEMO_BUILDS.length} builds over six weeks) through the pipeline…`);
   const now = Date.now();
   for (const build of DEMO_BUILDS) {
-    const res = await fetch(`${apiUrl}/api/v1/projects/kestrel-buds/builds`, {
+    const res = await retryingFetch(`${apiUrl}/api/v1/projects/kestrel-buds/builds`, {
       method: 'POST',
       headers: { ...headers, 'content-type': 'application/json' },
       body: JSON.stringify({ sha: build.sha, branch: build.branch, label: build.label, builtAt: new Date(now - build.hoursAgo * 3_600_000).toISOString() }),
@@ -60,12 +60,27 @@ async function upload(apiUrl: string, headers: Record<string, string>, build: De
   if (!spec) throw new Error(`the demo has no test case ${capture.testCase}`);
   const cell = `${build.sha}/${capture.testCase}/${capture.target}`;
   const wav = encodeWav([demoCaptureAudio(spec, capture, seedOf(cell))], spec.sampleRate, { bitsPerSample: 24 });
-  const res = await fetch(`${apiUrl}/api/v1/projects/kestrel-buds/builds/${build.sha}/captures?testCase=${capture.testCase}&target=${capture.target}`, {
+  const res = await retryingFetch(`${apiUrl}/api/v1/projects/kestrel-buds/builds/${build.sha}/captures?testCase=${capture.testCase}&target=${capture.target}`, {
     method: 'POST',
     headers: { ...headers, 'content-type': 'audio/wav', 'idempotency-key': `demo-${build.sha}-${capture.testCase}-${capture.target}` },
     body: Buffer.from(wav),
   });
   if (!res.ok) log(`demo capture ${cell} was refused: ${res.status} ${await res.text()}`);
+}
+
+/**
+ * fetch, tried again when the connection fails before an answer (a kept-alive socket the server
+ * closed, a busy machine). Safe: build upserts are idempotent, uploads carry an Idempotency-Key.
+ */
+async function retryingFetch(url: string, init: RequestInit, attempts = 4): Promise<Response> {
+  for (let attempt = 1; ; attempt++) {
+    try {
+      return await fetch(url, init);
+    } catch (error) {
+      if (attempt >= attempts) throw error;
+      await new Promise((r) => setTimeout(r, 500 * attempt));
+    }
+  }
 }
 
 async function waitUntilJudged(apiUrl: string, headers: Record<string, string>): Promise<void> {

@@ -94,7 +94,7 @@ function nightly(index: number): DemoBuild {
   }
   if (n === 399) captures.push(at('voice.uplink.sweep', 'evt2-48k', unit));
   const label = `nightly ${n}`;
-  // One nightly every 1.75 days, made a little after 02:00, the oldest DEMO_HISTORY_DAYS − 0.5 days ago.
+  // One nightly every 42 hours, give or take half an hour; the oldest DEMO_HISTORY_DAYS − 0.5 days ago.
   const hoursAgo = (DEMO_HISTORY_DAYS - 0.5) * 24 - index * 42 - (index % 3) * 0.4;
   return { sha: demoSha(label), branch: 'main', label, hoursAgo, captures };
 }
@@ -110,11 +110,11 @@ const BLE = 'feature/ble-buffers';
 export const DEMO_BUILDS: readonly DemoBuild[] = [
   ...Array.from({ length: NIGHTLIES }, (_, i) => nightly(i)),
   branchBuild(LIMITER, 'limiter: faster attack', 21 * 24 + 5, [
-    at('eq.music.sweep', 'evt2-48k', 'K-02', { kind: 'limiter-overshoot', seconds: 0.15, overshootDb: 13 }),
+    at('eq.music.sweep', 'evt2-48k', 'K-02', { kind: 'limiter-overshoot', seconds: 0.08, overshootDb: 13 }),
     at('level.tone.997', 'evt2-48k', 'K-02'),
   ]),
   branchBuild(LIMITER, 'limiter: softer knee', 19 * 24 + 7, [
-    at('eq.music.sweep', 'evt2-48k', 'K-02', { kind: 'limiter-overshoot', seconds: 0.08, overshootDb: 12.5 }),
+    at('eq.music.sweep', 'evt2-48k', 'K-02', { kind: 'limiter-overshoot', seconds: 0.04, overshootDb: 12.5 }),
     at('level.tone.997', 'evt2-48k', 'K-02'),
   ]),
   branchBuild(LIMITER, 'limiter: look-ahead 1 ms', 17 * 24 + 3, [at('eq.music.sweep', 'evt2-48k', 'K-04'), at('level.tone.997', 'evt2-48k', 'K-04')]),

@@ -129,13 +129,18 @@ describe('admin area', () => {
     await invitee.close();
 
     const signedIn = await signInAs(INVITEE.email, INVITEE.password, true);
-    await signedIn.getByRole('heading', { name: 'Projects' }).waitFor();
+    await signedIn.getByRole('heading', { name: 'Projects', exact: true }).waitFor();
+    // Not a member of anything yet.
+    await signedIn.getByText('No projects yet').waitFor();
     expect(await signedIn.getByText('kestrel-buds').count()).toBe(0);
     await signedIn.close();
-    await page.goto(`${stack.url}/admin/users`);
-    await rowOf(page, INVITEE.email).getByText('Active').waitFor();
     await page.close();
-  });
+    // The browser's one session is the invitee's now; the administrator signs in again.
+    const again = await adminPage();
+    await again.goto(`${stack.url}/admin/users`);
+    await rowOf(again, INVITEE.email).getByText('Active').waitFor();
+    await again.close();
+  }, 120_000);
 
   it('adds the person to a project with a role, which they then see', async () => {
     const page = await adminPage();
@@ -152,12 +157,12 @@ describe('admin area', () => {
     await screenshot(page, 'members');
 
     const member = await signInAs(INVITEE.email, INVITEE.password, true);
-    await member.getByRole('heading', { name: 'Projects' }).waitFor();
+    await member.getByRole('heading', { name: 'Projects', exact: true }).waitFor();
     await member.getByText('kestrel-buds').first().waitFor();
     expect(await member.getByText('Engineer').first().isVisible()).toBe(true);
     await member.close();
     await page.close();
-  });
+  }, 120_000);
 
   it('disables the person after a confirmation; they can no longer sign in', async () => {
     const page = await adminPage();
@@ -176,7 +181,7 @@ describe('admin area', () => {
     await refused.getByText('The e-mail or password is wrong.').waitFor();
     await refused.close();
     await page.close();
-  });
+  }, 120_000);
 
   it('creates a project and archives it after a confirmation; it leaves the projects list', async () => {
     const page = await adminPage();
@@ -204,7 +209,7 @@ describe('admin area', () => {
     expect(await page.getByText('wren-speaker').count()).toBe(0);
     await expectNoDocumentOverflow(page);
     await page.close();
-  });
+  }, 120_000);
 
   it('shows the audit log with names and links, filtered by action and project', async () => {
     const page = await adminPage();
@@ -235,7 +240,6 @@ describe('admin area', () => {
     const membership = table.getByRole('row').filter({ has: page.getByRole('cell', { name: 'membership.set', exact: true }) }).filter({ hasText: 'Runa Velde' });
     await membership.waitFor();
     expect(await membership.getByRole('link', { name: 'Kestrel Buds' }).getAttribute('href')).toBe('/projects/kestrel-buds');
-    await screenshot(page, 'admin-audit');
 
     // A link from the log marks the person's row on the Users tab.
     await membership.getByRole('link', { name: 'Runa Velde' }).click();
@@ -243,9 +247,10 @@ describe('admin area', () => {
     expect(await page.locator('tr[aria-current="true"]').innerText()).toContain(INVITEE.email);
     await page.goto(`${stack.url}/admin/audit`);
     await page.getByRole('table', { name: 'Workspace audit log' }).waitFor();
+    await screenshot(page, 'admin-audit');
     await expectNoDocumentOverflow(page);
     await page.close();
-  });
+  }, 120_000);
 
   it('left no console errors', () => {
     expect(consoleErrors).toEqual([]);

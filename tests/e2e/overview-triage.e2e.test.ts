@@ -1,29 +1,33 @@
 import fs from 'node:fs';
 import { MAIN_BRANCH, StimulusSpec, type FindingsPage, type ProjectOverview } from '@earmark/contracts';
-import { DEMO_PASSWORD } from '@earmark/db';
+import { TEST_PASSWORD } from '@earmark/db';
 import { encodeWav, stimulusAsPlayed } from '@earmark/dsp';
 import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { launchBrowser } from '../support/browser.js';
-import { screenshot, screenshotsDir, signedInPage } from '../support/browser-session.js';
-import { startDemoHistory } from '../support/demo-history.js';
-import type { Stack } from '../support/stack.js';
+import { screenshot, screenshotsDir } from '../support/browser-session.js';
+import { startStack, type Stack } from '../support/stack.js';
 import { waitFor } from '../support/wait-for.js';
 
 /**
  * The project overview as the landing page, the findings triage by branch, and the shell at phone
- * width, in Chromium over the demo history. A small history of our own (pass, pass, fail, fail on
- * main) checks that the overview names the third build as the one the failure began with.
+ * width, in Chromium. The history is made here through the CI API as a pipeline would: on main a
+ * level check passes, passes, fails, fails (the overview must name the third build as the one the
+ * failure began with); a feature branch fails on its own; an engineer asks for a waiver that the QA
+ * manager may decide. (The demo history takes minutes on two busy cores; this takes seconds.)
  */
-const PROJECT = 'kestrel-buds';
-const CASE = 'bench.level.e2e';
-const TARGET = 'bench-e2e';
+const PROJECT = 'alpha-dsp';
+const CASE = 'bench.level';
+const TARGET = 'bench-rig';
+const FEATURE = 'feature/limiter-retune';
 const HISTORY = [
-  { sha: 'e2e0a11ce1', fails: false },
-  { sha: 'e2e0a11ce2', fails: false },
-  { sha: 'e2e0a11ce3', fails: true },
-  { sha: 'e2e0a11ce4', fails: true },
+  { sha: '3b9e1c0a01', label: 'nightly 101', branch: MAIN_BRANCH, fails: false },
+  { sha: '5d27f4e802', label: 'nightly 102', branch: MAIN_BRANCH, fails: false },
+  { sha: '7e4a0c9b13', label: 'nightly 103', branch: MAIN_BRANCH, fails: true },
+  { sha: 'c4f1aa7e55', label: 'limiter retune', branch: FEATURE, fails: true },
+  { sha: '9f03d2b6c4', label: 'nightly 104', branch: MAIN_BRANCH, fails: true },
 ];
+const [, , third, feature, fourth] = HISTORY as [unknown, unknown, (typeof HISTORY)[number], (typeof HISTORY)[number], (typeof HISTORY)[number]];
 const spec = StimulusSpec.parse({ kind: 'sine', sampleRate: 48000, seconds: 0.5, frequency: 997, levelDbfs: -12 });
 const played = stimulusAsPlayed(spec).channels[0]!;
 /** As played (about −15 dBFS RMS), or 26 dB quieter: below the mask's −30 dBFS floor. */
@@ -32,7 +36,23 @@ const captureOf = (fails: boolean) => Buffer.from(encodeWav([fails ? played.map(
 let stack: Stack;
 let browser: Awaited<ReturnType<typeof launchBrowser>>;
 const consoleErrors: string[] = [];
-const pageAs = (email: string): Promise<Page> => signedInPage(browser.context, stack.url, email, consoleErrors);
+
+async function pageAs(email: string, width = 1440, height = 900): Promise<Page> {
+  const page = await browser.context.newPage();
+  page.on('console', (msg) => {
+    if (msg.type() === 'error') consoleErrors.push(`${email}: ${msg.text()}`);
+  });
+  page.on('pageerror', (error) => consoleErrors.push(`${email}: ${error.message}`));
+  await page.setViewportSize({ width, height });
+  await page.goto(`${stack.url}/`);
+  await page.evaluate(() => localStorage.clear());
+  await page.goto(`${stack.url}/sign-in`);
+  await page.getByLabel('Email').fill(email);
+  await page.getByLabel('Password').fill(TEST_PASSWORD);
+  await page.getByRole('button', { name: 'Sign in' }).click();
+  await page.getByRole('heading', { name: 'Projects' }).waitFor();
+  return page;
+}
 
 async function api<T = unknown>(method: string, path: string, token: string, body?: unknown): Promise<T> {
   const res = await fetch(`${stack.url}${path}`, {
@@ -46,13 +66,13 @@ async function api<T = unknown>(method: string, path: string, token: string, bod
 }
 
 async function login(email: string): Promise<string> {
-  const res = await fetch(`${stack.url}/api/auth/login`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email, password: DEMO_PASSWORD }) });
+  const res = await fetch(`${stack.url}/api/auth/login`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email, password: TEST_PASSWORD }) });
   return ((await res.json()) as { accessToken: string }).accessToken;
 }
 
-/** A build on main with one capture of our test case, uploaded with the CI token; resolves with its verdict. */
-async function submitBuild(sha: string, fails: boolean): Promise<string> {
-  await api('POST', `/api/v1/projects/${PROJECT}/builds`, stack.ciToken, { sha, branch: MAIN_BRANCH, label: `e2e ${sha.slice(-1)}` });
+/** A build with one capture of our test case, uploaded with the CI token; resolves with its verdict. */
+async function submitBuild({ sha, label, branch, fails }: (typeof HISTORY)[number]): Promise<string> {
+  await api('POST', `/api/v1/projects/${PROJECT}/builds`, stack.ciToken, { sha, branch, label });
   const res = await fetch(`${stack.url}/api/v1/projects/${PROJECT}/builds/${sha}/captures?testCase=${CASE}&target=${TARGET}`, {
     method: 'POST',
     headers: { authorization: `Bearer ${stack.ciToken}`, 'content-type': 'audio/wav' },
@@ -83,8 +103,23 @@ const statusLabel: Record<string, string> = { pass: 'Pass', fail: 'Fail', error:
 
 beforeAll(async () => {
   fs.mkdirSync(screenshotsDir, { recursive: true });
-  stack = await startDemoHistory();
+  stack = await startStack({ seed: 'roles' });
+  await stack.startWorker();
   browser = await launchBrowser();
+  const engineer = await login('engineer@example.test');
+  const qa = await login('qa_manager@example.test');
+  await api('POST', `/api/projects/${PROJECT}/targets`, engineer, { key: TARGET, name: 'Bench rig', sampleRate: null });
+  await api('POST', `/api/projects/${PROJECT}/test-cases`, engineer, { key: CASE, name: 'Bench level, 997 Hz tone', stimulus: spec, channelMap: [0] });
+  const draft = await api<{ revision: number }>('POST', `/api/projects/${PROJECT}/test-cases/${CASE}/masks`, engineer, {
+    checks: [{ id: 'bench-level', kind: 'level', label: 'Bench level', metric: 'rms-dbfs', min: -30 }],
+    note: 'e2e floor',
+  });
+  await api('POST', `/api/projects/${PROJECT}/test-cases/${CASE}/masks/${draft.revision}/submit`, engineer);
+  await api('POST', `/api/projects/${PROJECT}/test-cases/${CASE}/masks/${draft.revision}/approve`, qa, {});
+  for (const build of HISTORY) expect(await submitBuild(build)).toBe(build.fails ? 'fail' : 'pass');
+  // The engineer asks for a waiver of main's finding: one decision awaits the QA manager.
+  const [finding] = (await api<FindingsPage>('GET', `/api/projects/${PROJECT}/findings?branch=main`, engineer)).items;
+  await api('POST', `/api/projects/${PROJECT}/findings/${finding!.id}/waivers`, engineer, { reason: 'Bench rig attenuator under repair', until: '2099-01-31' });
 }, 240_000);
 
 afterAll(async () => {
@@ -93,93 +128,110 @@ afterAll(async () => {
 });
 
 describe('the overview as the landing page, triage by branch, the shell at 390 px', () => {
-  it("lands on the overview from the project list, shows main's verdict and the menu's counts as the API reports them", async () => {
-    const qa = await login('qa@fernwick.test');
+  it("lands on the overview from the project list: main's verdict, failing since the third build, trends and the menu's counts as the API reports them", async () => {
+    const qa = await login('qa_manager@example.test');
     const overview = await api<ProjectOverview>('GET', `/api/projects/${PROJECT}/overview`, qa);
-    const page = await pageAs('qa@fernwick.test');
-    await page.setViewportSize({ width: 1440, height: 900 });
-    await page.getByRole('link', { name: 'Kestrel Buds' }).click();
+    expect(overview.main).toMatchObject({ sha: fourth.sha, status: 'fail' });
+    expect(overview.failing.map((f) => [f.checkId, f.since.sha, f.latest.sha, f.streak])).toEqual([['bench-level', third.sha, fourth.sha, 2]]);
+    expect(overview.counts).toEqual({ awaitingYou: 1, openFindingsOnMain: 1 });
+
+    const page = await pageAs('qa_manager@example.test');
+    await page.getByRole('link', { name: 'Alpha DSP' }).click();
     await page.waitForURL(`${stack.url}/projects/${PROJECT}`);
     const latest = page.getByRole('region', { name: /Latest on main/ });
     await latest.waitFor();
-    expect(await latest.getAttribute('aria-labelledby')).toBe('main-verdict');
-    expect(overview.main).not.toBeNull();
-    expect(await latest.locator('[data-main-status]').getAttribute('data-main-status')).toBe(overview.main!.status);
-    expect(await latest.textContent()).toContain(statusLabel[overview.main!.status]);
-    expect(await latest.textContent()).toContain(overview.main!.sha.slice(0, 7));
-    // The branches with their trend marks: main first, each mark a link to its build.
+    expect(await latest.locator('[data-main-status]').getAttribute('data-main-status')).toBe('fail');
+    expect(await latest.textContent()).toContain(statusLabel.fail);
+    expect(await latest.textContent()).toContain(fourth.sha.slice(0, 7));
+    expect(await latest.textContent()).toContain('1 open finding on main');
+
+    // What fails on main, and since which build: the third, found from the history.
+    const item = page.getByRole('region', { name: /Failing on main now/ }).locator('[data-failing-check="bench-level"]');
+    await item.waitFor();
+    expect(await item.locator('[data-since]').getAttribute('data-since')).toBe(third.sha);
+    const text = (await item.textContent()) ?? '';
+    expect(text).toContain('Bench level (level)');
+    expect(text).toContain(`failing since ${third.sha.slice(0, 7)}`);
+    expect(text).toContain('2 builds');
+    // The margin in the one formatter: a dBFS check's margin is a difference in dB, with the real minus sign.
+    expect(text).toMatch(/−\d+\.\d\d dB/);
+    expect(text).not.toContain('dBFS');
+
+    // Each branch's trend, main first, oldest mark left.
     const branches = page.getByRole('region', { name: 'Branches' });
-    expect(await branches.locator('[data-branch]').evaluateAll((rows) => rows.map((r) => (r as HTMLElement).dataset.branch))).toEqual(overview.branches.map((b) => b.branch));
-    const mainMarks = branches.locator('[data-branch="main"] [data-trend-mark]');
-    expect(await mainMarks.evaluateAll((marks) => marks.map((m) => (m as HTMLElement).dataset.trendMark))).toEqual(overview.branches[0]!.marks.map((m) => m.status));
-    // The menu's counts are the API's.
+    expect(await branches.locator('[data-branch]').evaluateAll((rows) => rows.map((r) => (r as HTMLElement).dataset.branch))).toEqual([MAIN_BRANCH, FEATURE]);
+    const marks = (branch: string) => branches.locator(`[data-branch="${branch}"] [data-trend-mark]`).evaluateAll((m) => m.map((x) => (x as HTMLElement).dataset.trendMark));
+    expect(await marks(MAIN_BRANCH)).toEqual(['pass', 'pass', 'fail', 'fail']);
+    expect(await marks(FEATURE)).toEqual(['fail']);
+
+    // The waiver request awaits this QA manager; the menu carries the API's counts.
+    const awaiting = page.getByRole('region', { name: /Awaiting your decision/ });
+    expect(await awaiting.locator('[data-awaiting="waiver"]').count()).toBe(1);
+    expect(await awaiting.textContent()).toContain('engineer@example.test');
     await page.waitForLoadState('networkidle');
     expect(await navCount(page, 'Findings')).toBe(overview.counts.openFindingsOnMain);
     expect(await navCount(page, 'Approvals')).toBe(overview.counts.awaitingYou);
-    const awaiting = page.getByRole('region', { name: /Awaiting your decision/ });
-    expect(await awaiting.locator('[data-awaiting]').count()).toBe(overview.awaiting.length);
     await screenshot(page, 'overview');
     await noDocumentOverflow(page, 1280);
     await noDocumentOverflow(page, 390);
     await page.close();
+
+    // An engineer decides nothing: no count on a menu item they do not have, and none awaiting.
+    const asEngineer = await api<ProjectOverview>('GET', `/api/projects/${PROJECT}/overview`, await login('engineer@example.test'));
+    expect(asEngineer.counts.awaitingYou).toBe(0);
   });
 
   it('lists findings by branch, main by default, with first sighting, occurrences and "since"; bulk actions fit at 1280 px', async () => {
-    const engineer = await login('engineer@fernwick.test');
-    const overview = await api<ProjectOverview>('GET', `/api/projects/${PROJECT}/overview`, engineer);
-    const onMain = await api<FindingsPage>('GET', `/api/projects/${PROJECT}/findings?state=active&branch=main&pageSize=50`, engineer);
-    const page = await pageAs('engineer@fernwick.test');
-    await page.setViewportSize({ width: 1440, height: 900 });
+    const engineer = await login('engineer@example.test');
+    const onMain = await api<FindingsPage>('GET', `/api/projects/${PROJECT}/findings?state=active&branch=main`, engineer);
+    expect(onMain.items.map((f) => [f.branch, f.firstSeen?.sha, f.occurrences, f.failingSince?.sha])).toEqual([[MAIN_BRANCH, third.sha, 2, third.sha]]);
+    const page = await pageAs('engineer@example.test');
     await page.goto(`${stack.url}/projects/${PROJECT}/findings`);
     const table = page.getByRole('table', { name: 'Findings' });
-    await table.waitFor();
-    expect(await page.getByLabel('Branch').inputValue()).toBe('main');
+    const rows = table.locator('tbody tr');
+    await rows.first().waitFor();
+    expect(await page.getByLabel('Branch').inputValue()).toBe(MAIN_BRANCH);
     const headers = await table.getByRole('columnheader').allTextContents();
     expect(headers.slice(1, 3)).toEqual(['Finding', 'State']);
-    const branchColumn = headers.indexOf('Branch');
-    const rows = table.locator('tbody tr');
-    expect(await rows.count()).toBe(onMain.items.length);
-    for (let i = 0; i < (await rows.count()); i += 1) expect((await rows.nth(i).locator('td').nth(branchColumn).textContent())?.trim()).toBe('main');
-    // Occurrences and "since" as the API counted them, row by row.
-    const shown = await rows.evaluateAll((trs) => trs.map((tr) => ({ id: (tr as HTMLElement).dataset.findingId, seen: tr.querySelector('[data-occurrences]')?.getAttribute('data-occurrences'), since: tr.querySelector('[data-failing-since]')?.getAttribute('data-failing-since') ?? null })));
-    expect(shown).toEqual(onMain.items.map((f) => ({ id: f.id, seen: String(f.occurrences), since: f.failingSince?.sha ?? null })));
+    const col = (name: string) => headers.indexOf(name);
+    expect(await rows.count()).toBe(1);
+    const cell = async (name: string) => ((await rows.first().locator('td').nth(col(name)).textContent()) ?? '').trim();
+    expect(await cell('Branch')).toBe(MAIN_BRANCH);
+    expect(await cell('Finding')).toContain('Bench level (level)');
+    const short = third.sha.slice(0, 7);
+    expect(await cell('History')).toMatch(new RegExp(`^since ${short}\\s*2 builds, first\\s*${short}$`));
+    expect(await rows.first().locator('[data-failing-since]').getAttribute('data-failing-since')).toBe(third.sha);
+    expect(await cell('Margin')).toMatch(/^−\d+\.\d\d dB$/);
     await screenshot(page, 'findings');
 
-    // Another branch: its own findings only.
-    const other = overview.branches.find((b) => b.branch !== MAIN_BRANCH);
-    if (other) {
-      const onOther = await api<FindingsPage>('GET', `/api/projects/${PROJECT}/findings?state=active&branch=${encodeURIComponent(other.branch)}`, engineer);
-      await page.getByLabel('Branch').selectOption(other.branch);
-      await page.waitForURL((url) => url.searchParams.get('branch') === other.branch);
-      await waitFor(async () => (await rows.count()) === onOther.items.length && (onOther.items.length === 0 || (await rows.first().getAttribute('data-finding-id')) === onOther.items[0]!.id), { timeoutMs: 10_000, what: `the findings of ${other.branch}` });
-      const empty = await page.getByText('No findings match').count() + (await page.getByText('Nothing needs a human').count());
-      if (onOther.items.length > 0) expect((await rows.first().locator('td').nth(branchColumn).textContent())?.trim()).toBe(other.branch);
-      else expect(empty).toBeGreaterThan(0);
-      await page.getByLabel('Branch').selectOption('main');
-      await table.waitFor();
-    }
+    // The feature branch has its own finding: one build, failing since that build.
+    await page.getByLabel('Branch').selectOption(FEATURE);
+    await page.waitForURL((url) => url.searchParams.get('branch') === FEATURE);
+    await waitFor(async () => (await cell('Branch')) === FEATURE, { timeoutMs: 10_000, what: 'the feature branch findings' });
+    expect(await rows.count()).toBe(1);
+    expect(await rows.first().locator('[data-failing-since]').getAttribute('data-failing-since')).toBe(feature.sha);
+    expect(await rows.first().locator('[data-occurrences]').getAttribute('data-occurrences')).toBe('1');
+    await page.getByLabel('Branch').selectOption('*');
+    await waitFor(async () => (await rows.count()) === 2, { timeoutMs: 10_000, what: 'findings of every branch' });
 
-    // Bulk actions at 1280 px: the toolbar wraps inside the page and the document does not overflow.
+    // Bulk actions at 1280 px: the toolbar stays inside the page, the document does not overflow.
     await page.setViewportSize({ width: 1280, height: 900 });
-    if (onMain.items.length > 0) {
-      await table.getByRole('checkbox', { name: 'Select all findings on this page' }).check();
-      const bar = page.getByRole('region', { name: 'Bulk actions' });
-      await bar.waitFor();
-      const box = (await bar.boundingBox())!;
-      expect(box.x + box.width).toBeLessThanOrEqual(1280);
-      await bar.getByRole('button', { name: 'Assign' }).waitFor();
-    }
+    await table.getByRole('checkbox', { name: 'Select all findings on this page' }).check();
+    const bar = page.getByRole('region', { name: 'Bulk actions' });
+    await bar.waitFor();
+    const box = (await bar.boundingBox())!;
+    expect(box.x + box.width).toBeLessThanOrEqual(1280);
+    expect(await bar.textContent()).toContain('2 selected');
     await noDocumentOverflow(page, 1280);
-    await noDocumentOverflow(page, 390);
     // At 390 px the table scrolls in its own frame, with Finding and State in view.
-    const stateHeader = (await table.getByRole('columnheader', { name: 'State' }).boundingBox())!;
-    expect(stateHeader.x + stateHeader.width).toBeLessThanOrEqual(390);
+    await noDocumentOverflow(page, 390);
+    const state = (await table.getByRole('columnheader', { name: 'State' }).boundingBox())!;
+    expect(state.x + state.width, 'State header within the phone screen').toBeLessThanOrEqual(390);
     await page.close();
   });
 
   it('fits the navigation and the builds table into 390 px', async () => {
-    const page = await pageAs('qa@fernwick.test');
-    await page.setViewportSize({ width: 390, height: 844 });
+    const page = await pageAs('qa_manager@example.test', 390, 844);
     await page.goto(`${stack.url}/projects/${PROJECT}`);
     await page.getByRole('region', { name: /Latest on main/ }).waitFor();
     await page.waitForLoadState('networkidle');
@@ -191,11 +243,11 @@ describe('the overview as the landing page, triage by branch, the shell at 390 p
     expect(await page.getByRole('navigation', { name: 'Main' }).isVisible()).toBe(false);
     await menu.click();
     const links = page.getByRole('navigation', { name: 'Main' }).getByRole('link');
-    const labels = await links.allTextContents();
-    expect(labels.map((l) => l.replace(/\d+$/, ''))).toEqual(expect.arrayContaining(['Projects', 'Overview', 'Builds', 'Findings', 'Test cases', 'Approvals', 'Audit log']));
-    for (let i = 0; i < (await links.count()); i += 1) {
+    const labels = (await links.allTextContents()).map((l) => l.replace(/\d+$/, ''));
+    expect(labels).toEqual(['Projects', 'Overview', 'Builds', 'Findings', 'Test cases', 'Approvals', 'Audit log']);
+    for (let i = 0; i < labels.length; i += 1) {
       const box = (await links.nth(i).boundingBox())!;
-      expect(box.x >= 0 && box.x + box.width <= 390, `${labels[i]} at ${box.x}+${box.width}`).toBe(true);
+      expect(box.x >= 0 && box.x + box.width <= 390 && box.y + box.height <= 844, `${labels[i]} at x ${box.x}, width ${box.width}, y ${box.y}`).toBe(true);
     }
     await links.filter({ hasText: 'Builds' }).click();
     await page.getByRole('heading', { name: 'Builds' }).waitFor();
@@ -204,61 +256,11 @@ describe('the overview as the landing page, triage by branch, the shell at 390 p
     await table.locator('tbody tr').first().waitFor();
     const status = (await table.getByRole('columnheader', { name: /^Status/ }).boundingBox())!;
     expect(status.x + status.width, 'Status header within the phone screen').toBeLessThanOrEqual(390);
-    const firstStatus = (await table.locator('tbody tr').first().locator('td').nth(1).boundingBox())!;
-    expect(firstStatus.x + firstStatus.width).toBeLessThanOrEqual(390);
+    expect((await table.locator('tbody tr').first().locator('td').nth(1).textContent())?.trim()).toBe('Fail');
     await noDocumentOverflow(page, 390);
     await page.setViewportSize({ width: 1440, height: 900 });
     await screenshot(page, 'builds');
     await noDocumentOverflow(page, 1280);
-    await page.close();
-  });
-
-  it('names the build a failure began with: pass, pass, fail, fail on main → since the third', async () => {
-    const engineer = await login('engineer@fernwick.test');
-    const qa = await login('qa@fernwick.test');
-    await api('POST', `/api/projects/${PROJECT}/targets`, engineer, { key: TARGET, name: 'Bench rig (e2e)', sampleRate: null });
-    await api('POST', `/api/projects/${PROJECT}/test-cases`, engineer, { key: CASE, name: 'Bench level, e2e', stimulus: spec, channelMap: [0] });
-    const draft = await api<{ revision: number }>('POST', `/api/projects/${PROJECT}/test-cases/${CASE}/masks`, engineer, {
-      checks: [{ id: 'bench-level', kind: 'level', label: 'Bench level', metric: 'rms-dbfs', min: -30 }],
-      note: 'e2e floor',
-    });
-    await api('POST', `/api/projects/${PROJECT}/test-cases/${CASE}/masks/${draft.revision}/submit`, engineer);
-    await api('POST', `/api/projects/${PROJECT}/test-cases/${CASE}/masks/${draft.revision}/approve`, qa, {});
-    for (const build of HISTORY) expect(await submitBuild(build.sha, build.fails)).toBe(build.fails ? 'fail' : 'pass');
-
-    const overview = await api<ProjectOverview>('GET', `/api/projects/${PROJECT}/overview`, qa);
-    expect(overview.main).toMatchObject({ sha: HISTORY[3]!.sha, status: 'fail' });
-    const ours = overview.failing.find((f) => f.testCase === CASE);
-    expect(ours).toMatchObject({ checkId: 'bench-level', since: { sha: HISTORY[2]!.sha }, latest: { sha: HISTORY[3]!.sha }, streak: 2, unit: 'dB' });
-
-    const page = await pageAs('qa@fernwick.test');
-    await page.setViewportSize({ width: 1440, height: 900 });
-    await page.goto(`${stack.url}/projects/${PROJECT}`);
-    const latest = page.getByRole('region', { name: /Latest on main/ });
-    await latest.waitFor();
-    expect(await latest.locator('[data-main-status]').getAttribute('data-main-status')).toBe('fail');
-    expect(await latest.textContent()).toContain(HISTORY[3]!.sha.slice(0, 7));
-    const failing = page.getByRole('region', { name: /Failing on main now/ });
-    const item = failing.locator('[data-failing-check="bench-level"]');
-    await item.waitFor();
-    expect(await item.locator('[data-since]').getAttribute('data-since')).toBe(HISTORY[2]!.sha);
-    const text = (await item.textContent()) ?? '';
-    expect(text).toContain('Bench level');
-    expect(text).toContain(`failing since ${HISTORY[2]!.sha.slice(0, 7)}`);
-    expect(text).toContain('2 builds');
-    // The margin in the one formatter: a dBFS check's margin is in dB, signed with the real minus.
-    expect(text).toMatch(/−\d+\.\d\d dB/);
-    await item.getByRole('link', { name: HISTORY[2]!.sha.slice(0, 7) }).click();
-    await page.waitForURL(`${stack.url}/projects/${PROJECT}/builds/${HISTORY[2]!.sha}`);
-
-    // Triage says the same: first seen at the third build, two occurrences, failing since the third.
-    await page.goto(`${stack.url}/projects/${PROJECT}/findings?testCase=${CASE}`);
-    const row = page.getByRole('table', { name: 'Findings' }).locator('tbody tr').first();
-    await row.waitFor();
-    expect(await row.locator('[data-failing-since]').getAttribute('data-failing-since')).toBe(HISTORY[2]!.sha);
-    expect(await row.locator('[data-occurrences]').getAttribute('data-occurrences')).toBe('2');
-    expect(await row.getByRole('link', { name: 'Bench level (level)' }).count()).toBe(1);
-    expect(await navCount(page, 'Findings')).toBe(overview.counts.openFindingsOnMain);
     await page.close();
     expect(consoleErrors).toEqual([]);
   });

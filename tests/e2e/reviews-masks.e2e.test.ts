@@ -46,7 +46,8 @@ beforeAll(async () => {
   fs.mkdirSync(screenshotsDir, { recursive: true });
   stack = await startDemoHistory();
   browser = await launchBrowser();
-}, 180_000);
+  // The demo history takes ~1 min on an idle machine; more when other suites share the cores.
+}, 360_000);
 
 afterAll(async () => {
   await browser?.close();

@@ -141,7 +141,7 @@ describe('the demo story', () => {
     expect(b.status).toBe('error');
     const verdict = capture(b, 'eq.music.sweep').verdict!;
     expect(verdict.outcome).toBe('error');
-    expect(verdict.reason).toMatch(/Incomplete capture: the capture ends 144000 samples \(3\.000 s\) before the stimulus ends/);
+    expect(verdict.reason).toMatch(/Incomplete capture: the capture ends 48000 samples \(1\.000 s\) before the stimulus ends/);
     expect(verdict.reason).toMatch(/record longer/);
     expect(check(capture(b, 'eq.music.sweep'), 'response').error).toMatch(/^the capture does not hold the whole stimulus/);
   });

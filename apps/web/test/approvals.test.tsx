@@ -192,7 +192,7 @@ describe('approvals queue', () => {
     expect([...words.querySelectorAll('[data-change-text]')].map((n) => n.textContent)).toEqual(['upper limit at 8 kHz: +1.50 → +1.00 dB']);
     expect(words.textContent).not.toContain('upper.1.db');
     const legend = within(card).getByRole('list', { name: 'Legend' });
-    expect(within(legend).getAllByRole('listitem').map((li) => li.textContent)).toEqual(['Capture ', 'Old limits (revision 2)', 'New limits (revision 3)']);
+    expect(within(legend).getAllByRole('listitem').map((li) => li.textContent)).toEqual(['Capture', 'Old limits (revision 2)', 'New limits (revision 3)']);
     expect(await within(card).findByText('No capture of this test case in the recent builds to draw the limits over.')).toBeTruthy();
     expect(extra.requests.some((r) => r.path.endsWith('/masks/3/diff'))).toBe(true);
   });

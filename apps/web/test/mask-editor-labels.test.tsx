@@ -36,10 +36,11 @@ const revision = (n: number, state: MaskRevisionDto['state'], checks: MaskRevisi
   settings: { stimulus: { kind: 'sine', sampleRate: 48000, channels: 1, seconds: 1, levelDbfs: -20, frequency: 997, fadeInSeconds: 0, fadeOutSeconds: 0 }, analysis: {}, channelMap: [] },
 });
 
-const envelope = { kind: 'magnitude-envelope', id: 'eq-response', measure: 'transfer', smoothing: 6, upper: [{ hz: 20, db: 1 }, { hz: 20000, db: 1 }] } as const;
-const level = { kind: 'level', id: 'output-level', metric: 'rms-dbfs', min: -21, max: -19 } as const;
-const thdn = { kind: 'distortion', id: 'thdn-1k', metric: 'thdn-db', max: -80 } as const;
-const parseval = { kind: 'level', id: 'analysis-energy', metric: 'energy-parseval', max: 1e-9 } as const;
+type Check = MaskRevisionDto['checks'][number];
+const envelope: Check = { kind: 'magnitude-envelope', id: 'eq-response', measure: 'transfer', smoothing: 6, upper: [{ hz: 20, db: 1 }, { hz: 20000, db: 1 }] };
+const level: Check = { kind: 'level', id: 'output-level', metric: 'rms-dbfs', min: -21, max: -19 };
+const thdn: Check = { kind: 'distortion', id: 'thdn-1k', metric: 'thdn-db', max: -80 };
+const parseval: Check = { kind: 'level', id: 'analysis-energy', metric: 'energy-parseval', max: 1e-9 };
 
 function setup(revisions: MaskRevisionDto[]) {
   seedSession();

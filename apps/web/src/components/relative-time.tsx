@@ -5,7 +5,9 @@ import { cn } from '@/lib/cn';
 export function RelativeTime({ iso, className }: { iso: string; className?: string }) {
   const absolute = formatDateTime(iso);
   return (
-    <time dateTime={iso} title={absolute} className={cn('whitespace-nowrap', className)}>
+    // relative: the sr-only text is absolutely positioned; without a positioned ancestor inside a
+    // table's scroll frame it escapes the frame and widens the whole document on a phone.
+    <time dateTime={iso} title={absolute} className={cn('relative whitespace-nowrap', className)}>
       {formatRelativeTime(iso)}
       <span className="sr-only"> ({absolute})</span>
     </time>

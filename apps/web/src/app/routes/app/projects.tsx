@@ -42,7 +42,7 @@ export function ProjectsRoute() {
       ) : projects.data.length === 0 ? (
         <EmptyState title="No projects yet">
           {me.data?.isAdmin
-            ? 'Nobody has created a project in Earmark yet. Projects can be added through the API.'
+            ? 'Nobody has created a project in Earmark yet. Create one under Admin → Projects (the user menu).'
             : 'You are not a member of any project. Ask an Earmark administrator to add you to one.'}
         </EmptyState>
       ) : (

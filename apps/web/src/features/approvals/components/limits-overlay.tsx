@@ -151,7 +151,13 @@ export function LimitsOverlay({
           <svg viewBox="0 0 24 12" aria-hidden="true" className="h-3 w-6 shrink-0">
             <rect x="0" y="3" width="24" height="6" fill={plotPalette.measuredBand} />
           </svg>
-          Capture {capture ? <span className="font-mono">{shortSha(capture.buildSha)}</span> : null}
+          Capture
+          {capture ? (
+            <>
+              {' '}
+              <span className="font-mono">{shortSha(capture.buildSha)}</span>
+            </>
+          ) : null}
         </li>
         <LegendLine dashed color={plotPalette.ink500}>
           {oldName}

@@ -61,7 +61,7 @@ const columns = [
   column.accessor('title', {
     header: 'Finding',
     cell: ({ row, table }) => (
-      <div className="min-w-[140px] sm:min-w-[220px]">
+      <div className="min-w-[140px] sm:min-w-[200px]">
         <Link
           to={paths.capture(metaOf(table).projectKey, row.original.buildSha, row.original.captureId)}
           className="font-medium text-ink-950 underline-offset-4 hover:underline"
@@ -101,29 +101,28 @@ const columns = [
       <span className="font-mono text-[12.5px] whitespace-nowrap tabular-nums text-ink-800">{describeMargin(row.original)}</span>
     ),
   }),
+  // Since when and how often, from the finding's branch history: the current failing streak's first build
+  // (or "passing now"), then how many builds failed and where it was first seen.
   column.accessor('failingSince', {
-    header: 'Failing since',
+    header: 'History',
     cell: ({ row, table }) => {
-      const since = row.original.failingSince;
-      if (since === undefined) return <span className="text-ink-400">—</span>;
-      return since ? (
-        <span data-failing-since={since.sha}>
-          <ShortSha sha={since.sha} to={paths.build(metaOf(table).projectKey, since.sha)} />
-        </span>
-      ) : (
-        <span className="text-xs whitespace-nowrap text-pass">passing now</span>
-      );
-    },
-  }),
-  column.accessor('occurrences', {
-    header: 'Seen',
-    cell: ({ row, table }) => {
-      const { firstSeen, occurrences, buildSha } = row.original;
+      const { failingSince, firstSeen, occurrences, buildSha } = row.original;
+      const projectKey = metaOf(table).projectKey;
+      const first = firstSeen?.sha ?? buildSha;
       return (
-        <div className="text-xs whitespace-nowrap text-ink-600" data-occurrences={occurrences}>
-          <span className="font-mono tabular-nums text-ink-900">{occurrences ?? '—'}</span> {occurrences === 1 ? 'build' : 'builds'}
-          <p className="mt-0.5 flex items-center gap-1">
-            first <ShortSha sha={firstSeen?.sha ?? buildSha} to={paths.build(metaOf(table).projectKey, firstSeen?.sha ?? buildSha)} />
+        <div className="space-y-0.5 text-xs whitespace-nowrap text-ink-600">
+          {failingSince ? (
+            <p className="flex items-center gap-1" data-failing-since={failingSince.sha}>
+              since <ShortSha sha={failingSince.sha} to={paths.build(projectKey, failingSince.sha)} />
+            </p>
+          ) : failingSince === null ? (
+            <p className="text-pass">passing now</p>
+          ) : null}
+          <p className="flex items-center gap-1" data-occurrences={occurrences}>
+            <span>
+              <span className="font-mono tabular-nums text-ink-900">{occurrences ?? '—'}</span> {occurrences === 1 ? 'build' : 'builds'}, first
+            </span>
+            <ShortSha sha={first} to={paths.build(projectKey, first)} />
           </p>
         </div>
       );
@@ -134,7 +133,7 @@ const columns = [
     cell: ({ getValue }) => {
       const branch = getValue();
       return branch ? (
-        <span className="inline-block max-w-[160px] truncate font-mono text-[12.5px] text-ink-800" title={branch}>
+        <span className="inline-block max-w-[140px] truncate font-mono text-[12.5px] text-ink-800" title={branch}>
           {branch}
         </span>
       ) : (
