@@ -7,7 +7,8 @@ import { playDemoWorkflow } from './demo-workflow.js';
 
 /** Uploads in flight at once: enough to keep two analysis slots busy, few enough for 2 cores. */
 const UPLOADS_IN_FLIGHT = 3;
-const JUDGED_WITHIN_MS = 180_000;
+// Generous: 117 analyses take well under a minute on 2 idle cores, many minutes on busy ones.
+const JUDGED_WITHIN_MS = 480_000;
 
 export interface DemoSeedSummary {
   builds: number;

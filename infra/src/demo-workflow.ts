@@ -61,11 +61,11 @@ async function submitStricterToneRevision(engineer: Session, builds: number): Pr
   });
   await engineer.call('POST', `${base}/${draft.revision}/submit`);
   const run = await engineer.call<{ id: string }>('POST', `${base}/${draft.revision}/impact`, { builds });
-  for (const deadline = Date.now() + 120_000; ; ) {
+  for (const deadline = Date.now() + 300_000; ; ) {
     const { state, error } = await engineer.call<{ state: string; error: string | null }>('GET', `${base}/${draft.revision}/impact/${run.id}`);
     if (state === 'done') return;
     if (state === 'error') throw new Error(`the impact of ${REVIEW_CASE} revision ${draft.revision} failed: ${error}`);
-    if (Date.now() > deadline) throw new Error(`the impact of ${REVIEW_CASE} revision ${draft.revision} did not finish within 2 minutes`);
+    if (Date.now() > deadline) throw new Error(`the impact of ${REVIEW_CASE} revision ${draft.revision} did not finish within 5 minutes`);
     await new Promise((r) => setTimeout(r, 250));
   }
 }

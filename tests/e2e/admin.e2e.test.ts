@@ -241,8 +241,11 @@ describe('admin area', () => {
     await membership.waitFor();
     expect(await membership.getByRole('link', { name: 'Kestrel Buds' }).getAttribute('href')).toBe('/projects/kestrel-buds');
 
-    // A link from the log marks the person's row on the Users tab.
-    await membership.getByRole('link', { name: 'Runa Velde' }).click();
+    // A link from the log marks the person's row on the Users tab (once the filtered page has settled).
+    await page.waitForLoadState('networkidle');
+    const personLink = membership.getByRole('link', { name: 'Runa Velde' });
+    expect(await personLink.getAttribute('href')).toBe('/admin/users?user=runa.velde%40fernwick.test');
+    await personLink.click();
     await page.waitForURL(/\/admin\/users\?user=runa/);
     expect(await page.locator('tr[aria-current="true"]').innerText()).toContain(INVITEE.email);
     await page.goto(`${stack.url}/admin/audit`);

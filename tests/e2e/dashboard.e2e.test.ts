@@ -40,7 +40,7 @@ beforeAll(async () => {
   fs.mkdirSync(screenshotsDir, { recursive: true });
   stack = await startDemoHistory();
   browser = await launchBrowser();
-}, 180_000);
+}, 420_000); // the six-week demo history is seeded through the pipeline first
 
 afterAll(async () => {
   await browser?.close();

@@ -26,7 +26,7 @@ beforeAll(async () => {
     const res = await fetch(`${stack.url}/api/auth/login`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email, password: DEMO_PASSWORD }) });
     tokens[email] = ((await res.json()) as { accessToken: string }).accessToken;
   }
-}, 240_000);
+}, 600_000); // the seeding is measured, not limited here: a busy machine may take minutes
 afterAll(() => stack?.close());
 
 async function get<T>(path: string, token = tokens['engineer@fernwick.test']!): Promise<T> {

@@ -25,7 +25,7 @@ beforeAll(async () => {
   });
   expect(login.status).toBe(200);
   session = ((await login.json()) as { accessToken: string }).accessToken;
-}, 180_000);
+}, 420_000); // the six-week demo history is seeded through the pipeline first
 afterAll(() => stack?.close());
 
 async function get(path: string, token: string): Promise<Response> {

@@ -78,7 +78,7 @@ function CaptureWorkspace({ projectKey, captureId, detail }: { projectKey: strin
         <AnalysisFailed />
       ) : null}
 
-      <div aria-label="Listening and triage" role="group" className="grid items-start gap-6 lg:grid-cols-2">
+      <div aria-label="Listening and triage" role="group" className="grid grid-cols-1 items-start gap-6 lg:grid-cols-2 [&>*]:min-w-0">
         {purgedAt ? <PurgedAudioNote purgedAt={purgedAt} /> : <ListenPanel projectKey={projectKey} captureId={captureId} />}
         <FindingsTriagePanel projectKey={projectKey} captureId={captureId} />
       </div>

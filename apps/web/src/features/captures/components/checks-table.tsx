@@ -79,7 +79,8 @@ export function ChecksTable({ checks, onShowFrequency }: { checks: readonly Chec
       {checks.length === 0 ? (
         <p className="py-6 text-center text-sm text-ink-600">No checks were evaluated for this capture yet.</p>
       ) : (
-        <div className="-mx-4 -my-4 overflow-x-auto">
+        // relative: the sr-only text in the cells is positioned, and must scroll (and clip) with the table, not widen the page.
+        <div className="relative -mx-4 -my-4 overflow-x-auto">
           <table aria-label="Checks" className="w-full min-w-[640px] border-collapse text-sm">
             <thead>
               <tr className="border-b border-line">

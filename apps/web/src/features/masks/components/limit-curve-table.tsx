@@ -34,7 +34,7 @@ export function LimitCurveTable({
             <th scope="col" className="w-8 font-normal">#</th>
             <th scope="col" className="px-1 text-right font-normal">Hz</th>
             <th scope="col" className="px-1 text-right font-normal">dB</th>
-            {readOnly ? null : <th scope="col"><span className="sr-only">Remove</span></th>}
+            {readOnly ? null : <th scope="col" className="relative"><span className="sr-only">Remove</span></th>}
           </tr>
         </thead>
         <tbody>
@@ -130,7 +130,7 @@ export function BandTable({
                 {c.label}
               </th>
             ))}
-            {readOnly ? null : <th scope="col"><span className="sr-only">Remove</span></th>}
+            {readOnly ? null : <th scope="col" className="relative"><span className="sr-only">Remove</span></th>}
           </tr>
         </thead>
         <tbody>
