@@ -57,7 +57,7 @@ async function expectNoDocumentOverflow(page: Page): Promise<void> {
     const wide = await page.evaluate(() =>
       document.documentElement.scrollWidth <= window.innerWidth
         ? []
-        : [...document.querySelectorAll('body *')]
+        : Array.from(document.querySelectorAll('body *'))
             .filter((e) => e.getBoundingClientRect().right > window.innerWidth + 1 && !e.closest('.overflow-x-auto'))
             .slice(0, 6)
             .map((e) => `${e.tagName.toLowerCase()}.${String(e.className).slice(0, 60)} → ${Math.round(e.getBoundingClientRect().right)} px`),

@@ -5,13 +5,19 @@ import { PlotFigure } from '@/components/plot-figure';
 import { frequencyAxes, logFrequencyScale, tickDecimals, valueAxis } from '@/lib/plot/axes';
 import { plotPalette } from '@/lib/plot/palette';
 
-function previewOptions(unit: string, domain: { min: number; max: number }, curves: number, outlying: ReadonlySet<number>): () => Omit<uPlot.Options, 'width' | 'height'> {
+/** What the y axis shows: the level, or |H| normalised at the reference frequency (absolute without one). */
+function valueTitle(unit: string, referenceHz: number | null): string {
+  if (unit === 'dBFS') return 'Level, dBFS';
+  return referenceHz === null ? '|H|, dB' : `|H| re ${formatFrequency(referenceHz)}, dB`;
+}
+
+function previewOptions(yTitle: string, domain: { min: number; max: number }, curves: number, outlying: ReadonlySet<number>): () => Omit<uPlot.Options, 'width' | 'height'> {
   return () => ({
     legend: { show: false },
     padding: [12, 16, 0, 0],
     cursor: { drag: { x: false, y: false }, points: { show: false }, y: false },
     scales: { x: logFrequencyScale(domain), y: { auto: true } },
-    axes: [...frequencyAxes(), valueAxis(unit === 'dBFS' ? 'Level (dBFS)' : '|H| re reference, dB', tickDecimals)],
+    axes: [...frequencyAxes(), valueAxis(yTitle, tickDecimals)],
     series: [
       {},
       // Outliers are drawn last among the captures so they stay visible on top of the others.
@@ -67,7 +73,8 @@ export function DerivePreview({ result, checkId, outlying }: { result: DeriveMas
   const last = stats.hz[stats.hz.length - 1] ?? 20000;
   // Keyed by the set's contents: a new Set with the same members must not rebuild the chart.
   const outlierKey = [...outlying].sort().join(',');
-  const buildOptions = useMemo(() => previewOptions(stats.unit, { min: first, max: last > first ? last : first * 2 }, curves.length, outlying), [stats.unit, first, last, curves.length, outlierKey]);
+  const yTitle = valueTitle(stats.unit, result.derivation.referenceHz);
+  const buildOptions = useMemo(() => previewOptions(yTitle, { min: first, max: last > first ? last : first * 2 }, curves.length, outlying), [yTitle, first, last, curves.length, outlierKey]);
   return (
     <div className="space-y-3">
       <PlotFigure

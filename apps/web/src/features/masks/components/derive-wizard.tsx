@@ -195,9 +195,12 @@ export function DeriveWizard({
                           })
                         }
                       />
-                      <span className="shrink-0 font-mono text-xs">{shortSha(c.buildSha)}</span>
-                      {c.label ? <span className="truncate text-ink-900">{c.label}</span> : null}
-                      <span className="truncate text-ink-600">{c.target}</span>
+                      <span className="min-w-0 flex-1 leading-tight">
+                        <span className="block truncate text-ink-900">{c.label ?? shortSha(c.buildSha)}</span>
+                        <span className="block truncate font-mono text-[11px] text-ink-500">
+                          {shortSha(c.buildSha)} · {c.target}
+                        </span>
+                      </span>
                       <VerdictBadge verdict={c.outcome} className="ml-auto shrink-0" />
                     </label>
                   </li>
