@@ -47,7 +47,8 @@ export async function seedDemoBuilds(apiUrl: string, token: string, log: (l: str
     }
   };
   await Promise.all(Array.from({ length: UPLOADS_IN_FLIGHT }, uploader));
-  await waitUntilJudged(apiUrl, headers);
+  log(`Uploaded ${uploads.length} captures; waiting for their verdicts…`);
+  await waitUntilJudged(apiUrl, headers, log);
   await playDemoWorkflow(apiUrl, DEMO_BUILDS.length, new Date(now));
   const summary = { builds: DEMO_BUILDS.length, captures: uploads.length, seconds: (performance.now() - started) / 1000 };
   log(`Demo history ready: ${summary.builds} builds, ${summary.captures} captures judged in ${summary.seconds.toFixed(1)} s.`);
@@ -84,12 +85,18 @@ async function retryingFetch(url: string, init: RequestInit, attempts = 4): Prom
   }
 }
 
-async function waitUntilJudged(apiUrl: string, headers: Record<string, string>): Promise<void> {
+async function waitUntilJudged(apiUrl: string, headers: Record<string, string>, log: (l: string) => void): Promise<void> {
+  let lastReport = Date.now();
   for (const deadline = Date.now() + JUDGED_WITHIN_MS; ; ) {
     const res = await fetch(`${apiUrl}/api/v1/projects/kestrel-buds/builds?pageSize=200`, { headers });
     const { items } = (await res.json()) as { items: { status: string }[] };
-    if (items.length >= DEMO_BUILDS.length && items.every((b) => b.status !== 'pending' && b.status !== 'running')) return;
+    const judged = items.filter((b) => b.status !== 'pending' && b.status !== 'running').length;
+    if (items.length >= DEMO_BUILDS.length && judged === items.length) return;
     if (Date.now() > deadline) throw new Error(`the demo captures were not all judged within ${JUDGED_WITHIN_MS / 1000} s (is the worker running?)`);
+    if (Date.now() - lastReport > 20_000) {
+      log(`${judged} of ${DEMO_BUILDS.length} demo builds judged…`);
+      lastReport = Date.now();
+    }
     await new Promise((r) => setTimeout(r, 300));
   }
 }

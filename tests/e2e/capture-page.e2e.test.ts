@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import { StimulusSpec } from '@earmark/contracts';
 import { TEST_PASSWORD } from '@earmark/db';
 import { encodeWav, stimulusAsPlayed } from '@earmark/dsp';
-import type { Locator, Page } from 'playwright-core';
+import type { Locator, Page, Response } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { launchBrowser } from '../support/browser.js';
 import { screenshot, screenshotsDir } from '../support/browser-session.js';
@@ -21,7 +21,7 @@ const CASE = 'sweep.pair';
 const TARGET = 'pair-board';
 const PASS_SHA = 'a11ce0000001';
 const FAIL_SHA = 'b0b000000002';
-const spec = StimulusSpec.parse({ kind: 'sweep', sampleRate: FS, seconds: 1, from: 20, to: 20000, levelDbfs: -12, silenceSeconds: 0.2, fadeInSeconds: 0.01, fadeOutSeconds: 0.01 });
+const spec = StimulusSpec.parse({ kind: 'sweep', sampleRate: FS, seconds: 0.5, from: 20, to: 20000, levelDbfs: -12, silenceSeconds: 0.1, fadeInSeconds: 0.01, fadeOutSeconds: 0.01 });
 const stimulus = stimulusAsPlayed(spec).channels[0]!;
 /** y[n] = x[n] − 0.2·x[n−1]: a gentle tilt, +1.15 dB at 8 kHz and +2.85 dB at 16 kHz re 1 kHz. */
 const tilted = stimulus.map((x, n) => x - 0.2 * (n > 0 ? (stimulus[n - 1] as number) : 0));
@@ -57,16 +57,16 @@ async function login(email: string): Promise<string> {
   return ((await res.json()) as { accessToken: string }).accessToken;
 }
 
-/** Uploads a capture with the CI token and waits for its verdict. */
-async function submit(sha: string, testCase: string, bytes: Buffer): Promise<{ id: string; outcome: string }> {
+/** Uploads a capture with the CI token and waits for its verdict (the upload itself is awaited first, so builds keep their order). */
+async function submit(sha: string, testCase: string, bytes: Buffer): Promise<() => Promise<{ id: string; outcome: string }>> {
   const res = await fetch(`${stack.url}/api/v1/projects/alpha-dsp/builds/${sha}/captures?testCase=${testCase}&target=${TARGET}`, {
     method: 'POST',
     headers: { authorization: `Bearer ${stack.ciToken}`, 'content-type': 'audio/wav' },
-    body: bytes,
+    body: new Uint8Array(bytes),
   });
   const created = (await res.json()) as { id: string };
   expect(res.status, JSON.stringify(created)).toBe(202);
-  return waitFor(async () => {
+  return () => waitFor(async () => {
     const c = await api<{ id: string; verdict: { outcome: string } | null; status: string }>('GET', `/api/v1/captures/${created.id}`, stack.ciToken);
     return c.verdict && c.status !== 'queued' && c.status !== 'analysing' ? { id: c.id, outcome: c.verdict.outcome } : null;
   }, { timeoutMs: 60_000, what: `the verdict of ${sha}` });
@@ -80,26 +80,31 @@ async function approvedMask(testCase: string, checks: unknown[], engineer: strin
 
 beforeAll(async () => {
   fs.mkdirSync(screenshotsDir, { recursive: true });
-  stack = await startStack({ seed: 'roles' });
-  await stack.startWorker();
-  browser = await launchBrowser();
+  [stack, browser] = await Promise.all([startStack({ seed: 'roles' }), launchBrowser()]);
+  const worker = stack.startWorker();
   const engineer = await login('engineer@example.test');
   const qa = await login('qa_manager@example.test');
   await api('POST', '/api/projects/alpha-dsp/targets', engineer, { key: TARGET, name: 'Pair board', sampleRate: null });
   await api('POST', '/api/projects/alpha-dsp/test-cases', engineer, { key: CASE, name: 'Sweep, both channels', stimulus: spec, channelMap: [0, 1] });
-  await approvedMask(CASE, CHECKS, engineer, qa);
   // A test case whose band reaches past half the sample rate: judged `error`, with its reason.
-  const lowRate = StimulusSpec.parse({ kind: 'sweep', sampleRate: 32000, seconds: 0.5, from: 20, to: 15000, levelDbfs: -12, silenceSeconds: 0.1 });
+  const lowRate = StimulusSpec.parse({ kind: 'sweep', sampleRate: 32000, seconds: 0.25, from: 20, to: 15000, levelDbfs: -12, silenceSeconds: 0.05 });
   await api('POST', '/api/projects/alpha-dsp/test-cases', engineer, { key: 'sweep.32k', name: 'Sweep at 32 kHz', stimulus: lowRate, channelMap: [0] });
-  await approvedMask('sweep.32k', [{ id: 'top-band', kind: 'band-levels', measure: 'transfer', fraction: 3, bands: [{ centerHz: 16000, max: 3 }] }], engineer, qa);
+  await Promise.all([
+    approvedMask(CASE, CHECKS, engineer, qa),
+    approvedMask('sweep.32k', [{ id: 'top-band', kind: 'band-levels', measure: 'transfer', fraction: 3, bands: [{ centerHz: 16000, max: 3 }] }], engineer, qa),
+  ]);
 
-  expect((await submit(PASS_SHA, CASE, passing)).outcome).toBe('pass');
-  const failed = await submit(FAIL_SHA, CASE, failing);
-  expect(failed.outcome).toBe('fail');
-  failingCaptureId = failed.id;
-  const errored = await submit(FAIL_SHA, 'sweep.32k', Buffer.from(encodeWav(stimulusAsPlayed(lowRate).channels, 32000, { bitsPerSample: 24 })));
-  expect(errored.outcome).toBe('error');
-  errorCaptureId = errored.id;
+  // Uploaded in order (the passing build first, so it is the last pass), judged while the worker starts.
+  const verdicts = [
+    await submit(PASS_SHA, CASE, passing),
+    await submit(FAIL_SHA, CASE, failing),
+    await submit(FAIL_SHA, 'sweep.32k', Buffer.from(encodeWav(stimulusAsPlayed(lowRate).channels, 32000, { bitsPerSample: 24 }))),
+  ];
+  await worker;
+  const [passed, failed, errored] = await Promise.all(verdicts.map((wait) => wait()));
+  expect([passed!.outcome, failed!.outcome, errored!.outcome]).toEqual(['pass', 'fail', 'error']);
+  failingCaptureId = failed!.id;
+  errorCaptureId = errored!.id;
 }, 240_000);
 
 afterAll(async () => {
@@ -123,6 +128,14 @@ async function pageAs(email: string): Promise<Page> {
   return page;
 }
 
+/** One signed-in engineer tab for the tests that act as an engineer (signing in costs seconds). */
+let engineerTab: Page | null = null;
+async function engineerPage(): Promise<Page> {
+  engineerTab ??= await pageAs('engineer@example.test');
+  await engineerTab.setViewportSize({ width: 1440, height: 900 });
+  return engineerTab;
+}
+
 const capturePath = (id: string, sha = FAIL_SHA) => `/projects/alpha-dsp/builds/${sha}/captures/${id}`;
 
 async function noDocumentOverflow(page: Page, width: number): Promise<void> {
@@ -134,7 +147,7 @@ async function noDocumentOverflow(page: Page, width: number): Promise<void> {
     if (scroll() > window.innerWidth) {
       // Name the culprit: the chain of elements whose hiding brings the page back within the viewport.
       const walk = (root: Element, depth: number) => {
-        for (const child of [...root.children] as HTMLElement[]) {
+        for (const child of Array.from(root.children) as HTMLElement[]) {
           const display = child.style.display;
           const before = scroll();
           child.style.display = 'none';
@@ -179,8 +192,7 @@ function expectExactEvenTicks(ticks: string[], what: string): void {
 
 describe('the capture page in the browser', () => {
   it('opens on the worst check and channel, titles and ticks its plots, and tells its legend entries apart (1440 px)', async () => {
-    const page = await pageAs('engineer@example.test');
-    await page.setViewportSize({ width: 1440, height: 900 });
+    const page = await engineerPage();
     await page.goto(`${stack.url}${capturePath(failingCaptureId)}`);
     const spectrum = page.getByRole('region', { name: 'Transfer magnitude' });
     await spectrum.locator('canvas').first().waitFor();
@@ -231,16 +243,15 @@ describe('the capture page in the browser', () => {
     await page.setViewportSize({ width: 1440, height: 900 });
     await page.waitForTimeout(300);
     await screenshot(page, 'capture');
-    await page.close();
   });
 
   it('downloads the plotted curves as CSV and the capture exactly as uploaded', async () => {
-    const page = await pageAs('engineer@example.test');
-    await page.setViewportSize({ width: 1440, height: 900 });
+    const page = await engineerPage();
     const plots: Array<{ checkId: string; channel: number; spectrum: { hz: number[] } }> = [];
-    page.on('response', async (res) => {
+    const onResponse = async (res: Response) => {
       if (res.url().includes('/plot?') && res.ok()) plots.push(await res.json());
-    });
+    };
+    page.on('response', onResponse);
     await page.goto(`${stack.url}${capturePath(failingCaptureId)}`);
     const spectrum = page.getByRole('region', { name: 'Transfer magnitude' });
     await spectrum.getByTestId('worst-point-label').waitFor();
@@ -263,12 +274,11 @@ describe('the capture page in the browser', () => {
     expect(wavFile.suggestedFilename()).toBe(`${CASE}_${TARGET}_${FAIL_SHA.slice(0, 7)}.wav`);
     expect(fs.readFileSync((await wavFile.path())!).equals(failing)).toBe(true);
     await page.getByText('Capture downloaded').waitFor();
-    await page.close();
+    page.off('response', onResponse);
   });
 
   it('shows the error reason in the build matrix and analyses a capture again, following the new verdict', async () => {
-    const page = await pageAs('engineer@example.test');
-    await page.setViewportSize({ width: 1440, height: 900 });
+    const page = await engineerPage();
     await page.goto(`${stack.url}/projects/alpha-dsp/builds/${FAIL_SHA}`);
     const matrix = page.getByRole('table', { name: 'Build matrix' });
     const errorCell = matrix.locator(`[data-testcase="sweep.32k"][data-target="${TARGET}"]`);
@@ -289,7 +299,6 @@ describe('the capture page in the browser', () => {
     const after = await api<{ capture: { verdict: { createdAt: string; outcome: string } } }>('GET', `/api/projects/alpha-dsp/captures/${errorCaptureId}`, await login('viewer@example.test'));
     expect(after.capture.verdict.createdAt).not.toBe(before.capture.verdict.createdAt);
     expect(after.capture.verdict.outcome).toBe('error');
-    await page.close();
   });
 
   it('fits a phone: the page and its plots stay within 390 px', async () => {

@@ -47,7 +47,7 @@ beforeAll(async () => {
   stack = await startDemoHistory();
   browser = await launchBrowser();
   // The demo history takes ~1 min on an idle machine; more when other suites share the cores.
-}, 360_000);
+}, 900_000);
 
 afterAll(async () => {
   await browser?.close();

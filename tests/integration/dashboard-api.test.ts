@@ -115,10 +115,11 @@ describe('dashboard API', () => {
     expect(plot.waveform.seconds.length).toBeLessThanOrEqual(512);
 
     // The plot is stored under a key naming what it depends on (capture, mask revision, engine,
-    // columns, channel): the worker stored the default one (1024 columns) with the verdict, the
-    // view added the 512-column one; the overlay is the passing capture's own stored plot.
+    // check drawn, columns, channel): the worker stored the default one (1024 columns) with the
+    // verdict, the view added the 512-column one; the overlay is the passing capture's own stored plot.
     const mask = (await call<CaptureDetail>(`/api/projects/alpha-dsp/captures/${failing.id}`)).body.mask!;
-    expect(await stack.objectStore.list(`plot-cache/${failing.id}/`)).toEqual([1024, 512].map((columns) => `plot-cache/${failing.id}/${plot.engineVersion}-${mask.id}-${columns}-0.json`));
+    expect(plot.checkId).toBe('response');
+    expect(await stack.objectStore.list(`plot-cache/${failing.id}/`)).toEqual([1024, 512].map((columns) => `plot-cache/${failing.id}/${plot.engineVersion}-${mask.id}-response-${columns}-0.json`));
     expect(await stack.objectStore.list(`plot-cache/${passing.id}/`)).toHaveLength(2);
     const again = await call<unknown>(`/api/projects/alpha-dsp/captures/${failing.id}/plot?columns=512`);
     expect(again.body).toEqual(res.body);
@@ -157,8 +158,10 @@ describe('dashboard API', () => {
   });
 
   it('triages findings: assign, change state, bulk, comment; viewers may not', async () => {
-    const list = (await call<FindingsPage>('/api/projects/alpha-dsp/findings?state=active')).body;
+    // Findings are kept per branch: main's one (the 'late' branch keeps its own).
+    const list = (await call<FindingsPage>('/api/projects/alpha-dsp/findings?state=active&branch=main')).body;
     expect(list.total).toBe(1);
+    expect(list.items[0]).toMatchObject({ branch: 'main', buildSha: '2222bbb', occurrences: 1, firstSeen: { sha: '2222bbb' }, failingSince: { sha: '2222bbb' } });
     const id = list.items[0]!.id;
     const engineer = stack.fixture.users.engineer.id;
     const assigned = await call<{ assignee: { id: string }; state: string }>(`/api/projects/alpha-dsp/findings/${id}`, { method: 'PATCH', body: JSON.stringify({ assigneeId: engineer, state: 'investigating' }) });

@@ -23,14 +23,14 @@ function processCpuSeconds(pid: number | undefined): number {
  * judged and the people's part played (waiver, revision in review with its impact), as
  * `npm start` seeds it. `demoSeed` says how long the seeding took.
  */
-export async function startDemoHistory(): Promise<Stack & { demoSeed: DemoSeedFigures }> {
+export async function startDemoHistory(log: (line: string) => void = () => {}): Promise<Stack & { demoSeed: DemoSeedFigures }> {
   const stack = await startStack({ seed: 'demo' });
   // As npm start runs it: two analysis slots, and no 4 s job expiry (that is for crash tests;
   // on 2 busy cores a sweep's analysis may take longer).
   const worker = await stack.startWorker({ EARMARK_ANALYSIS_SLOTS: '2', EARMARK_ANALYSIS_EXPIRE_S: '120' });
   const cpuBefore = process.cpuUsage();
   const workerBefore = processCpuSeconds(worker.child.pid);
-  const summary = await seedDemoBuilds(stack.url, stack.ciToken, () => {});
+  const summary = await seedDemoBuilds(stack.url, stack.ciToken, log);
   if (!summary) throw new Error('the demo history was already there: a fresh test database should have none');
   const cpu = process.cpuUsage(cpuBefore);
   const cpuSeconds = { seederAndApi: (cpu.user + cpu.system) / 1e6, worker: processCpuSeconds(worker.child.pid) - workerBefore };

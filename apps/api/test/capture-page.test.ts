@@ -60,10 +60,10 @@ describe('the checks of a verdict', () => {
     const viewer = await api.login('viewer@example.test');
     const detail = await api.request('GET', base(), { token: viewer });
     expect(detail.body.capture.verdict.outcome).toBe('fail');
-    const checks = Object.fromEntries((detail.body.capture.verdict.checks as Array<{ id: string }>).map((c) => [c.id, c]));
+    const checks = Object.fromEntries((detail.body.capture.verdict.checks as Array<{ id: string; margin: number }>).map((c) => [c.id, c]));
     expect(checks['env-wide']).toMatchObject({ pass: true });
     expect(checks['env-tight']).toMatchObject({ pass: false, channel: 1 });
-    expect((checks['env-tight'] as { margin: number }).margin).toBeLessThan(0);
+    expect(checks['env-tight']!.margin).toBeLessThan(0);
     expect(checks.bands).toMatchObject({ pass: false });
   });
 });

@@ -1,6 +1,6 @@
 import { Build, Capture, Target, TestCase } from '@earmark/db';
 import { createLinks, recordVerdict, type Judgement } from '@earmark/domain';
-import type { FindingRow, ProjectOverview } from '@earmark/contracts';
+import { FindingsPage, ProjectOverview, type FindingRow } from '@earmark/contracts';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { startTestApi, type TestApi } from './support/test-api.js';
 
@@ -63,6 +63,8 @@ afterAll(() => api.close());
 describe('GET /api/projects/:project/overview', () => {
   it("shows main's verdict, each branch's trend and what fails on main since which build", async () => {
     const overview = await get<ProjectOverview>(`${base}/overview`, 'viewer@example.test');
+    // The answer is the contract's shape, the same schema the web app parses with.
+    expect(ProjectOverview.safeParse(overview).success).toBe(true);
     expect(overview.mainBranch).toBe('main');
     expect(overview.main).toMatchObject({ sha: 'd4d4d4d4', status: 'fail', counts: { pass: 0, fail: 1, error: 0 } });
     expect(overview.branches.map((b) => [b.branch, b.marks.map((m) => `${m.sha.slice(0, 2)}:${m.status}`), b.builds])).toEqual([
@@ -97,6 +99,7 @@ describe('GET /api/projects/:project/overview', () => {
 describe('GET /api/projects/:project/findings (triage)', () => {
   it('keeps branches apart and says since when, how often and where first seen', async () => {
     const main = await get<{ items: FindingRow[]; total: number }>(`${base}/findings?branch=main`, 'viewer@example.test');
+    expect(FindingsPage.safeParse(main).success).toBe(true);
     expect(main.total).toBe(1);
     expect(main.items[0]).toMatchObject({
       branch: 'main', buildSha: 'd4d4d4d4', occurrences: 2, firstSeen: { sha: 'c3c3c3c3' }, failingSince: { sha: 'c3c3c3c3' },

@@ -59,7 +59,7 @@ const matrix: BuildMatrix = {
   cells: [
     { testCase: 'eq.music.sweep', target: 'evt2-48k', captureId: 'cap-1', outcome: 'fail', failing: [failing, { ...failing, id: 'chk-2', margin: -0.2 }], previous: 'pass' },
     { testCase: 'eq.music.sweep', target: 'host-sim', captureId: 'cap-2', outcome: 'pass', failing: [], previous: 'pass' },
-    { testCase: 'level.sine.1k', target: 'evt2-48k', captureId: 'cap-3', outcome: 'error', failing: [], previous: 'error' },
+    { testCase: 'level.sine.1k', target: 'evt2-48k', captureId: 'cap-3', outcome: 'error', failing: [], previous: 'error', reason: 'The stored capture cannot be read: storage outage' },
   ],
   compared: summary(PREV, { status: 'pass' }),
 };
@@ -94,6 +94,8 @@ describe('build page', () => {
     expect(passed.querySelector('[data-changed]')).toBeNull();
 
     expect(cell('level.sine.1k', 'evt2-48k').textContent).toContain('Error');
+    // An error cell says why, in words.
+    expect(within(cell('level.sine.1k', 'evt2-48k')).getByTestId('error-reason').textContent).toBe('The stored capture cannot be read: storage outage');
     expect(cell('level.sine.1k', 'host-sim').textContent).toContain('No capture');
 
     const compare = screen.getByText(/Compared with/);

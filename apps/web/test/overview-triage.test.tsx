@@ -135,3 +135,24 @@ describe('findings triage', () => {
     await waitFor(() => expect(api.requests.filter((r) => r.path.endsWith('/findings')).at(-1)?.search).not.toContain('branch='));
   });
 });
+
+describe('the menu at phone width', () => {
+  it('opens as a drawer from the Menu button and closes on Escape and when the page changes', async () => {
+    setup();
+    const { router } = renderApp('/projects/kestrel-buds');
+    const menu = await screen.findByRole('button', { name: 'Menu' });
+    const drawer = document.getElementById('main-nav-drawer')!;
+    expect(menu.getAttribute('aria-expanded')).toBe('false');
+    expect(drawer.className).toContain('hidden');
+    const user = userEvent.setup();
+    await user.click(menu);
+    expect(menu.getAttribute('aria-expanded')).toBe('true');
+    expect(drawer.hasAttribute('data-open')).toBe(true);
+    await user.keyboard('{Escape}');
+    expect(menu.getAttribute('aria-expanded')).toBe('false');
+    await user.click(menu);
+    await user.click(within(screen.getByRole('navigation', { name: 'Main' })).getByRole('link', { name: 'Findings' }));
+    await waitFor(() => expect(router.state.location.pathname).toBe('/projects/kestrel-buds/findings'));
+    await waitFor(() => expect(menu.getAttribute('aria-expanded')).toBe('false'));
+  });
+});

@@ -5,12 +5,20 @@ import { cn } from '@/lib/cn';
 /**
  * Below 768 px the rail is a top bar: the navigation folds behind a Menu button and opens as a
  * drawer under the bar, every item on its own line, so nothing is cut off at phone width. From
- * 768 px the children sit in the rail as they are. The drawer closes when the page changes.
+ * 768 px the children sit in the rail as they are. The drawer closes when the page changes or on Escape.
  */
 export function NavDrawer({ children }: { children: ReactNode }) {
   const [open, setOpen] = useState(false);
   const location = useLocation();
   useEffect(() => setOpen(false), [location.pathname, location.search]);
+  useEffect(() => {
+    if (!open) return;
+    const closeOnEscape = (event: KeyboardEvent) => {
+      if (event.key === 'Escape') setOpen(false);
+    };
+    window.addEventListener('keydown', closeOnEscape);
+    return () => window.removeEventListener('keydown', closeOnEscape);
+  }, [open]);
 
   return (
     <>

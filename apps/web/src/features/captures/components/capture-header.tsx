@@ -1,4 +1,4 @@
-import type { CaptureDetail } from '@earmark/contracts';
+import { formatFrequency, formatSeconds, type CaptureDetail } from '@earmark/contracts';
 import { Link } from 'react-router';
 import { JudgingSettingsSummary } from '@/components/judging-settings-summary';
 import { PageHeader } from '@/components/page-header';
@@ -8,7 +8,6 @@ import { WaiverNote } from '@/components/waiver-note';
 import { formatDate } from '@/lib/format';
 import { paths } from '@/lib/paths';
 import { isCaptureInProgress } from '../api/get-capture';
-import { plain } from '@/lib/plot/log-frequency';
 import { ReevaluationChanges } from './reevaluation-changes';
 
 function Meta({ label, children }: { label: string; children: React.ReactNode }) {
@@ -79,7 +78,7 @@ export function CaptureHeader({ detail }: { detail: CaptureDetail }) {
         </Meta>
         <Meta label="Capture">
           <span className="font-mono text-[13px] tabular-nums">
-            {capture.channels} ch · {plain(capture.sampleRate / 1000, capture.sampleRate % 1000 === 0 ? 0 : 1)} kHz · {plain(seconds, 2)} s
+            {capture.channels} ch · {formatFrequency(capture.sampleRate)} · {formatSeconds(seconds)}
           </span>
         </Meta>
         <Meta label="Stimulus">

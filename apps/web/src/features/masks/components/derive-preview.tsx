@@ -28,7 +28,8 @@ function previewOptions(yTitle: string, domain: { min: number; max: number }, cu
       ),
       { label: 'Mean', stroke: plotPalette.ink900, width: 1.5, points: { show: false } },
       { label: 'New upper limit', stroke: plotPalette.brass600, width: 1.75, dash: [6, 4], points: { show: false } },
-      { label: 'New lower limit', stroke: plotPalette.brass600, width: 1.75, dash: [6, 4], points: { show: false } },
+      // Upper brass long dashes, lower dark brass dash-dot: the capture page's legend (docs/design.md, Plots).
+      { label: 'New lower limit', stroke: plotPalette.lowerLimit, width: 1.75, dash: [10, 3, 2, 3], points: { show: false } },
     ],
   });
 }
@@ -88,7 +89,8 @@ export function DerivePreview({ result, checkId, outlying }: { result: DeriveMas
         <span><span className="mr-1 inline-block h-px w-4 bg-ink-300 align-middle" />golden captures</span>
         {outlying.size ? <span><span className="mr-1 inline-block h-0.5 w-4 bg-fail align-middle" />outlier</span> : null}
         <span><span className="mr-1 inline-block h-0.5 w-4 bg-ink-900 align-middle" />mean</span>
-        <span><span className="mr-1 inline-block w-4 border-t-2 border-dashed border-brass-600 align-middle" />new limits of {checkId}</span>
+        <span><span className="mr-1 inline-block w-4 border-t-2 border-dashed border-brass-600 align-middle" />new upper limit of {checkId}</span>
+        <span><span className="mr-1 inline-block w-4 border-t-2 border-dotted border-brass-800 align-middle" />new lower limit</span>
       </p>
       <div className="grid gap-3 sm:grid-cols-2">
         <Breakpoints name="Upper limit" limit={check.upper} />
