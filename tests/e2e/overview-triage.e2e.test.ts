@@ -202,7 +202,7 @@ describe('the overview as the landing page, triage by branch, the shell at 390 p
     expect(await cell('History')).toMatch(new RegExp(`^since ${short}\\s*2 builds, first\\s*${short}$`));
     expect(await rows.first().locator('[data-failing-since]').getAttribute('data-failing-since')).toBe(third.sha);
     expect(await cell('Margin')).toMatch(/^−\d+\.\d\d dB$/);
-    await screenshot(page, 'findings');
+    await screenshot(page, 'findings-by-branch');
 
     // The feature branch has its own finding: one build, failing since that build.
     await page.getByLabel('Branch').selectOption(FEATURE);
@@ -259,7 +259,6 @@ describe('the overview as the landing page, triage by branch, the shell at 390 p
     expect((await table.locator('tbody tr').first().locator('td').nth(1).textContent())?.trim()).toBe('Fail');
     await noDocumentOverflow(page, 390);
     await page.setViewportSize({ width: 1440, height: 900 });
-    await screenshot(page, 'builds');
     await noDocumentOverflow(page, 1280);
     await page.close();
     expect(consoleErrors).toEqual([]);

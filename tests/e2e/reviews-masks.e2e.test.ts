@@ -34,10 +34,22 @@ async function get<T>(token: string, path: string): Promise<T> {
   return (await res.json()) as T;
 }
 
+/**
+ * Whether the document fits the width once layout has settled (plots follow their frame through a
+ * ResizeObserver, a frame or two after the resize). On failure it names the elements sticking out.
+ */
 async function noDocumentOverflow(page: Page, width: number): Promise<boolean> {
   await page.setViewportSize({ width, height: 900 });
-  await page.waitForTimeout(150);
-  return page.evaluate(() => document.documentElement.scrollWidth <= window.innerWidth);
+  const fits = () => page.evaluate(() => document.documentElement.scrollWidth <= window.innerWidth);
+  for (const deadline = Date.now() + 5000; Date.now() < deadline; await page.waitForTimeout(200)) if (await fits()) return true;
+  const wide = await page.evaluate(() =>
+    [...document.querySelectorAll('body *')]
+      .filter((el) => el.getBoundingClientRect().right > window.innerWidth + 1)
+      .slice(-5)
+      .map((el) => `${el.tagName.toLowerCase()}.${String(el.className).slice(0, 80)} right=${Math.round(el.getBoundingClientRect().right)}`),
+  );
+  console.warn(`document wider than ${width} px:`, wide);
+  return false;
 }
 
 const toast = (page: Page, text: string | RegExp) => page.getByRole('region', { name: /Notifications/ }).getByText(text).first();

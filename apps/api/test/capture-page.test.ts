@@ -160,8 +160,13 @@ describe('analysing a capture again', () => {
     const mask = await em.findOneOrFail(MaskRevision, { testCase: { key: 'tone.pair' }, revision: 1 });
     const links = createLinks('http://earmark.test');
     const judgement = errorJudgement('The stored capture cannot be read: test outage', ENGINE_VERSION);
-    // A plain re-run of the first job writes nothing; the person's request writes once.
+    // A plain re-run of the first job (say the sweep re-queued it after the request's job was lost)
+    // writes nothing, and the capture shows its newest verdict again instead of waiting for ever.
+    expect((await api.orm.em.fork().findOneOrFail(Capture, { id: captureId })).status).toBe('queued');
     expect((await recordVerdict(api.orm.em.fork(), captureId, mask, judgement, links)).written).toBe(false);
+    expect((await api.orm.em.fork().findOneOrFail(Capture, { id: captureId })).status).toBe('done');
+    expect((await api.orm.em.fork().findOneOrFail(Build, { sha: SHA })).status).toBe('fail');
+    // The person's request writes once.
     const id = crypto.randomUUID();
     expect((await recordVerdict(api.orm.em.fork(), captureId, mask, judgement, links, { reanalysisId: id })).written).toBe(true);
     expect((await recordVerdict(api.orm.em.fork(), captureId, mask, judgement, links, { reanalysisId: id })).written).toBe(false);

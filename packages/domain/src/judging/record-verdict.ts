@@ -48,7 +48,19 @@ export async function recordVerdict(
       const already = requestMark
         ? await tx.findOne(Verdict, { capture, waiverBasis: { $like: `%${requestMark}` } })
         : await tx.findOne(Verdict, { capture, maskRevision: mask ? mask.id : null, engineVersion: analysed.engineVersion });
-      if (already) return { written: false, notificationsQueued: 0 };
+      if (already) {
+        // A job that finds its verdict written (a re-run, or the sweep re-queuing a re-analysis whose
+        // job was lost) leaves the capture showing its newest verdict, never waiting for ever.
+        if (capture.status === 'queued' || capture.status === 'analysing') {
+          const newest = await newestVerdict(tx, capture);
+          if (newest) {
+            capture.status = newest.outcome === 'error' ? 'error' : 'done';
+            await tx.flush();
+            build.status = await computeBuildStatus(tx, build.id);
+          }
+        }
+        return { written: false, notificationsQueued: 0 };
+      }
       // A retention run may have purged the audio while this analysis ran (it holds the row until it
       // commits): its verdicts stand, and a re-evaluation that lost the race must not replace them
       // with "cannot be read". Purged captures always have a verdict: retention skips unjudged ones.

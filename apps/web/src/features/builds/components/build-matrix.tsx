@@ -69,7 +69,8 @@ function Cell({
   }
   // A waived check no longer fails the cell: it is told by the waiver note instead.
   const failing = cell.failing.filter((check) => !check.waiver);
-  const worst = failing[0];
+  // An error cell with its reason says it in words; the unevaluated check has no margin to show.
+  const worst = cell.outcome === 'error' && cell.reason ? undefined : failing[0];
   const change = cellChange(cell, hasCompared);
   return (
     <td

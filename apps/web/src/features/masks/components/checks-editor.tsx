@@ -115,7 +115,7 @@ export function ChecksEditor({
 
   return (
     <div className="space-y-3">
-      <div className="overflow-x-auto rounded-lg border border-line bg-paper-raised">
+      <div className="relative overflow-x-auto rounded-lg border border-line bg-paper-raised">
         <table aria-label="Checks editor" className="w-full min-w-[880px] border-collapse text-sm">
           <thead>
             <tr className="border-b border-line text-left text-xs font-semibold uppercase tracking-[0.06em] text-ink-500">

@@ -15,7 +15,7 @@ export function RevisionsTable({
   hrefFor: (revision: number) => string;
 }) {
   return (
-    <div className="overflow-x-auto rounded-lg border border-line bg-paper-raised">
+    <div className="relative overflow-x-auto rounded-lg border border-line bg-paper-raised">
       <table aria-label="Mask revisions" className="w-full min-w-[860px] border-collapse text-sm">
         <thead>
           <tr className="border-b border-line text-left text-xs font-semibold uppercase tracking-[0.06em] text-ink-500">
