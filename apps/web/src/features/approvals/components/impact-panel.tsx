@@ -72,6 +72,7 @@ function ImpactTables({ result, revision }: { result: ImpactResult; revision: nu
         </table>
       </div>
       {summary.worst.length ? (
+        <div className="overflow-x-auto">
         <table aria-label={`Worst margins of revision ${revision}`} className="w-full max-w-xl border-collapse text-sm">
           <thead>
             <tr className="border-b border-line text-left text-[11px] font-semibold uppercase tracking-[0.06em] text-ink-500">
@@ -90,6 +91,7 @@ function ImpactTables({ result, revision }: { result: ImpactResult; revision: nu
             ))}
           </tbody>
         </table>
+        </div>
       ) : null}
     </div>
   );

@@ -34,7 +34,7 @@ export function RevisionReviewCard({ projectKey, revision, myEmail }: { projectK
       <div className="border-b border-line px-4 py-4">
         <RevisionChanges projectKey={projectKey} revision={revision} />
       </div>
-      <div className="grid gap-6 px-4 py-4 lg:grid-cols-[minmax(0,1fr)_280px]">
+      <div className="grid grid-cols-[minmax(0,1fr)] gap-6 px-4 py-4 lg:grid-cols-[minmax(0,1fr)_280px]">
         <ImpactPanel projectKey={projectKey} caseKey={revision.testCase} revision={revision.revision} canRun />
         <DecisionPanel
           projectKey={projectKey}
@@ -71,7 +71,7 @@ export function WaiverReviewCard({
       aria-current={linked.current ? 'true' : undefined}
       className={cn('scroll-mt-20 rounded-lg border bg-paper-raised', linked.current ? 'border-brass-600 ring-2 ring-brass-300/60' : 'border-line')}
     >
-      <div className={cn('grid gap-6 px-4 py-4', mayDecide && 'lg:grid-cols-[minmax(0,1fr)_280px]')}>
+      <div className={cn('grid grid-cols-[minmax(0,1fr)] gap-6 px-4 py-4', mayDecide && 'lg:grid-cols-[minmax(0,1fr)_280px]')}>
         <div className="min-w-0 space-y-2">
           <h3 className="text-base font-semibold text-ink-950">
             Waive <span className="font-mono">{waiver.checkId}</span> on <span className="font-mono">{waiver.testCase}</span>
