@@ -43,7 +43,7 @@ async function noDocumentOverflow(page: Page, width: number): Promise<boolean> {
   const fits = () => page.evaluate(() => document.documentElement.scrollWidth <= window.innerWidth);
   for (const deadline = Date.now() + 5000; Date.now() < deadline; await page.waitForTimeout(200)) if (await fits()) return true;
   const wide = await page.evaluate(() =>
-    [...document.querySelectorAll('body *')]
+    Array.from(document.querySelectorAll('body *'))
       .filter((el) => el.getBoundingClientRect().right > window.innerWidth + 1)
       .slice(-5)
       .map((el) => `${el.tagName.toLowerCase()}.${String(el.className).slice(0, 80)} right=${Math.round(el.getBoundingClientRect().right)}`),

@@ -40,18 +40,16 @@ export function DecisionPanel({
   const blocked = blockedReason !== null;
   const [confirming, setConfirming] = useState(false);
 
+  // The promise, not mutate()'s callbacks: a decided card leaves the queue (and unmounts) before those would run.
   const send = (decision: Decision) =>
-    decide.mutate(
-      { target, decision },
-      {
-        onSuccess: () => {
-          setConfirming(false);
-          notify.success(`${label}: ${decision.verdict === 'approve' ? 'approved' : 'rejected'}`, successDetail(target, decision.verdict));
-        },
-        onError: (error) => {
-          setConfirming(false);
-          notify.error(`${label} was not ${decision.verdict === 'approve' ? 'approved' : 'rejected'}`, error instanceof ApiError ? error.detail : undefined);
-        },
+    void decide.mutateAsync({ target, decision }).then(
+      () => {
+        setConfirming(false);
+        notify.success(`${label}: ${decision.verdict === 'approve' ? 'approved' : 'rejected'}`, successDetail(target, decision.verdict));
+      },
+      (error: unknown) => {
+        setConfirming(false);
+        notify.error(`${label} was not ${decision.verdict === 'approve' ? 'approved' : 'rejected'}`, error instanceof ApiError ? error.detail : undefined);
       },
     );
   const approve = () => {
