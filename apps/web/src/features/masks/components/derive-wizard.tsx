@@ -1,4 +1,4 @@
-import { DeriveMaskRequest, formatDecibels, type DeriveMaskRequestInput, type MagnitudeEnvelopeCheck } from '@earmark/contracts';
+import { DeriveMaskRequest, formatDecibels, smoothingLabel, type DeriveMaskRequestInput, type MagnitudeEnvelopeCheck } from '@earmark/contracts';
 import { useEffect, useId, useMemo, useRef, useState } from 'react';
 import { Button } from '@/components/button';
 import { Dialog } from '@/components/dialog';
@@ -214,13 +214,13 @@ export function DeriveWizard({
             {numberField('maxSegments', 'Segment budget', 'per limit')}
             <div>
               <label htmlFor={`${ids}-smoothing`} className="mb-1 block text-[13px] font-medium text-ink-800">
-                Smoothing <span className="ml-1 font-mono text-xs font-normal text-ink-500">(1/N oct)</span>
+                Smoothing
               </label>
               <Select id={`${ids}-smoothing`} value={params.smoothing} onChange={(e) => setParams((p) => ({ ...p, smoothing: e.target.value }))} className="w-full">
                 <option value="">Default</option>
-                {['1', '3', '6', '12', '24'].map((n) => (
-                  <option key={n} value={n}>
-                    1/{n}
+                {[1, 3, 6, 12, 24].map((n) => (
+                  <option key={n} value={String(n)}>
+                    {smoothingLabel(n)}
                   </option>
                 ))}
               </Select>
