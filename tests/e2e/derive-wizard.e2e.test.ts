@@ -78,7 +78,12 @@ afterAll(async () => {
 });
 
 const masksUrl = () => `${stack.url}/projects/${project}/test-cases/${caseKey}/masks?rev=1`;
-const noOverflow = (page: Page) => page.evaluate(() => document.documentElement.scrollWidth <= window.innerWidth);
+/** True once the document fits the window; plots redraw a frame or two after a resize, so it polls (5 s). */
+async function noOverflow(page: Page): Promise<boolean> {
+  const fits = () => page.evaluate(() => document.documentElement.scrollWidth <= window.innerWidth);
+  for (const deadline = Date.now() + 5000; Date.now() < deadline; await page.waitForTimeout(200)) if (await fits()) return true;
+  return fits();
+}
 
 /** Ticks exactly the named captures in the wizard's list. */
 async function choose(wizard: Locator, labels: readonly string[]): Promise<void> {

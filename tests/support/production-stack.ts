@@ -9,7 +9,7 @@ import { ensureServerBuilt } from '@earmark/infra/build-js';
 import pg from 'pg';
 import { inject } from 'vitest';
 import { startBuiltProcess, type BuiltProcess } from './built-process.js';
-import { freePort } from './free-port.js';
+import { freePort, onFreePorts } from './free-port.js';
 
 const repoRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
 
@@ -44,9 +44,9 @@ export async function startProductionServices(opts: { migrate?: boolean } = {}):
   const s3Dir = path.join(dir, 's3');
   const bucket = `earmark-prod-${suffix}`;
   const s3: S3Fake = await startS3Fake({ port: 0, directory: s3Dir, bucket });
-  const smtpPort = await freePort();
-  const inboxPort = await freePort();
-  const smtp: SmtpFake = await startSmtpFake({ smtpPort, webPort: inboxPort });
+  const mail = await onFreePorts(2, async ([smtpPort, inboxPort]) => ({ smtpPort: smtpPort!, inboxPort: inboxPort!, fake: await startSmtpFake({ smtpPort: smtpPort!, webPort: inboxPort! }) }));
+  const { smtpPort } = mail;
+  const smtp: SmtpFake = mail.fake;
 
   const secret = (name: string, value: string) => {
     const file = path.join(dir, name);

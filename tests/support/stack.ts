@@ -9,7 +9,7 @@ import { createTestDatabase } from '@earmark/db/testing';
 import { startS3Fake, startSmtpFake, type S3Fake, type SmtpFake } from '@earmark/infra/fakes';
 import type { MikroORM } from '@mikro-orm/postgresql';
 import { pino } from 'pino';
-import { freePort } from './free-port.js';
+import { onFreePorts } from './free-port.js';
 import { startWorkerProcess, type WorkerProcess } from './worker-process.js';
 
 export interface Stack {
@@ -44,9 +44,9 @@ export async function startStack(opts: { seed?: 'roles' | 'demo' | 'none'; datab
   const fixture = opts.seed === 'none' ? noFixture : opts.seed === 'demo' ? await seedDemo(orm.em.fork(), secret).then(() => noFixture) : await seedRoles(orm.em.fork());
   const s3Dir = fs.mkdtempSync(path.join(os.tmpdir(), 'earmark-stack-s3-'));
   const s3: S3Fake = await startS3Fake({ port: 0, directory: s3Dir, bucket: 'earmark-captures' });
-  const smtpPort = await freePort();
-  const inboxPort = await freePort();
-  let smtp: SmtpFake = await startSmtpFake({ smtpPort, webPort: inboxPort });
+  const mail = await onFreePorts(2, async ([smtpPort, inboxPort]) => ({ smtpPort: smtpPort!, inboxPort: inboxPort!, fake: await startSmtpFake({ smtpPort: smtpPort!, webPort: inboxPort! }) }));
+  const { smtpPort, inboxPort } = mail;
+  let smtp: SmtpFake = mail.fake;
   const logger = pino({ level: 'silent' });
   const env = loadApiEnv({
     EARMARK_DATABASE_URL: db.url,

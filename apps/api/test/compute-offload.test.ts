@@ -74,8 +74,9 @@ describe('plots are stored and read', () => {
     const drawn = CapturePlot.parse(first.body);
     expect(drawn.spectrum.hz.length).toBeLessThanOrEqual(256);
     expect(drawn.engineVersion).toBe(ENGINE_VERSION);
-    // The key names the capture, the mask judged against (none yet), the engine, the columns and the channel.
-    expect(await api.objectStore.list(`plot-cache/${id}/`)).toEqual([`plot-cache/${id}/${ENGINE_VERSION}-none-256-0.json`]);
+    // The key names the capture, the engine, the mask judged against (none yet), the check drawn
+    // (none without a mask), the columns and the channel.
+    expect(await api.objectStore.list(`plot-cache/${id}/`)).toEqual([`plot-cache/${id}/${ENGINE_VERSION}-none-none-256-0.json`]);
 
     const again = await plot(id, '?columns=256&overlay=none');
     expect(again.body).toEqual(first.body);
