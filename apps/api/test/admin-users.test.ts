@@ -230,3 +230,26 @@ describe('workspace audit log', () => {
     expect(backwards.body.errors[0]).toMatchObject({ path: 'query.to', message: 'must not be before from' });
   });
 });
+
+// After the workspace audit log test, which counts today's project.archive events.
+describe('archived projects in the signed-in user', () => {
+  it('leaves roles in archived projects out of /api/me and the sign-in answer, for members and administrators alike', async () => {
+    expect((await api.request('POST', '/api/projects', { token: admin, body: { key: 'echo-amp', name: 'Echo Amp' } })).status).toBe(201);
+    for (const [email, role] of [['viewer@example.test', 'qa_manager'], ['admin@example.test', 'viewer']] as const) {
+      expect((await api.request('PUT', '/api/projects/echo-amp/members', { token: admin, body: { email, role } })).status).toBe(200);
+    }
+    const viewer = await api.login('viewer@example.test');
+    const roles = async (token: string) => (await api.request('GET', '/api/me', { token })).body.memberships.map((m: { projectKey: string; role: string }) => `${m.projectKey} ${m.role}`);
+    expect(await roles(viewer)).toEqual(['alpha-dsp viewer', 'echo-amp qa_manager']);
+    expect(await roles(admin)).toContain('echo-amp viewer');
+
+    expect((await api.request('PATCH', '/api/projects/echo-amp', { token: admin, body: { archived: true } })).status).toBe(200);
+    expect(await roles(viewer)).toEqual(['alpha-dsp viewer']);
+    expect(await roles(admin)).not.toContain('echo-amp viewer');
+    const signedIn = await signIn('viewer@example.test', TEST_PASSWORD);
+    expect(signedIn.body.user.memberships.map((m: { projectKey: string }) => m.projectKey)).toEqual(['alpha-dsp']);
+
+    expect((await api.request('PATCH', '/api/projects/echo-amp', { token: admin, body: { archived: false } })).status).toBe(200);
+    expect(await roles(viewer)).toEqual(['alpha-dsp viewer', 'echo-amp qa_manager']);
+  });
+});

@@ -1,8 +1,8 @@
-import { QUEUES, type CapturePlot } from '@earmark/contracts';
+import { CaptureDetail, JudgingSettings, MaskCheck, QUEUES, capturePlotSelection, type CapturePlot } from '@earmark/contracts';
 import { AuditEvent, Build, Capture, MaskRevision, Target, TestCase, Verdict, testCaseSettings } from '@earmark/db';
-import { createLinks, errorJudgement, judgeCapture, maskInForce, recordVerdict } from '@earmark/domain';
-import { ENGINE_VERSION, encodeWav } from '@earmark/dsp';
-import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { createLinks, errorJudgement, judgeCapture, maskInForce, recordVerdict, renderDefaultPlot, storedSettingsFor, writeStoredPlot } from '@earmark/domain';
+import { ENGINE_VERSION, decodeWav, encodeWav } from '@earmark/dsp';
+import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { startTestApi, type TestApi } from './support/test-api.js';
 
 /**
@@ -68,9 +68,46 @@ describe('the checks of a verdict', () => {
   });
 });
 
+describe('the view a capture opens on', () => {
+  it('is one rule: the API’s default plot, the worker’s stored plot and the web’s first view all show the worst failing check on its worst channel', async () => {
+    const viewer = await api.login('viewer@example.test');
+    const detail = CaptureDetail.parse((await api.request('GET', base(), { token: viewer })).body);
+    // The web's capture page opens on this (apps/web utils/plot-selection.ts calls the same function).
+    const web = capturePlotSelection(detail);
+    // env-wide (the mask's first) passes; the worst failing spectral check is a later one, on channel 1.
+    const failing = detail.capture.verdict!.checks.filter((c) => !c.pass && (c.kind === 'magnitude-envelope' || c.kind === 'band-levels'));
+    const worst = failing.reduce((a, b) => (b.margin! < a.margin! ? b : a));
+    expect(web).toEqual({ checkId: worst.id, channel: worst.channel });
+    expect(web.checkId).not.toBe('env-wide');
+
+    // What the worker's analysis thread stores after the verdict: the plot chosen from the verdict's checks.
+    const em = api.orm.em.fork();
+    const row = await em.findOneOrFail(Capture, { id: captureId }, { populate: ['project', 'build', 'testCase', 'target'] });
+    const mask = await maskInForce(em, row.testCase, row.target);
+    const judgement = judgeCapture(new Uint8Array(uploaded), row, mask);
+    const settings = JudgingSettings.parse(storedSettingsFor(row.testCase, mask));
+    const checks = (mask?.checks ?? []).map((c) => MaskCheck.parse(c));
+    const worker = renderDefaultPlot({ captureId, maskRevisionId: mask!.id, settings, checks, audio: decodeWav(new Uint8Array(uploaded)), verdictChecks: judgement.checks });
+    expect({ checkId: worker.identity.checkId, channel: worker.identity.channel }).toEqual(web);
+    await writeStoredPlot(api.objectStore, worker.identity, worker.stored);
+
+    // The page's first request names neither check nor channel: the API answers the stored plot, drawing nothing.
+    const spy = vi.spyOn(api.runtime.compute, 'run');
+    const res = await api.request('GET', `${base()}/plot?overlay=none`, { token: viewer });
+    expect(res.status, res.text).toBe(200);
+    expect(spy).not.toHaveBeenCalled();
+    spy.mockRestore();
+    expect({ checkId: res.body.checkId, channel: res.body.channel }).toEqual(web);
+    expect(res.body.failingRegions.length).toBeGreaterThan(0);
+    // A check asked for without a channel opens on that check's worst channel, as the page's check picker does.
+    const tight = await plot('columns=256&overlay=none&check=env-tight');
+    expect(tight.channel).toBe(1);
+  });
+});
+
 describe('plots of a chosen spectral check', () => {
-  it('draws the mask’s first envelope by default and the one asked for with its own limits', async () => {
-    const first = await plot('columns=256&channel=1&overlay=none');
+  it('draws the check asked for with its own limits', async () => {
+    const first = await plot('columns=256&channel=1&overlay=none&check=env-wide');
     expect(first).toMatchObject({ checkId: 'env-wide', checkKind: 'magnitude-envelope', measure: 'level', normalisedAtHz: null, unit: 'dBFS', bands: null, failingRegions: [] });
     expect(first.upper).toEqual([{ hz: 100, db: 0 }, { hz: 10000, db: 0 }]);
 

@@ -1,6 +1,6 @@
 import { CAPTURE_PURGED, STORAGE_QUOTA_EXCEEDED } from '@earmark/contracts';
 import { ApiToken, Build, Capture, CheckResult, MaskRevision, Project, Target, TestCase, Verdict, testCaseSettings } from '@earmark/db';
-import { applyRetention, plotKey } from '@earmark/domain';
+import { applyRetention, assertWithinQuota, plotKey } from '@earmark/domain';
 import { encodeWav } from '@earmark/dsp';
 import { generateTokenSecret } from '@earmark/platform';
 import { pino } from 'pino';
@@ -84,6 +84,80 @@ describe('per-project storage quota', () => {
     expect(bad.status).toBe(422);
     expect(bad.body.errors).toEqual([expect.objectContaining({ path: 'body.storageQuotaBytes' })]);
     expect((await api.request('PATCH', '/api/projects/beta-dsp', { token: admin, body: { quota: 5 } })).status).toBe(422);
+  });
+
+  it('holds the quota exactly under concurrent uploads: 8 at once into room for 3 store 3, refuse 5 and leave no object behind', async () => {
+    const em = api.orm.em.fork();
+    const small = wav(4800);
+    // Room for three captures and a little, never four.
+    const project = em.create(Project, { key: 'gamma-race', name: 'Gamma race', storageQuotaBytes: 3 * small.length + 100 });
+    em.create(TestCase, { project, key: 'tone.997', name: 'tone', stimulus: { kind: 'sine', sampleRate: 48000, seconds: 0.1, frequency: 997, levelDbfs: -12 } });
+    em.create(Target, { project, key: 'board-a', name: 'Board A', sampleRate: 48000 });
+    const secret = generateTokenSecret();
+    em.create(ApiToken, { project, name: 'ci', prefix: secret.prefix, secretHash: secret.hash, scopes: ['submit-captures'], createdBy: api.fixture.users.admin.id });
+    await em.flush();
+
+    const upload = (i: number) =>
+      fetch(`${api.baseUrl}/api/v1/projects/gamma-race/builds/0c0c0c0${i}/captures?testCase=tone.997&target=board-a`, {
+        method: 'POST',
+        headers: { authorization: `Bearer ${secret.token}`, 'content-type': 'audio/wav' },
+        body: small,
+      }).then(async (res) => ({ status: res.status, body: (await res.json()) as { code?: string } }));
+    const answers = await Promise.all(Array.from({ length: 8 }, (_, i) => upload(i)));
+
+    expect(answers.filter((a) => a.status === 202)).toHaveLength(3);
+    const refused = answers.filter((a) => a.status === 413);
+    expect(refused).toHaveLength(5);
+    expect(refused.every((a) => a.body.code === STORAGE_QUOTA_EXCEEDED)).toBe(true);
+    const rows = await em.fork().find(Capture, { project: project.id });
+    expect(rows).toHaveLength(3);
+    // Every stored object has its row: nothing refused was left in the bucket.
+    expect((await api.objectStore.list('captures/gamma-race/')).sort()).toEqual(rows.map((r) => r.objectKey).sort());
+  });
+
+  it('makes only uploads to the same project wait for the quota lock', async () => {
+    const em = api.orm.em.fork();
+    const small = wav(4800);
+    const made = ['delta-race', 'epsilon-race'].map((key) => {
+      const project = em.create(Project, { key, name: key, storageQuotaBytes: 10 * small.length });
+      em.create(TestCase, { project, key: 'tone.997', name: 'tone', stimulus: { kind: 'sine', sampleRate: 48000, seconds: 0.1, frequency: 997, levelDbfs: -12 } });
+      em.create(Target, { project, key: 'board-a', name: 'Board A', sampleRate: 48000 });
+      const secret = generateTokenSecret();
+      em.create(ApiToken, { project, name: 'ci', prefix: secret.prefix, secretHash: secret.hash, scopes: ['submit-captures'], createdBy: api.fixture.users.admin.id });
+      return { project, token: secret.token };
+    });
+    await em.flush();
+    const [delta, epsilon] = made as [(typeof made)[0], (typeof made)[0]];
+    const upload = (key: string, token: string, sha: string) =>
+      fetch(`${api.baseUrl}/api/v1/projects/${key}/builds/${sha}/captures?testCase=tone.997&target=board-a`, {
+        method: 'POST',
+        headers: { authorization: `Bearer ${token}`, 'content-type': 'audio/wav' },
+        body: small,
+      }).then((res) => res.status);
+    // Uploads of this file's database waiting for an advisory lock (the shared test cluster holds other databases).
+    const waiting = async () =>
+      Number((await em.getConnection().execute<{ n: string }[]>(`select count(*) as n from pg_locks where locktype = 'advisory' and not granted and database = (select oid from pg_database where datname = current_database())`))[0]!.n);
+
+    // Another upload to delta-race holds its quota lock, as if between its check and its commit.
+    let release!: () => void;
+    let locked!: () => void;
+    const isLocked = new Promise<void>((resolve) => (locked = resolve));
+    const holder = api.orm.em.fork().transactional(async (tx) => {
+      await assertWithinQuota(tx, delta.project, small.length, undefined, { locked: true });
+      locked();
+      await new Promise<void>((resolve) => (release = resolve));
+    });
+    await isLocked;
+
+    // Another project is not held up.
+    expect(await upload('epsilon-race', epsilon.token, '0e0e0e01')).toBe(202);
+    // The same project's upload queues behind the lock until it is released.
+    const queued = upload('delta-race', delta.token, '0d0d0d01');
+    await expect.poll(waiting, { timeout: 15_000 }).toBe(1);
+    release();
+    await holder;
+    expect(await queued).toBe(202);
+    expect(await waiting()).toBe(0);
   });
 
   it('refuses everyone but administrators with 403 (non-members 404)', async () => {

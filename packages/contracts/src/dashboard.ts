@@ -212,7 +212,7 @@ export const PlotQuery = z.object({
   columns: z.coerce.number().int().min(64).max(4096).default(1024),
   channel: z.coerce.number().int().min(0).max(7).optional(),
   overlay: z.enum(['none', 'last-passing']).default('last-passing'),
-  /** The spectral check (magnitude-envelope or band-levels) whose limits are drawn; default: the mask's first. */
+  /** The spectral check (magnitude-envelope or band-levels) whose limits are drawn; default: the view the page opens on (`defaultPlotSelection`). */
   check: CheckId.optional(),
 });
 export type PlotQuery = z.infer<typeof PlotQuery>;

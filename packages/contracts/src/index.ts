@@ -26,3 +26,4 @@ export * from './format/index.js';
 export * from './check-labels.js';
 export * from './mask-diff-words.js';
 export * from './finding-title.js';
+export * from './plot-selection.js';

@@ -8,13 +8,17 @@ import { inlinePasswordChecks, type PasswordChecks } from './password-checks.js'
 import { AuthError, ValidationError } from '../errors.js';
 import { recordAudit } from '@earmark/domain';
 
+/**
+ * The signed-in user with their project roles. Roles in archived projects are left out for
+ * everyone, administrators included: archived projects appear only in the admin screens.
+ */
 export function toCurrentUser(user: User, memberships: Membership[]): CurrentUser {
   return {
     id: user.id,
     email: user.email,
     displayName: user.displayName,
     isAdmin: user.isAdmin,
-    memberships: memberships.map((m) => ({ projectKey: m.project.key, projectName: m.project.name, role: m.role })),
+    memberships: memberships.filter((m) => !m.project.archivedAt).map((m) => ({ projectKey: m.project.key, projectName: m.project.name, role: m.role })),
   };
 }
 

@@ -29,19 +29,32 @@ export async function storageUsedBytes(em: EntityManager, projectIds: readonly s
     `select p.id as project_id, (select sum(c.size_bytes) from capture c where c.project_id = p.id and c.purged_at is null) as used
        from project p where p.id = any(?::uuid[])`,
     [`{${projectIds.join(',')}}`],
+    'all',
+    em.getTransactionContext(),
   );
   return new Map(rows.map((r) => [r.project_id, Number(r.used ?? 0)]));
 }
 
+/** First key of the quota's advisory locks (the second is the project's hash), so no other lock of ours collides. */
+const QUOTA_LOCK_SPACE = 0x45514d51;
+
 /**
- * Refuses an upload that would take the project past its quota, before anything is stored.
- * Two uploads at the same moment can both pass the check (it takes no lock): the quota is a
- * bound on growth, not an exact ledger, and can be passed by at most the uploads in flight.
+ * Refuses an upload that would take the project past its quota.
+ *
+ * Outside a transaction it is the cheap early answer, before anything is decoded or stored.
+ * Inside the transaction that inserts the capture (`locked`), it first takes the project's
+ * transaction-scoped advisory lock, so uploads to one project pass check and insert one at a
+ * time and the quota holds exactly; other projects take other locks and never wait. Projects
+ * without a quota take no lock.
  * @throws QuotaExceededError (413 storage-quota-exceeded) naming used, quota and capture size
  */
-export async function assertWithinQuota(em: EntityManager, project: Project, captureBytes: number, defaultBytes: number | undefined): Promise<void> {
+export async function assertWithinQuota(em: EntityManager, project: Project, captureBytes: number, defaultBytes: number | undefined, options: { locked?: boolean } = {}): Promise<void> {
   const quota = effectiveQuota(project, defaultBytes);
   if (quota.bytes === null) return;
+  if (options.locked) {
+    // Held until the caller's transaction commits or rolls back: the next upload's sum sees this one's row.
+    await em.getConnection().execute('select pg_advisory_xact_lock(?, hashtext(?))', [QUOTA_LOCK_SPACE, project.id], 'all', em.getTransactionContext());
+  }
   const used = (await storageUsedBytes(em, [project.id])).get(project.id) ?? 0;
   if (used + captureBytes <= quota.bytes) return;
   throw new QuotaExceededError(

@@ -71,7 +71,7 @@ export class CaptureIngestService {
       if (existing) return this.replay(em, existing, testCase, target);
     }
 
-    // Before decoding or storing anything: a capture past the quota costs one indexed sum.
+    // Before decoding or storing anything: a capture past the quota costs one indexed sum (checked again at the insert).
     await assertWithinQuota(em, project, upload.bytes.length, this.deps.storageQuotaDefaultBytes);
     const audio = await this.inspect(upload);
     if (target.sampleRate !== null && audio.sampleRate !== target.sampleRate) {
@@ -99,6 +99,8 @@ export class CaptureIngestService {
     let capture: Capture;
     try {
       capture = await em.transactional(async (tx) => {
+        // Again under the project's lock: uploads that passed the early check together are counted one by one.
+        await assertWithinQuota(tx, project, upload.bytes.length, this.deps.storageQuotaDefaultBytes, { locked: true });
         const { build } = await findOrCreateBuild(tx, project, sha);
         const row = tx.create(Capture, {
           id: captureId,

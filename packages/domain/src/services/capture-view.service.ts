@@ -1,7 +1,7 @@
 import { Readable } from 'node:stream';
 import type { EntityManager } from '@mikro-orm/postgresql';
-import { JudgingSettings, MaskCheck, RAW_FLOAT32_MEDIA_TYPE, type AudioKind, type CaptureDetail, type CapturePlot, type PlotQuery } from '@earmark/contracts';
-import { Capture, type MaskRevision, type Project, type Verdict } from '@earmark/db';
+import { JudgingSettings, MaskCheck, RAW_FLOAT32_MEDIA_TYPE, plotChannelFor, type AudioKind, type CaptureDetail, type CapturePlot, type PlotCheckResult, type PlotQuery } from '@earmark/contracts';
+import { Capture, CheckResult, type MaskRevision, type Project, type Verdict } from '@earmark/db';
 import { type ObjectStore } from '@earmark/platform';
 import { decodeRefusalOf, plotRefusalOf } from '../compute/compute-errors.js';
 import { ownBuffer } from '../compute/views-compute.js';
@@ -10,7 +10,8 @@ import { GoneError, NotFoundError, UnsupportedCaptureError, ValidationError } fr
 import { assertAudioStored } from '../lifecycle/purged-capture.js';
 import { storedSettingsFor } from '../judging/judging-settings.js';
 import { plotKey, readStoredPlot, writeStoredPlot, type PlotIdentity, type StoredPlot } from '../plots/plot-store.js';
-import { isSpectralCheck, plotChannel, plotCheck, type CapturePlotCore } from '../plots/render-capture-plot.js';
+import { isSpectralCheck, plotChannel, plotCheck, type CapturePlotCore, type SpectralCheck } from '../plots/render-capture-plot.js';
+import { defaultPlotView, plotCheckResult } from '../plots/plot-view.js';
 import { SingleFlight } from '../util/single-flight.js';
 import { storedFormatOf } from '../judging/judge-capture.js';
 import { CaptureAudioLoader } from './capture-audio.js';
@@ -23,6 +24,12 @@ import { newestVerdict } from '../repositories/verdicts.js';
 import { lastPassingCapture } from '../repositories/last-passing.js';
 
 type LoadedCapture = Capture;
+
+/** The verdict's check results as the plot rule reads them. */
+async function verdictPlotResults(em: EntityManager, verdict: Verdict): Promise<PlotCheckResult[]> {
+  const rows = await em.find(CheckResult, { verdict: verdict.id });
+  return rows.map((c) => plotCheckResult(c.checkId, c.pass, c.margin, c.details));
+}
 
 /** Capture page data: details, decimated plot data and audio for listening. */
 export class CaptureViewService {
@@ -92,7 +99,7 @@ export class CaptureViewService {
    */
   async plot(em: EntityManager, project: Project, id: string, q: PlotQuery): Promise<CapturePlot> {
     const capture = await this.load(em, project, id);
-    const main = await this.storedPlot(capture, await newestVerdict(em, capture, ['maskRevision']), q.columns, q.channel, { id: q.check, strict: true });
+    const main = await this.storedPlot(em, capture, await newestVerdict(em, capture, ['maskRevision']), q.columns, q.channel, { id: q.check, strict: true });
     const overlay = q.overlay === 'last-passing' ? await this.overlayFor(em, project, capture, main, q.columns) : null;
     return { ...main, overlay };
   }
@@ -103,7 +110,7 @@ export class CaptureViewService {
     const other = await this.load(em, project, passing.captureId);
     try {
       // The same check when the last pass was judged with it too, else its mask's default: the curve is what is compared.
-      const plot = await this.storedPlot(other, await newestVerdict(em, other, ['maskRevision']), columns, main.channel, { id: main.checkId ?? undefined, strict: false });
+      const plot = await this.storedPlot(em, other, await newestVerdict(em, other, ['maskRevision']), columns, main.channel, { id: main.checkId ?? undefined, strict: false });
       // Curves in different units (one drew its level, the other its transfer) do not share an axis.
       return plot.unit === main.unit ? { captureId: other.id, buildSha: passing.buildSha, spectrum: plot.spectrum } : null;
     } catch (error) {
@@ -114,10 +121,14 @@ export class CaptureViewService {
   }
 
   /**
-   * The stored plot of a capture, computed and stored first on a miss.
+   * The stored plot of a capture, computed and stored first on a miss. Without a check asked for
+   * (or when a non-strict one is not in the mask) it draws the view the capture page opens on,
+   * the worst failing spectral check (`defaultPlotView`); without a channel, the drawn check's
+   * worst channel — the same view the worker stored after the verdict.
    * @throws UnsupportedCaptureError (stored refusal); ValidationError when `strict` and the check asked for is no spectral check of the mask
    */
   private async storedPlot(
+    em: EntityManager,
     capture: Capture,
     verdict: Verdict | null,
     columns: number,
@@ -127,8 +138,8 @@ export class CaptureViewService {
     const settings = JudgingSettings.parse(verdict?.settings ?? storedSettingsFor(capture.testCase, verdict?.maskRevision ?? null));
     const mask = verdict?.maskRevision ?? null;
     const checks = (mask?.checks ?? []).map((c) => MaskCheck.parse(c));
-    let check = plotCheck(checks, askedCheck.id);
-    if (!check && askedCheck.id !== undefined) {
+    let check: SpectralCheck | null | undefined = askedCheck.id === undefined ? undefined : plotCheck(checks, askedCheck.id);
+    if (check === null) {
       if (askedCheck.strict) {
         const spectral = checks.filter(isSpectralCheck).map((c) => c.id);
         throw new ValidationError(
@@ -136,9 +147,16 @@ export class CaptureViewService {
           [{ path: 'check', message: spectral.length ? `choose one of ${spectral.join(', ')}` : 'the mask has no spectral check' }],
         );
       }
-      check = plotCheck(checks, undefined);
+      check = undefined;
     }
-    const identity: PlotIdentity = { captureId: capture.id, maskRevisionId: mask?.id ?? null, columns, channel: plotChannel(askedChannel, settings, capture.channelCount), checkId: check?.id ?? null };
+    // Read only when a default is to be chosen: the page asks with both, and then this costs no query.
+    const results = verdict && (check === undefined || askedChannel === undefined) ? await verdictPlotResults(em, verdict) : [];
+    if (check === undefined) {
+      const view = defaultPlotView(checks, results, settings.channelMap, capture.channelCount);
+      check = view.checkId === null ? null : plotCheck(checks, view.checkId);
+    }
+    const channel = askedChannel ?? plotChannelFor(check, results.find((r) => r.id === check?.id) ?? null, { channelMap: settings.channelMap, channelCount: capture.channelCount });
+    const identity: PlotIdentity = { captureId: capture.id, maskRevisionId: mask?.id ?? null, columns, channel: plotChannel(channel, settings, capture.channelCount), checkId: check?.id ?? null };
     const stored = (await readStoredPlot(this.objectStore, identity)) ?? (await this.computing.run(plotKey(identity), () => this.computePlot(capture, identity, settings, mask)));
     if ('refusal' in stored) throw new UnsupportedCaptureError(stored.refusal.detail, stored.refusal.code);
     return stored.plot;

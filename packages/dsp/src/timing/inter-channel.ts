@@ -1,5 +1,5 @@
 import { precondition } from '../util/preconditions.js';
-import { type LatencyEstimate, measureLatency } from './latency.js';
+import { type LatencyEstimate, STIMULUS_FOUND_MIN_CORRELATION, measureLatency } from './latency.js';
 import { loudestStretch } from './loudest-stretch.js';
 import type { CorrelationWeighting } from './weighted-cross-correlation.js';
 
@@ -34,7 +34,7 @@ export function interChannelDelay(a: Float64Array, b: Float64Array, options: Int
   precondition(Number.isInteger(maxLag) && maxLag >= 0, fn, `maxLagSamples must be a whole number ≥ 1 (got ${options.maxLagSamples})`);
   precondition(Number.isInteger(span) && span >= 1, fn, `maxAnalysisSamples must be a whole number ≥ 1 (got ${options.maxAnalysisSamples})`);
   if (!a.some((v) => v !== 0) || !b.some((v) => v !== 0)) {
-    return { samples: 0, polarity: 'normal', peakRatioDb: 0, confidence: 0, ambiguous: true, alternativeSamples: null, warnings: ['A channel is silent, so no inter-channel delay can be measured.'] };
+    return { samples: 0, polarity: 'normal', peakRatioDb: 0, confidence: 0, ambiguous: true, found: false, alternativeSamples: null, warnings: ['A channel is silent, so no inter-channel delay can be measured.'] };
   }
   const start = loudestStretch(a, span);
   const from = Math.max(0, start - maxLag);
@@ -47,8 +47,10 @@ export function interChannelDelay(a: Float64Array, b: Float64Array, options: Int
     ...(options.ambiguityDb !== undefined ? { ambiguityDb: options.ambiguityDb } : {}),
   });
   const shift = (lag: number | null): number | null => (lag === null ? null : lag - offset);
-  // The "capture leads" wording of measureLatency does not fit two channels; say it plainly.
-  const warnings = estimate.warnings.filter((w) => !w.startsWith('The capture leads'));
+  // measureLatency's "capture" and "stimulus" wording does not fit two channels; say it plainly.
+  const warnings = estimate.found
+    ? estimate.warnings.filter((w) => !w.startsWith('The capture leads'))
+    : [`The two channels hardly resemble each other (best correlation ${estimate.confidence.toFixed(3)}, under ${STIMULUS_FOUND_MIN_CORRELATION}): the delay between them may be wrong.`];
   return { ...estimate, samples: estimate.samples - offset, alternativeSamples: shift(estimate.alternativeSamples), warnings };
 }
 
@@ -63,6 +65,6 @@ export function interChannelDelays(channels: readonly Float64Array[], options: I
   precondition(Number.isInteger(ref) && ref >= 0 && ref < channels.length, 'interChannelDelays', `referenceChannel must index one of the ${channels.length} channels (got ${ref})`);
   const a = channels[ref] as Float64Array;
   return channels.map((b, c) =>
-    c === ref ? { samples: 0, polarity: 'normal', peakRatioDb: Infinity, confidence: 1, ambiguous: false, alternativeSamples: null, warnings: [] } : interChannelDelay(a, b, options),
+    c === ref ? { samples: 0, polarity: 'normal', peakRatioDb: Infinity, confidence: 1, ambiguous: false, found: true, alternativeSamples: null, warnings: [] } : interChannelDelay(a, b, options),
   );
 }

@@ -30,14 +30,33 @@ export interface LatencyEstimate {
   confidence: number;
   /** True when another lag correlates nearly as well (`ambiguityDb`): the latency is not unique. */
   ambiguous: boolean;
+  /**
+   * False when even the best lag correlates under `STIMULUS_FOUND_MIN_CORRELATION`: the capture
+   * does not contain the stimulus, and `samples` is the position of noise, not a latency.
+   */
+  found: boolean;
   /** The competing latency (whole samples) when ambiguous, else null. */
   alternativeSamples: number | null;
   /** Plain-word problems found; empty when the estimate can be trusted. */
   warnings: string[];
 }
 
-/** Below this |coefficient| the capture hardly resembles the stimulus (common practice, a loose bound). */
-const WEAK_COEFFICIENT = 0.1;
+/**
+ * Below this |coefficient| at the best lag the stimulus counts as not found in the capture (a
+ * loose, common-practice bound). Unrelated signals of N samples correlate at about 1/√N at any
+ * one lag, so the best of the lags searched stays a few times that: 0.018 for a second of noise
+ * against a second of white-noise stimulus; a capture holding the stimulus reads near 1, and
+ * still 0.3 at 10 dB less signal than noise.
+ */
+export const STIMULUS_FOUND_MIN_CORRELATION = 0.1;
+
+/** The sentence for a capture that does not contain its stimulus, with the figure that decided it. */
+export function stimulusNotFoundMessage(coefficient: number): string {
+  return (
+    `The stimulus was not found in the capture: its best alignment correlates at ${Math.abs(coefficient).toFixed(3)}, under the ` +
+    `${STIMULUS_FOUND_MIN_CORRELATION} a capture holding the stimulus reaches. Check that the device played this test case's stimulus and that this channel was recorded.`
+  );
+}
 
 /**
  * Latency of `capture` against `stimulus` at sub-sample resolution with polarity and an
@@ -61,30 +80,31 @@ export function measureLatency(stimulus: Float64Array, capture: Float64Array, op
     weighting: options.weighting ?? 'phat',
   });
   if (!peak.valid) {
-    return { samples: 0, polarity: 'normal', peakRatioDb: 0, confidence: 0, ambiguous: true, alternativeSamples: null, warnings: ['The stimulus or the capture is silent, so no latency can be measured.'] };
+    return { samples: 0, polarity: 'normal', peakRatioDb: 0, confidence: 0, ambiguous: true, found: false, alternativeSamples: null, warnings: ['The stimulus or the capture is silent, so no latency can be measured.'] };
   }
-  const warnings: string[] = [];
+  const found = Math.abs(peak.coefficient) >= STIMULUS_FOUND_MIN_CORRELATION;
   const ambiguous = peak.peakRatioDb < ambiguityDb;
+  const estimate = {
+    samples: peak.lag,
+    polarity: peak.polarity,
+    peakRatioDb: peak.peakRatioDb,
+    confidence: Math.abs(peak.coefficient),
+    ambiguous,
+    found,
+    alternativeSamples: ambiguous ? peak.secondLag : null,
+  };
+  // Without the stimulus, its lag, lead, period or polarity would describe noise: say only that.
+  if (!found) return { ...estimate, warnings: [stimulusNotFoundMessage(peak.coefficient)] };
+  const warnings: string[] = [];
   if (ambiguous) {
     warnings.push(
       `The latency is ambiguous: lag ${peak.secondLag} correlates within ${peak.peakRatioDb.toFixed(1)} dB of lag ${peak.integerLag}. ` +
         'The stimulus is periodic or narrow-band; use a sweep or non-repeating noise, or bound the search range.',
     );
   }
-  if (Math.abs(peak.coefficient) < WEAK_COEFFICIENT) {
-    warnings.push(`The capture hardly resembles the stimulus (correlation ${peak.coefficient.toFixed(3)}): the latency may be wrong.`);
-  }
   // Half a sample of lead is within an aligned capture's interpolation error.
   if (peak.lag < -0.5) warnings.push(`The capture leads the stimulus by ${(-peak.lag).toFixed(2)} samples: the recording started late or the wrong stimulus was given.`);
   // With a periodic stimulus the sign of the chosen peak says nothing about polarity.
   if (peak.polarity === 'inverted' && !ambiguous) warnings.push('The capture is inverted in polarity relative to the stimulus.');
-  return {
-    samples: peak.lag,
-    polarity: peak.polarity,
-    peakRatioDb: peak.peakRatioDb,
-    confidence: Math.abs(peak.coefficient),
-    ambiguous,
-    alternativeSamples: ambiguous ? peak.secondLag : null,
-    warnings,
-  };
+  return { ...estimate, warnings };
 }

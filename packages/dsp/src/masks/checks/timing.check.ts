@@ -29,7 +29,11 @@ export function evaluateTiming(ctx: CaptureContext, check: TimingCheck): CheckEv
   if (check.metric === 'latency-ms' || check.metric === 'polarity') {
     outcomes = checkChannels(ctx, check).map((channel) => {
       const t = ctx.timing(channel);
-      if (t.ambiguous) throw new MaskCheckError(`the latency of channel ${channel} is ambiguous: ${t.warnings.join('; ') || 'the stimulus repeats, so several delays fit equally well'}`);
+      if (t.ambiguous) {
+        // No stimulus to align: "ambiguous" would suggest a periodic stimulus rather than a missing one.
+        if (t.notFound) throw new MaskCheckError(`the latency of channel ${channel} cannot be measured: ${t.notFound}`);
+        throw new MaskCheckError(`the latency of channel ${channel} is ambiguous: ${t.warnings.join('; ') || 'the stimulus repeats, so several delays fit equally well'}`);
+      }
       if (check.metric === 'polarity') {
         const sign = t.polarity === 'normal' ? 1 : -1;
         return { channel, pass: sign === 1, measured: sign, limit: 1, margin: sign - 1, worstHz: null, details: { polarity: t.polarity, latencySamples: t.latencySamples } };
