@@ -18,9 +18,11 @@ const BENCHES = {
   plot: { script: 'tests/bench/capture-plot.bench.ts', cwd: 'tests' },
   /** The worker's analysis slots: verdicts/s with 1 and 2 slots against the engine alone. */
   worker: { script: 'tests/bench/analysis-slots.bench.ts', cwd: 'tests' },
+  /** One analysis slot's job, step by step (object, thread, verdict, plot, pg-boss), for two capture shapes. */
+  jobs: { script: 'tests/bench/job-overhead.bench.ts', cwd: 'tests' },
 } as const;
 
-/** `npm run bench [-- dsp|api|plot|worker]`: speed and memory targets, measured (docs/performance.md). */
+/** `npm run bench [-- dsp|api|plot|worker|jobs]`: speed and memory targets, measured (docs/performance.md). */
 export async function benchCommand(args: string[]): Promise<number> {
   const [which, ...rest] = args;
   const selected = which && which in BENCHES ? [which as keyof typeof BENCHES] : (Object.keys(BENCHES) as (keyof typeof BENCHES)[]);

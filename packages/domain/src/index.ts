@@ -25,6 +25,7 @@ export * from './compute/views-compute.js';
 export * from './compute/compute-errors.js';
 export * from './plots/render-capture-plot.js';
 export * from './plots/plot-store.js';
+export * from './plots/plot-view.js';
 export * from './services/catalog.service.js';
 export * from './services/drift.service.js';
 export * from './services/findings.service.js';

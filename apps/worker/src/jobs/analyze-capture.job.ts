@@ -5,8 +5,9 @@ import { ENGINE_VERSION } from '@earmark/dsp';
 import { LockMode, type MikroORM } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
 import type { Logger } from 'pino';
-import { computeBuildStatus, errorJudgement, writeStoredPlot, maskInForce, noteDrift, recordVerdict, type JobProducer, type RecordDeps, type RecordResult } from '@earmark/domain';
+import { computeBuildStatus, errorJudgement, writeStoredPlot, maskInForce, noteDrift, recordVerdict, type AnalysisPhases, type JobProducer, type RecordDeps, type RecordResult } from '@earmark/domain';
 import { judgeInThread, type AnalysisSlots } from './judge-in-thread.js';
+import { startJobSteps } from './job-steps.js';
 import type { JudgingMetrics } from '../worker-metrics.js';
 
 export interface AnalyzeDeps {
@@ -34,6 +35,7 @@ export async function analyzeCapture(job: PgBoss.JobWithMetadata<unknown>, deps:
   const { captureId, maskRevisionId, reanalysisId } = AnalyzeCaptureJob.parse(job.data);
   // A person's "analyse again": written once per request even under the same revision and engine.
   const request = reanalysisId ? { reanalysisId } : {};
+  const steps = startJobSteps();
   const em = deps.orm.em.fork();
   const capture = await em.findOne(Capture, { id: captureId }, { populate: ['project', 'build', 'testCase', 'target'] });
   if (!capture) {
@@ -47,6 +49,7 @@ export async function analyzeCapture(job: PgBoss.JobWithMetadata<unknown>, deps:
   }
   // A re-evaluation names its (approved) revision; otherwise the revision in force judges.
   const mask = maskRevisionId ? await em.findOne(MaskRevision, { id: maskRevisionId }) : await maskInForce(em, capture.testCase, capture.target);
+  steps.lap('loadMs');
   const attempt = job.retryCount + 1;
   const log = deps.logger.child({ captureId, attempt, mask: mask?.id ?? null });
 
@@ -58,13 +61,19 @@ export async function analyzeCapture(job: PgBoss.JobWithMetadata<unknown>, deps:
     return;
   }
 
-  if (capture.status === 'queued') await markAnalysing(deps.orm, captureId);
+  // NOTE: the object is fetched while the capture is marked as analysing; neither waits for the other.
+  // Settled here, so a failed fetch is handled below (after the mark), never as an unhandled rejection.
+  const fetched: Promise<{ bytes: Buffer } | { error: unknown }> = deps.objectStore.get(capture.objectKey).then(
+    (bytes) => ({ bytes }),
+    (error: unknown) => ({ error }),
+  );
+  if (capture.status === 'queued') await markAnalysing(deps.orm, captureId, capture.build.id);
+  steps.lap('markMs');
   if (deps.delayMs > 0) await new Promise((resolve) => setTimeout(resolve, deps.delayMs));
 
-  let bytes: Buffer;
-  try {
-    bytes = await deps.objectStore.get(capture.objectKey);
-  } catch (error) {
+  const got = await fetched;
+  if ('error' in got) {
+    const { error } = got;
     if (error instanceof ObjectStoreUnavailableError) {
       log.warn({ err: error }, 'object store unavailable; the job will retry');
       throw error;
@@ -72,24 +81,49 @@ export async function analyzeCapture(job: PgBoss.JobWithMetadata<unknown>, deps:
     await wakeMailSender(deps, countVerdict(deps, 'error', await recordVerdict(em, captureId, mask, errorJudgement(`The stored capture cannot be read: ${(error as Error).message}`, ENGINE_VERSION), deps.links, request)));
     return;
   }
+  const { bytes } = got;
+  steps.lap('objectMs');
   const started = performance.now();
   const { judgement, run } = await judgeInThread(bytes, capture, mask, deps.analysis).catch((error: unknown) => {
     if (error instanceof ComputePoolBusyError || error instanceof ComputeThreadError) log.warn({ err: error }, 'analysis thread unavailable; the job will retry');
     throw error;
   });
+  steps.lap('threadMs');
   const result = countVerdict(deps, judgement.outcome, await recordVerdict(em, captureId, mask, judgement, deps.links, request));
   deps.judging?.analysisTimed(judgement.outcome, (performance.now() - started) / 1000);
   // After the verdict: a plot stored for a verdict that never committed would only be unused. Advisory, like drift.
-  if (run?.plot) await writeStoredPlot(deps.objectStore, run.plot.identity, run.plot.stored);
-  const thread = run ? { threadStartedAt: run.startedAt, threadEndedAt: run.endedAt, threadMs: run.endedAt - run.startedAt, stimulus: run.stimulus } : {};
-  log.info({ outcome: judgement.outcome, ms: Math.round(performance.now() - started), ...thread, written: result.written }, 'capture judged');
-  const driftMails = result.written && judgement.outcome === 'pass' ? await noteDrift(deps.orm.em.fork(), captureId, deps.links).catch((error: unknown) => {
-    // Drift mail is advisory: a failure here must not fail (and re-run) a recorded verdict.
-    log.warn({ err: error }, 'drift check failed');
-    return 0;
-  }) : 0;
-  if (result.notificationsQueued > 0 || driftMails > 0) await deps.jobs.sendMail(result.notificationsQueued > 0 ? 'build failed' : 'drift');
+  const ms = Math.round(performance.now() - started);
+  steps.lap('recordMs');
+  const thread = run ? { threadStartedAt: run.startedAt, threadEndedAt: run.endedAt, threadMs: run.endedAt - run.startedAt, stimulus: run.stimulus, phases: roundPhases(run.phases) } : {};
+  // The plot (a cache write that never fails the job) and the drift check are independent: both at once.
+  // Drift only ever concerns the head of a branch, so a build without one needs no look (noteDrift answers 0).
+  const [, driftMails] = await Promise.all([
+    // The thread chose the plot's view before waivers were applied: with a waived check it may not be the page's default, so the API draws that one.
+    run?.plot && !result.waivedCheckIds?.length ? steps.time('plotStoreMs', writeStoredPlot(deps.objectStore, run.plot.identity, run.plot.stored)) : undefined,
+    result.written && judgement.outcome === 'pass' && capture.build.branch
+      ? steps.time('driftMs', noteDrift(deps.orm.em.fork(), captureId, deps.links)).catch((error: unknown) => {
+          // Drift mail is advisory: a failure here must not fail (and re-run) a recorded verdict.
+          log.warn({ err: error }, 'drift check failed');
+          return 0;
+        })
+      : 0,
+  ]);
+  steps.lap('afterVerdictMs');
+  try {
+    if (result.notificationsQueued > 0 || driftMails > 0) await deps.jobs.sendMail(result.notificationsQueued > 0 ? 'build failed' : 'drift');
+    steps.lap('mailMs');
+  } finally {
+    // `ms`: engine + verdict, as the analysis histogram counts it; `steps`: the whole job (docs/performance.md).
+    log.info({ outcome: judgement.outcome, ms, ...thread, written: result.written, steps: steps.summary() }, 'capture judged');
+  }
 }
+
+const roundPhases = (phases: AnalysisPhases): AnalysisPhases => ({
+  decodeMs: Math.round(phases.decodeMs * 10) / 10,
+  stimulusMs: Math.round(phases.stimulusMs * 10) / 10,
+  judgeMs: Math.round(phases.judgeMs * 10) / 10,
+  plotMs: Math.round(phases.plotMs * 10) / 10,
+});
 
 /** Counts a verdict that was written (a re-run job that found its verdict already there adds nothing). */
 function countVerdict(deps: AnalyzeDeps, outcome: VerdictOutcome, result: RecordResult): RecordResult {
@@ -103,16 +137,13 @@ async function wakeMailSender(deps: AnalyzeDeps, result: RecordResult): Promise<
 }
 
 /** Shows the capture (and so its build) as running while the engine works. */
-async function markAnalysing(orm: MikroORM, captureId: string): Promise<void> {
+async function markAnalysing(orm: MikroORM, captureId: string, buildId: string): Promise<void> {
   await orm.em.fork().transactional(async (tx) => {
-    const { build: buildRef } = await tx.findOneOrFail(Capture, { id: captureId });
-    const build = await tx.findOneOrFail(Build, { id: buildRef.id }, { lockMode: LockMode.PESSIMISTIC_WRITE });
-    // Read the status again under the build's lock (which recordVerdict holds too): another attempt
-    // may have judged the capture since, and its verdict must not be painted over with `analysing`.
-    const capture = await tx.findOneOrFail(Capture, { id: captureId }, { refresh: true });
-    if (capture.status !== 'queued') return;
-    capture.status = 'analysing';
-    await tx.flush();
+    const build = await tx.findOneOrFail(Build, { id: buildId }, { lockMode: LockMode.PESSIMISTIC_WRITE });
+    // Only while still queued, decided under the build's lock (which recordVerdict holds too): another
+    // attempt may have judged the capture since, and its verdict must not be painted over with `analysing`.
+    const marked = await tx.nativeUpdate(Capture, { id: captureId, status: 'queued' }, { status: 'analysing' });
+    if (marked === 0) return;
     build.status = await computeBuildStatus(tx, build.id);
   });
 }

@@ -12,6 +12,16 @@ export interface JudgeOutcome {
   endedAt: number;
   /** The capture page's default plot, drawn from the audio the thread already decoded; the worker stores it once the verdict is recorded. */
   plot: { identity: PlotIdentity; stored: StoredPlot } | null;
+  /** Milliseconds of each phase in the thread (performance.now()), for the worker's per-job log. */
+  phases: AnalysisPhases;
+}
+
+/** Where the thread's time goes; a phase not reached stays 0. */
+export interface AnalysisPhases {
+  decodeMs: number;
+  stimulusMs: number;
+  judgeMs: number;
+  plotMs: number;
 }
 
 /** The tasks of `analysis.thread.ts`: their inputs and answers, shared by the worker and the thread. */

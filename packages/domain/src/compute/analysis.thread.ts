@@ -8,11 +8,11 @@ import { threadId } from 'node:worker_threads';
 import { JudgingSettings, MaskDocument } from '@earmark/contracts';
 import { decodeCapture } from '@earmark/dsp';
 import { defineComputeTasks } from '@earmark/platform';
-import { analysisFailed, judgeAudio, type JudgeRequest } from '../judging/judge-capture.js';
+import { analysisFailed, judgeAudio, judgingContext, type JudgeRequest } from '../judging/judge-capture.js';
 import { analysisMemoryRefusal } from '../judging/analysis-memory.js';
 import { StimulusCache } from '../judging/stimulus-cache.js';
 import { renderDefaultPlot } from '../plots/plot-store.js';
-import type { AnalysisTasks, JudgeOutcome } from './analysis-tasks.js';
+import type { AnalysisPhases, AnalysisTasks, JudgeOutcome } from './analysis-tasks.js';
 
 /** One per thread: captures of a test case share their stimulus. */
 const stimuli = new StimulusCache();
@@ -22,17 +22,30 @@ const tasks = {
     const startedAt = Date.now();
     let stimulus: JudgeOutcome['stimulus'] = null;
     let plot: JudgeOutcome['plot'] = null;
-    const done = (judgement: JudgeOutcome['judgement']): JudgeOutcome => ({ judgement, stimulus, startedAt, endedAt: Date.now(), plot });
+    const phases: AnalysisPhases = { decodeMs: 0, stimulusMs: 0, judgeMs: 0, plotMs: 0 };
+    let mark = performance.now();
+    const lap = (phase: keyof AnalysisPhases) => {
+      const now = performance.now();
+      phases[phase] = now - mark;
+      mark = now;
+    };
+    const done = (judgement: JudgeOutcome['judgement']): JudgeOutcome => ({ judgement, stimulus, startedAt, endedAt: Date.now(), plot, phases });
     try {
       const request: JudgeRequest = { format: input.request.format, settings: JudgingSettings.parse(input.request.settings), mask: MaskDocument.parse(input.request.mask) };
       const audio = decodeCapture(input.bytes, request.format);
+      lap('decodeMs');
       const refusal = analysisMemoryRefusal(audio.frames * audio.channels.length, input.memoryBudgetMb);
       if (refusal) return done(refusal);
       const played = stimuli.get(request.settings.stimulus);
       stimulus = played.cached ? 'cached' : 'built';
-      const judgement = judgeAudio(audio, played.stimulus, request);
-      // The capture page's first view reads this plot instead of decoding and transforming again on the API.
-      if (input.plotFor) plot = renderDefaultPlot({ ...input.plotFor, settings: request.settings, checks: request.mask.checks, audio, played: played.stimulus });
+      lap('stimulusMs');
+      const context = judgingContext(audio, played.stimulus, request);
+      const judgement = judgeAudio(audio, played.stimulus, request, context);
+      lap('judgeMs');
+      // The capture page's first view reads this plot instead of decoding and transforming again on the API;
+      // drawn from the verdict's context, it measures nothing twice.
+      if (input.plotFor) plot = renderDefaultPlot({ ...input.plotFor, settings: request.settings, checks: request.mask.checks, audio, played: played.stimulus, context, verdictChecks: judgement.checks });
+      lap('plotMs');
       return done(judgement);
     } catch (error) {
       return done(analysisFailed(error));

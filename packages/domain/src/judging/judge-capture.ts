@@ -1,5 +1,5 @@
 import { MaskDocument, type JudgingSettings } from '@earmark/contracts';
-import { ENGINE_VERSION, decodeCapture, evaluateMask, stimulusAsPlayed, type DecodedAudio, type StoredCaptureFormat } from '@earmark/dsp';
+import { ENGINE_VERSION, decodeCapture, evaluateMask, maskContext, stimulusAsPlayed, type CaptureContext, type DecodedAudio, type StoredCaptureFormat } from '@earmark/dsp';
 import type { Capture, MaskRevision } from '@earmark/db';
 import { errorJudgement, failReason, type Judgement } from './judgement.js';
 import { judgingSettingsFor } from './judging-settings.js';
@@ -49,21 +49,27 @@ export const analysisFailed = (error: unknown): Judgement =>
   errorJudgement(`Analysis failed: ${error instanceof Error ? error.message : String(error)}`, ENGINE_VERSION);
 
 /**
+ * The capture context judging reads: pass it to `judgeAudio` and then to `renderDefaultPlot`, and
+ * the plot reuses the verdict's measures (the transfer estimate) rather than computing them again.
+ * @throws EngineInputError on input the engine refuses
+ */
+export function judgingContext(audio: DecodedAudio, reference: PlayedStimulus, request: JudgeRequest): CaptureContext {
+  const { stimulus: spec, analysis: settings, channelMap } = request.settings;
+  return maskContext({
+    capture: audio,
+    reference,
+    transferMethod: settings.transferMethod ?? (spec.kind === 'sweep' ? 'deconvolution' : 'h1'),
+    ...(channelMap.length ? { channels: channelMap } : {}),
+    ...(settings.transferBandHz ? { transferBandHz: settings.transferBandHz } : {}),
+  });
+}
+
+/**
  * Evaluates decoded audio against the request's checks and the played stimulus.
  * @throws EngineInputError and StimulusError on input the engine refuses
  */
-export function judgeAudio(audio: DecodedAudio, reference: PlayedStimulus, request: JudgeRequest): Judgement {
-  const { stimulus: spec, analysis: settings, channelMap } = request.settings;
-  const evaluation = evaluateMask(
-    {
-      capture: audio,
-      reference,
-      transferMethod: settings.transferMethod ?? (spec.kind === 'sweep' ? 'deconvolution' : 'h1'),
-      ...(channelMap.length ? { channels: channelMap } : {}),
-      ...(settings.transferBandHz ? { transferBandHz: settings.transferBandHz } : {}),
-    },
-    request.mask,
-  );
+export function judgeAudio(audio: DecodedAudio, reference: PlayedStimulus, request: JudgeRequest, context: CaptureContext = judgingContext(audio, reference, request)): Judgement {
+  const evaluation = evaluateMask(context.input, request.mask, context);
   const checks = evaluation.checks.map(({ channel, error, details, ...check }) => ({ ...check, details: { ...details, channel, ...(error ? { error } : {}) } }));
   return {
     outcome: evaluation.verdict,

@@ -13,6 +13,8 @@ export interface RecordResult {
   /** False when this capture already had a verdict under this revision and engine (a re-run job). */
   written: boolean;
   notificationsQueued: number;
+  /** Failing checks of the written verdict that an approved waiver covers (they change which plot the capture page opens on). */
+  waivedCheckIds?: string[];
 }
 
 export interface RecordDeps {
@@ -106,7 +108,7 @@ export async function recordVerdict(
       // After the verdict, status and findings are written: the mail reads the build as it now stands.
       const notificationsQueued = await noteBuildFailure(tx, build, capture.project, deps);
       await tx.flush();
-      return { written: true, notificationsQueued };
+      return { written: true, notificationsQueued, waivedCheckIds: [...waivers.keys()] };
     });
   } catch (error) {
     // A concurrent run of the same job won the unique index: nothing to do.

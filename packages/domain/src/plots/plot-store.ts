@@ -1,8 +1,10 @@
 import { CapturePlot, PlotQuery, type JudgingSettings, type MaskCheck } from '@earmark/contracts';
-import { ENGINE_VERSION, type DecodedAudio } from '@earmark/dsp';
+import { ENGINE_VERSION, type CaptureContext, type DecodedAudio } from '@earmark/dsp';
 import type { ObjectStore } from '@earmark/platform';
 import { z } from 'zod';
-import { plotChannel, plotCheck, renderCapturePlot, type CapturePlotCore } from './render-capture-plot.js';
+import { renderCapturePlot, type CapturePlotCore } from './render-capture-plot.js';
+import { defaultPlotView, plotCheckResult } from './plot-view.js';
+import type { CheckJudgement } from '../judging/judgement.js';
 import type { PlayedStimulus } from '../judging/stimulus-cache.js';
 
 /**
@@ -21,9 +23,9 @@ export interface PlotIdentity {
   /** The mask revision the capture was judged against (null: judged without one, or not yet). */
   maskRevisionId: string | null;
   columns: number;
-  /** Resolved already (`plotChannel`), so "the default" and its number share one entry. */
+  /** Resolved already (asked, else the default view's), so "the default" and its number share one entry. */
   channel: number;
-  /** The spectral check drawn, resolved already (`plotCheck`); null when the mask has none. */
+  /** The spectral check drawn, resolved already (asked, else `defaultPlotView`); null when the mask has none. */
   checkId: string | null;
 }
 
@@ -60,10 +62,14 @@ export interface DefaultPlotInput {
   audio: DecodedAudio;
   /** The stimulus as played, when the caller already holds it. */
   played?: PlayedStimulus;
+  /** The verdict's capture context (`judgingContext`), when the caller judged this audio just now. */
+  context?: CaptureContext;
+  /** The verdict's check results: the plot opens on its worst failing spectral check, as the capture page does. */
+  verdictChecks?: readonly CheckJudgement[];
 }
 
 /**
- * The default plot (default columns, default channel) of a capture from audio already decoded,
+ * The default plot (default columns; the check and channel `defaultPlotView` picks from the verdict) of a capture from audio already decoded,
  * with the identity it is stored under; pure, so it can run in the thread that holds the audio.
  */
 export function renderDefaultPlot(input: DefaultPlotInput): { identity: PlotIdentity; stored: StoredPlot } {
@@ -71,11 +77,15 @@ export function renderDefaultPlot(input: DefaultPlotInput): { identity: PlotIden
     captureId: input.captureId,
     maskRevisionId: input.maskRevisionId,
     columns: DEFAULT_PLOT_COLUMNS,
-    channel: plotChannel(undefined, input.settings, input.audio.channels.length),
-    checkId: plotCheck(input.checks, null)?.id ?? null,
+    ...defaultPlotView(
+      input.checks,
+      (input.verdictChecks ?? []).map((c) => plotCheckResult(c.id, c.pass, c.margin, c.details)),
+      input.settings.channelMap,
+      input.audio.channels.length,
+    ),
   };
   try {
-    return { identity, stored: { plot: renderCapturePlot(input.audio, input.settings, input.checks, identity, input.played) } };
+    return { identity, stored: { plot: renderCapturePlot(input.audio, input.settings, input.checks, identity, input.played, input.context) } };
   } catch (error) {
     return { identity, stored: { refusal: { code: 'cannot-plot', detail: `Capture ${input.captureId} cannot be plotted: ${error instanceof Error ? error.message : String(error)}` } } };
   }

@@ -1,5 +1,5 @@
 import { MaskCheck, type BandLevelsCheck, type CapturePlot, type JudgingSettings, type MagnitudeEnvelopeCheck } from '@earmark/contracts';
-import { ENGINE_VERSION, MaskCheckError, captureCurves, stimulusAsPlayed, type DecodedAudio } from '@earmark/dsp';
+import { ENGINE_VERSION, MaskCheckError, captureCurves, stimulusAsPlayed, type CaptureContext, type DecodedAudio } from '@earmark/dsp';
 import type { PlayedStimulus } from '../judging/stimulus-cache.js';
 
 /** What one plot is drawn for: the columns asked for, the channel and check already resolved. */
@@ -56,8 +56,10 @@ export function renderCapturePlot(
   judged: JudgingSettings,
   checks: readonly MaskCheck[],
   shape: PlotShape,
-  // The analysis thread passes the stimulus it already holds (its cache) rather than playing it again.
+  // The analysis thread passes the stimulus it already holds (its cache) rather than playing it again,
+  // and the verdict's capture context, whose measures the curves reuse (captureCurves checks it fits).
   played?: PlayedStimulus,
+  context?: CaptureContext,
 ): CapturePlotCore {
   const { stimulus: spec, analysis: settings } = judged;
   const reference = spec.kind !== 'silence' ? (played ?? stimulusAsPlayed(spec)) : undefined;
@@ -78,12 +80,12 @@ export function renderCapturePlot(
   let curveCheck = check;
   let curves: ReturnType<typeof captureCurves>;
   try {
-    curves = captureCurves(input, check, { columns: shape.columns, channel, ...(bandCheck ? { bands: bandCheck } : {}) });
+    curves = captureCurves(input, check, { columns: shape.columns, channel, ...(bandCheck ? { bands: bandCheck } : {}), ...(context ? { context } : {}) });
   } catch (error) {
     if (!(error instanceof MaskCheckError)) throw error;
     drawn = null;
     curveCheck = farLimit('level', nyquist);
-    curves = captureCurves(input, curveCheck, { columns: shape.columns, channel });
+    curves = captureCurves(input, curveCheck, { columns: shape.columns, channel, ...(context ? { context } : {}) });
   }
   const data = curves.spectrum;
   const bands = drawn?.kind === 'band-levels' ? curves.bandLevels : null;

@@ -48,6 +48,11 @@ export interface ChannelTiming {
   polarity: 'normal' | 'inverted';
   /** A periodic stimulus leaves the delay undetermined: a latency check is then an error. */
   ambiguous: boolean;
+  /**
+   * Why the capture holds no stimulus to align (the correlation that decided it, or silence);
+   * null when it was found. The latency is then meaningless and no other message claims one.
+   */
+  notFound: string | null;
   warnings: string[];
 }
 
@@ -298,14 +303,14 @@ export class CaptureContext {
         const ir = sweep.linearIr;
         let peak = 0;
         for (let i = 1; i < ir.samples.length; i++) if (Math.abs(ir.samples[i] as number) > Math.abs(ir.samples[peak] as number)) peak = i;
-        timing = { latencySamples: sweep.latencySeconds * this.sampleRate, polarity: (ir.samples[peak] as number) < 0 ? 'inverted' : 'normal', ambiguous: false, warnings: [] };
+        timing = { latencySamples: sweep.latencySeconds * this.sampleRate, polarity: (ir.samples[peak] as number) < 0 ? 'inverted' : 'normal', ambiguous: false, notFound: null, warnings: [] };
       } else {
         // Not a sweep, or its impulse-response peak disagrees with where the capture's signal
         // begins (a capture that lost most of the sweep): correlation decides.
         const estimate = measureLatency(reference, x);
         const warnings = [...estimate.warnings];
-        if (sweep) warnings.push(`the sweep's impulse response puts the latency at ${sweep.latencySamples} samples, but the capture's signal begins ${Math.round(onsetGap)} samples away from there; the latency was taken from the correlation (${estimate.samples.toFixed(2)} samples)`);
-        timing = { latencySamples: estimate.samples, polarity: estimate.polarity, ambiguous: estimate.ambiguous, warnings };
+        if (sweep && estimate.found) warnings.push(`the sweep's impulse response puts the latency at ${sweep.latencySamples} samples, but the capture's signal begins ${Math.round(onsetGap)} samples away from there; the latency was taken from the correlation (${estimate.samples.toFixed(2)} samples)`);
+        timing = { latencySamples: estimate.samples, polarity: estimate.polarity, ambiguous: estimate.ambiguous, notFound: estimate.found ? null : (estimate.warnings[0] ?? null), warnings };
       }
       this.warn(channel, 'timing', timing.warnings);
       return timing;
@@ -326,12 +331,15 @@ export class CaptureContext {
       let last = reference.length - 1;
       while (first < last && Math.abs(reference[first] as number) <= peak * 1e-3) first++;
       while (last > first && Math.abs(reference[last] as number) <= peak * 1e-3) last--;
-      const latency = Math.round(this.latency(channel));
+      const timing = this.timing(channel);
+      const latency = Math.round(timing.latencySamples);
       const coverage = checkStimulusCoverage({ stimulusLength: last + 1, captureLength: this.frames, latencySamples: latency, sampleRate: this.sampleRate });
       const missingAtStart = Math.max(0, -(latency + first));
       const missingFraction = (missingAtStart + coverage.missingAtEnd) / Math.max(1, last + 1 - first);
-      const result = { ...coverage, covered: missingFraction <= MAX_MISSING_FRACTION, missingFraction };
-      if (coverage.warning) this.warn(channel, 'transfer', [coverage.warning]);
+      // A stimulus that is not there is not "late" or "cut short": say it was not found instead.
+      const warning = coverage.warning && timing.notFound ? timing.notFound : coverage.warning;
+      const result = { ...coverage, warning, covered: missingFraction <= MAX_MISSING_FRACTION, missingFraction };
+      if (warning) this.warn(channel, 'transfer', [warning]);
       return result;
     });
   }
@@ -375,7 +383,10 @@ export class CaptureContext {
       // phaseFit refuses it.
       const timing = this.timing(channel);
       const coverage = this.coverage(channel);
-      if (!coverage.covered) throw new MaskCheckError(`the capture does not hold the whole stimulus after its latency, so H would be wrong where the stimulus is missing: ${coverage.warning}`);
+      if (!coverage.covered) {
+        if (timing.notFound) throw new MaskCheckError(`there is no transfer function to measure: ${timing.notFound}`);
+        throw new MaskCheckError(`the capture does not hold the whole stimulus after its latency, so H would be wrong where the stimulus is missing: ${coverage.warning}`);
+      }
       const sweep = this.sweepAnalysis(channel);
       let latencySamples: number;
       let tf: TransferFunction;

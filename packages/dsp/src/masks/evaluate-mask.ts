@@ -14,6 +14,7 @@ import { evaluateDistortionVsFrequency } from './checks/distortion-vs-frequency.
 import { MaskCheckError } from './mask-check-error.js';
 import { CaptureContext, type WarningTopic } from '../context/capture-context.js';
 import { validateMaskInput, type EvaluateMaskInput } from './mask-input.js';
+import { precondition } from '../util/preconditions.js';
 
 /** The unit a check reports in when it could not be evaluated (the same as when it could). */
 function unitOf(check: MaskCheck): CheckUnit {
@@ -117,20 +118,31 @@ function verdictReason(checks: readonly CheckEvaluation[]): { verdict: MaskEvalu
 }
 
 /**
+ * A capture context for `input`, validated as `evaluateMask` validates it. Pass it to `evaluateMask`
+ * and then to `captureCurves`, and the plot reuses what the verdict measured (the transfer
+ * estimate above all) instead of measuring it again.
+ * @throws EngineInputError (`fn` = "evaluateMask") on a bad capture, as evaluateMask does
+ */
+export function maskContext(input: EvaluateMaskInput): CaptureContext {
+  return new CaptureContext(input, validateMaskInput(input, 'evaluateMask'));
+}
+
+/**
  * Evaluates a tolerance mask on a capture. Each check yields its measured value, limit and
  * margin (positive inside, in the check's unit) at its worst frequency and worst channel. The
  * verdict is `error` when any check could not be evaluated (e.g. it needs the stimulus and none
  * was given), else `fail` when any check failed, else `pass`. Intermediates shared by checks
  * (transfer function, sine fit, level spectrum) are computed once, and only if a check needs them.
  * The mask must already be parsed (contracts' `MaskDocument` schema validates it at the edge).
+ * `context` (from `maskContext(input)`) lets a caller read the same measures afterwards.
  * @throws EngineInputError (a RangeError, `fn` = "evaluateMask") on a bad capture: no channels, unequal
  *   lengths, non-finite samples, a bad sample rate, a reference at another rate, or an analysed
  *   channel that does not exist
  * @see docs/masks.md (format, margins, verdict); docs/analysis.md (every measure's method)
  */
-export function evaluateMask(input: EvaluateMaskInput, mask: MaskDocument): MaskEvaluation {
-  const channels = validateMaskInput(input, 'evaluateMask');
-  const ctx = new CaptureContext(input, channels);
+export function evaluateMask(input: EvaluateMaskInput, mask: MaskDocument, context?: CaptureContext): MaskEvaluation {
+  precondition(!context || context.input === input, 'evaluateMask', 'the capture context was made for another input');
+  const ctx = context ?? maskContext(input);
   const checks = mask.checks.map((check) => evaluateCheck(ctx, check));
   return { engineVersion: ENGINE_VERSION, ...verdictReason(checks), checks };
 }

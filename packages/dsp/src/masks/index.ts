@@ -1,5 +1,5 @@
 /** Tolerance-mask evaluation: pure functions over a parsed mask (contracts' MaskDocument). */
-export { evaluateMask } from './evaluate-mask.js';
+export { evaluateMask, maskContext } from './evaluate-mask.js';
 export { validateMaskInput, type EvaluateMaskInput } from './mask-input.js';
 export { MaskCheckError } from './mask-check-error.js';
 export { maskPlotData, type MaskPlotData, type MaskPlotOptions } from './mask-plot-data.js';

@@ -101,16 +101,25 @@ export function waveformColumns(x: Float64Array, sampleRate: number, columns: nu
 }
 
 /**
+ * Every measure a context memoises depends on the capture, the stimulus and the transfer method
+ * only (its channel list is a default for checks, and the curves name their channel), so a
+ * context made for an input that shares those three gives the same numbers.
+ */
+const sameMeasures = (a: EvaluateMaskInput, b: EvaluateMaskInput): boolean => a.capture === b.capture && a.reference === b.reference && a.transferMethod === b.transferMethod;
+
+/**
  * The capture page's curves for one channel: the spectrum over the check's mask (as
  * `maskPlotData`), the phase and group delay of the transfer estimate, the waveform and the
  * channel's warnings — all from one `CaptureContext`, so what is drawn is what was judged.
+ * `options.context` (the verdict's, from `maskContext`) is reused when it was made for the same
+ * capture, stimulus and transfer method, and ignored otherwise.
  * @throws RangeError on a bad capture, channel or column count; MaskCheckError when the check
  *   cannot be evaluated (e.g. a transfer measure without a stimulus)
  */
-export function captureCurves(input: EvaluateMaskInput, check: MagnitudeEnvelopeCheck, options: { columns: number; channel: number; bands?: BandLevelsCheck }): CaptureCurves {
+export function captureCurves(input: EvaluateMaskInput, check: MagnitudeEnvelopeCheck, options: { columns: number; channel: number; bands?: BandLevelsCheck; context?: CaptureContext }): CaptureCurves {
   const analysed = validateMaskInput(input, 'captureCurves');
   precondition(Number.isInteger(options.columns) && options.columns >= 1 && options.columns <= 8192, 'captureCurves', `columns must be a whole number 1…8192 (got ${options.columns})`);
-  const ctx = new CaptureContext(input, analysed);
+  const ctx = options.context && sameMeasures(options.context.input, input) ? options.context : new CaptureContext(input, analysed);
   const spectrum = maskPlotDataIn(ctx, check, options);
   const x = ctx.signal(options.channel);
   return {

@@ -41,11 +41,30 @@ export function envelopeSpan(check: MagnitudeEnvelopeCheck): [number, number] {
 }
 
 /**
+ * Comparisons made, per capture context, check and channel: a verdict and the plot drawn from its
+ * context (the worker's default plot) compare the same envelope once. Callers only read them.
+ */
+const comparisons = new WeakMap<CaptureContext, WeakMap<MagnitudeEnvelopeCheck, Map<number, EnvelopeComparison>>>();
+
+/**
  * Compares one channel's measured curve with the envelope: at each measured frequency inside a
  * limit's span, margin = upper − measured and measured − lower; the nearer limit counts.
+ * Computed once per context, check and channel (the answer is shared: do not modify it).
  * @throws MaskCheckError when no measured frequency has a limit that applies
  */
 export function compareEnvelope(ctx: CaptureContext, channel: number, check: MagnitudeEnvelopeCheck): EnvelopeComparison {
+  let byCheck = comparisons.get(ctx);
+  if (!byCheck) comparisons.set(ctx, (byCheck = new WeakMap()));
+  let byChannel = byCheck.get(check);
+  if (!byChannel) byCheck.set(check, (byChannel = new Map()));
+  const made = byChannel.get(channel);
+  if (made) return made;
+  const comparison = measureEnvelope(ctx, channel, check);
+  byChannel.set(channel, comparison);
+  return comparison;
+}
+
+function measureEnvelope(ctx: CaptureContext, channel: number, check: MagnitudeEnvelopeCheck): EnvelopeComparison {
   const { points, referenceGainDb } = envelopePoints(ctx, channel, check, envelopeSpan(check));
   const n = points.hz.length;
   const upper = check.upper ? sampleLimit(check.upper, points.hz) : new Float64Array(n).fill(Number.NaN);
