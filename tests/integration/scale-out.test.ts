@@ -1,4 +1,5 @@
 import fs from 'node:fs';
+import http from 'node:http';
 import os from 'node:os';
 import path from 'node:path';
 import { QUEUES, StimulusSpec, type CaptureDto, type CapturePlot, type DeriveMaskResponse, type ImpactRunDto, type MaskCheckInput, type Session } from '@earmark/contracts';
@@ -8,12 +9,14 @@ import { scaleDb } from '@earmark/dsp/testing';
 import { ObjectStore, generateTokenSecret } from '@earmark/platform';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { BuiltProcess } from '../support/built-process.js';
+import { createHosts, hostsSupport, type Host, type Hosts } from '../support/hosts.js';
 import { startProductionServices, type ProductionServices } from '../support/production-stack.js';
 import { waitFor } from '../support/wait-for.js';
 
 /**
  * Scale-out (issue 13): the built production processes on one database, one object store and
- * one relay. Phase 1 is one API and one worker; phase 2 is two APIs and three workers, one of
+ * one relay. Each process runs on its own simulated host (a network namespace, tests/support/hosts.ts)
+ * when the machine allows it, else on loopback ports; the figures say which. Phase 1 is one API and one worker; phase 2 is two APIs and three workers, one of
  * them SIGKILLed a third of the way through. It checks that every capture is judged exactly
  * once, that mail, jobs and sign-in state are shared rather than per process, and records the
  * throughput and latency of both phases in `${os.tmpdir()}/earmark-scale-out.json`. On a small
@@ -80,6 +83,12 @@ const accepted = new Map<string, CaptureDto>(); // idempotency key → the captu
 const uploadStats = { retried503: 0 };
 const figures: Record<string, unknown> = { machine: { cpus: os.availableParallelism(), node: process.version, platform: `${os.type()} ${os.release()}` } };
 
+const PROCESSES = ['api-a', 'worker-1', 'api-b', 'worker-2', 'worker-3'] as const;
+const hostSupport = hostsSupport();
+let hosts: Hosts | undefined;
+/** The simulated host a process runs on, or undefined on loopback ports. */
+const hostOf = (name: (typeof PROCESSES)[number]): Host | undefined => hosts?.host(name);
+
 async function call(api: Api, method: string, urlPath: string, opts: { token?: string; body?: unknown } = {}) {
   const headers: Record<string, string> = {};
   if (opts.token) headers.authorization = `Bearer ${opts.token}`;
@@ -87,6 +96,16 @@ async function call(api: Api, method: string, urlPath: string, opts: { token?: s
   const res = await fetch(`${api.url}${urlPath}`, { method, headers, body: opts.body === undefined ? undefined : JSON.stringify(opts.body) });
   const text = await res.text();
   return { status: res.status, text, body: text.startsWith('{') ? (JSON.parse(text) as any) : null };
+}
+
+/** A JSON POST leaving from `localAddress` (fetch cannot choose its source address); resolves with the status. */
+function postFrom(localAddress: string | undefined, url: string, body: unknown): Promise<number> {
+  return new Promise((resolve, reject) => {
+    const req = http.request(url, { method: 'POST', localAddress, headers: { 'content-type': 'application/json' } }, (res) => {
+      res.resume().on('end', () => resolve(res.statusCode!));
+    });
+    req.on('error', reject).end(JSON.stringify(body));
+  });
 }
 
 async function signIn(api: Api, email: string): Promise<Session> {
@@ -181,6 +200,10 @@ function threadMsP50(from: Worker[], ids: Set<string>): number {
 }
 
 beforeAll(async () => {
+  if (hostSupport.available) hosts = createHosts([...PROCESSES]);
+  else console.warn(`scale-out: processes share this machine's loopback ports, not separate hosts: ${hostSupport.reason}`);
+  figures.hosts = hosts ? 'network namespaces' : 'loopback ports';
+  if (hosts) figures.hostAddresses = Object.fromEntries(hosts.hosts.map((h) => [h.name, h.address]));
   services = await startProductionServices({ migrate: true });
   store = new ObjectStore({ endpoint: services.s3.endpoint, bucket: services.s3.bucket, accessKeyId: 'S3RVER', secretAccessKey: 'S3RVER' });
   // Seeded straight into the database (as the superuser), so the time goes to the pipeline.
@@ -202,7 +225,7 @@ beforeAll(async () => {
   } finally {
     await orm.close();
   }
-  const [api, worker] = await Promise.all([services.startApi('api-a', API_ENV), services.startWorker('worker-1', WORKER_ENV)]);
+  const [api, worker] = await Promise.all([services.startApi('api-a', API_ENV, hostOf('api-a')), services.startWorker('worker-1', WORKER_ENV, hostOf('worker-1'))]);
   apiA = api;
   workers.push(worker);
 }, 120_000);
@@ -213,7 +236,36 @@ afterAll(async () => {
   console.log(`scale-out figures (${file}):\n${JSON.stringify(figures, null, 2)}`);
   store?.destroy();
   await services?.close();
+  hosts?.close();
 }, 60_000);
+
+/** Counts by source address, keyed by the name of the process whose host has that address. */
+function byProcess(counts: Record<string, number>): Record<string, number> {
+  const nameOf = new Map(hosts!.hosts.map((h) => [h.address, h.name]));
+  return Object.fromEntries(Object.entries(counts).map(([address, n]) => [nameOf.get(address) ?? address, n]));
+}
+
+/**
+ * Where the processes run. On hosts: each in its own network namespace (not the test's), as node
+ * itself (the pid a kill reaches), and each one's database connections arrive at the relays from
+ * its own host address, which nothing on loopback could do. On loopback ports: all in the test's
+ * namespace, and no relay is used.
+ */
+function expectPlacement(procs: BuiltProcess[]) {
+  const netns = (pid: number | 'self') => fs.readlinkSync(`/proc/${pid}/ns/net`);
+  const namespaces = procs.map((p) => netns(p.child.pid!));
+  for (const p of procs) expect(fs.readlinkSync(`/proc/${p.child.pid}/exe`), `${p.name} is node itself`).toBe(fs.realpathSync(process.execPath));
+  const relayed = services.relayedConnections();
+  if (!hosts) {
+    expect(new Set(namespaces)).toEqual(new Set([netns('self')]));
+    expect(relayed.database).toEqual({});
+    return;
+  }
+  expect(new Set(namespaces).size, 'one network namespace per process').toBe(procs.length);
+  expect(namespaces).not.toContain(netns('self'));
+  const addresses = procs.map((p) => hosts!.host(p.name).address).sort();
+  expect(Object.keys(relayed.database).sort(), 'database connections by source address').toEqual(addresses);
+}
 
 describe('scale-out on one database, one object store and one relay', () => {
   it('phase 1: one API and one worker (one analysis slot) judge every capture', async () => {
@@ -229,12 +281,18 @@ describe('scale-out on one database, one object store and one relay', () => {
     const outcomes = await services.query<{ id: string; outcome: string }>('select capture_id as id, outcome from verdict where capture_id = any($1::uuid[])', [ids]);
     const byId = new Map(outcomes.map((o) => [o.id, o.outcome]));
     expect(phase1.map((c, i) => byId.get(ids[i]!))).toEqual(phase1.map((c) => (c.fails ? 'fail' : 'pass')));
+    expectPlacement([apiA, ...workers]);
   }, 120_000);
 
   it('phase 2: two APIs and three workers, one SIGKILLed a third of the way, judge every capture exactly once', async () => {
-    const [b, w2, w3] = await Promise.all([services.startApi('api-b', API_ENV), services.startWorker('worker-2', WORKER_ENV), services.startWorker('worker-3', WORKER_ENV)]);
+    const [b, w2, w3] = await Promise.all([
+      services.startApi('api-b', API_ENV, hostOf('api-b')),
+      services.startWorker('worker-2', WORKER_ENV, hostOf('worker-2')),
+      services.startWorker('worker-3', WORKER_ENV, hostOf('worker-3')),
+    ]);
     apiB = b;
     workers.push(w2, w3);
+    expectPlacement([apiA, apiB, ...workers]);
     const apis = [apiA, apiB];
     const phaseIds = async () => (await services.query<{ id: string }>("select c.id from capture c join build b on b.id = c.build_id where b.sha like 'b2%'")).map((r) => r.id);
 
@@ -304,6 +362,12 @@ describe('scale-out on one database, one object store and one relay', () => {
     expect(jobs['worker-3']!.judged, workerOutput()).toBeGreaterThan(0);
     expect(seen.size).toBe(phase2.length);
     expect(await w2.exited).toBeNull(); // killed by the signal, not exited on its own
+    if (hosts) {
+      // Both APIs stored uploads and the surviving workers read them, each from its own host.
+      const objectStore = byProcess(services.relayedConnections().objectStore);
+      for (const name of ['api-a', 'api-b', 'worker-1', 'worker-3']) expect(objectStore[name] ?? 0, `${name}'s object-store connections`).toBeGreaterThan(0);
+      figures.relayedConnections = Object.fromEntries(Object.entries(services.relayedConnections()).map(([k, v]) => [k, byProcess(v)]));
+    }
   }, 200_000);
 
   it('spreads impact runs over the surviving workers, and every worker computes the same answer', async () => {
@@ -398,12 +462,15 @@ describe('scale-out on one database, one object store and one relay', () => {
   });
 
   it(`counts failed sign-ins across A and B against one limit (${LOGIN_LIMIT})`, async () => {
-    const attempt = (api: Api, password: string) => call(api, 'POST', '/api/auth/login', { body: { email: 'viewer@example.test', password } });
+    // The limit counts per client address and e-mail. One person signs in from one address, but on
+    // hosts the test reaches each API from that host's gateway: leave from A's gateway for both.
+    const from = hostOf('api-a')?.gateway;
+    const attempt = (api: Api, password: string) => postFrom(from, `${api.url}/api/auth/login`, { email: 'viewer@example.test', password });
     const statuses: number[] = [];
-    for (const api of [apiA, apiB, apiA, apiB, apiA, apiB]) statuses.push((await attempt(api, 'not the password')).status);
+    for (const api of [apiA, apiB, apiA, apiB, apiA, apiB]) statuses.push(await attempt(api, 'not the password'));
     expect(statuses).toEqual([401, 401, 401, 401, 429, 429]);
     // Past the limit even the right password waits, on either process.
-    expect((await attempt(apiA, TEST_PASSWORD)).status).toBe(429);
+    expect(await attempt(apiA, TEST_PASSWORD)).toBe(429);
   });
 
   it('mails each subscriber once per failed build, through the outbox and the relay, and nothing for passing builds', async () => {
@@ -425,5 +492,11 @@ describe('scale-out on one database, one object store and one relay', () => {
     expect(inbox).toEqual(expected.map((e) => ({ sha: e.sha, to: e.recipient })));
     expect(inbox.filter((m) => passing.includes(m.sha!))).toEqual([]);
     figures.mail = { failedBuilds: failing.length, passingBuilds: passing.length, outboxRows: outbox.length, relayMessages: inbox.length };
+    if (hosts) {
+      // Mail leaves from the workers' hosts only (the outbox is theirs), never from an API's.
+      const senders = Object.keys(byProcess(services.relayedConnections().mail)).sort();
+      expect(senders.length).toBeGreaterThan(0);
+      expect(senders.filter((name) => !name.startsWith('worker-'))).toEqual([]);
+    }
   }, 90_000);
 });

@@ -1,6 +1,7 @@
-import { spawn, type ChildProcess } from 'node:child_process';
+import { spawn, type ChildProcess, type SpawnOptions } from 'node:child_process';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
+import type { Host } from './hosts.js';
 
 const repoRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
 
@@ -29,14 +30,17 @@ export interface BuiltProcess {
 /**
  * Starts one production process from the build: `node --conditions=earmark-built <entry>` with
  * exactly the environment given (plus PATH and HOME), so nothing leaks in from the test runner
- * (no NODE_OPTIONS, no tsx loader). Resolves when `readyLine` appears in its output.
+ * (no NODE_OPTIONS, no tsx loader). Resolves when `readyLine` appears in its output. With a
+ * `host` it runs inside that simulated host's network namespace; the child is still node itself.
  */
-export async function startBuiltProcess(opts: { name: string; entry: keyof typeof BUILT_ENTRY; env: Record<string, string>; args?: string[]; readyLine?: string; timeoutMs?: number }): Promise<BuiltProcess> {
-  const child = spawn(process.execPath, ['--conditions=earmark-built', '--enable-source-maps', BUILT_ENTRY[opts.entry], ...(opts.args ?? [])], {
+export async function startBuiltProcess(opts: { name: string; entry: keyof typeof BUILT_ENTRY; env: Record<string, string>; args?: string[]; readyLine?: string; timeoutMs?: number; host?: Host }): Promise<BuiltProcess> {
+  const argv = [process.execPath, '--conditions=earmark-built', '--enable-source-maps', BUILT_ENTRY[opts.entry], ...(opts.args ?? [])];
+  const spawnOptions: SpawnOptions = {
     cwd: repoRoot,
     env: { PATH: process.env.PATH ?? '/usr/bin:/bin', HOME: process.env.HOME ?? '/root', ...opts.env },
     stdio: ['pipe', 'pipe', 'pipe'],
-  });
+  };
+  const child = opts.host ? opts.host.exec(argv, spawnOptions) : spawn(argv[0]!, argv.slice(1), spawnOptions);
   let text = '';
   // Decoded per stream, so a character split between two chunks (the CLI's − sign) stays whole.
   child.stdout!.setEncoding('utf8').on('data', (c: string) => (text += c));

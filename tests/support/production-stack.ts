@@ -10,6 +10,8 @@ import pg from 'pg';
 import { inject } from 'vitest';
 import { startBuiltProcess, type BuiltProcess } from './built-process.js';
 import { freePort, onFreePorts } from './free-port.js';
+import type { Host } from './hosts.js';
+import { startTcpRelays, type TcpRelay, type TcpRelays } from './tcp-relay.js';
 
 const repoRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '../..');
 
@@ -23,8 +25,14 @@ export interface ProductionServices {
   dir: string;
   /** The variables every production process gets: through the env file, secrets through `_FILE`. */
   env: Record<string, string>;
-  startApi(name: string, extra?: Record<string, string>): Promise<BuiltProcess & { url: string; metricsUrl: string }>;
-  startWorker(name: string, extra?: Record<string, string>): Promise<BuiltProcess & { metricsUrl: string }>;
+  /**
+   * Starts a built API, on loopback ports, or inside a simulated host (one API per host): then it
+   * listens on the host's address and reaches the services through relays on the host's gateway.
+   */
+  startApi(name: string, extra?: Record<string, string>, host?: Host): Promise<BuiltProcess & { url: string; metricsUrl: string }>;
+  startWorker(name: string, extra?: Record<string, string>, host?: Host): Promise<BuiltProcess & { metricsUrl: string }>;
+  /** Connections the hosts' relays accepted, per service, by source address (empty without hosts). */
+  relayedConnections(): Record<'database' | 'objectStore' | 'mail', Record<string, number>>;
   /** Queries as the superuser, for assertions (counts, leftovers). */
   query<T extends pg.QueryResultRow>(sql: string, params?: unknown[]): Promise<T[]>;
   close(): Promise<void>;
@@ -78,6 +86,25 @@ export async function startProductionServices(opts: { migrate?: boolean } = {}):
     AWS_SDK_JS_NODE_VERSION_SUPPORT_WARNING_DISABLED: 'true',
   };
   const processes: BuiltProcess[] = [];
+  let relayProcess: Promise<TcpRelays> | undefined; // started with the first host
+  const relays = new Map<string, Promise<HostRelays>>(); // by gateway address
+  const started: HostRelays[] = [];
+  const targets = { database: new URL(database.appUrl), objectStore: new URL(s3.endpoint), mail: new URL(`smtp://127.0.0.1:${smtpPort}`) };
+  /** The variables that point a process in `host` at the relays on its gateway instead of 127.0.0.1. */
+  const hostEnv = async (host: Host): Promise<Record<string, string>> => {
+    relayProcess ??= startTcpRelays();
+    const relayProcessNow = await relayProcess;
+    if (!relays.has(host.gateway)) relays.set(host.gateway, startHostRelays(relayProcessNow, host.gateway, targets));
+    const relayed = await relays.get(host.gateway)!;
+    if (!started.includes(relayed)) started.push(relayed);
+    const via = (url: URL, relay: TcpRelay) => Object.assign(new URL(url), { hostname: relay.host, port: String(relay.port) }).toString();
+    return {
+      EARMARK_DATABASE_URL_FILE: secret(`database-url-${host.namespace}`, via(targets.database, relayed.database)),
+      EARMARK_SMTP_URL_FILE: secret(`smtp-url-${host.namespace}`, via(targets.mail, relayed.mail)),
+      // The environment wins over the env file.
+      EARMARK_S3_ENDPOINT: via(targets.objectStore, relayed.objectStore).replace(/\/$/, ''),
+    };
+  };
   const superuser = new pg.Pool({ connectionString: database.superuserUrl, max: 2 });
 
   const services: ProductionServices = {
@@ -91,35 +118,64 @@ export async function startProductionServices(opts: { migrate?: boolean } = {}):
     },
     dir,
     env,
-    async startApi(name, extra = {}) {
-      const port = await freePort();
-      const metricsPort = await freePort();
-      const url = `http://127.0.0.1:${port}`;
+    async startApi(name, extra = {}, host) {
+      // A host's ports are all free (its own namespace): the same two on every host.
+      const address = host?.address ?? '127.0.0.1';
+      const port = host ? HOST_PORTS.api : await freePort();
+      const metricsPort = host ? HOST_PORTS.apiMetrics : await freePort();
+      const url = `http://${address}:${port}`;
       const proc = await startBuiltProcess({
         name,
         entry: 'api',
-        env: { ...env, EARMARK_API_PORT: String(port), EARMARK_PUBLIC_URL: extra.EARMARK_PUBLIC_URL ?? url, EARMARK_METRICS_PORT: String(metricsPort), EARMARK_INSTANCE_NAME: name, ...extra },
+        env: {
+          ...env,
+          ...(host && { ...(await hostEnv(host)), EARMARK_API_HOST: address, EARMARK_METRICS_HOST: address }),
+          EARMARK_API_PORT: String(port),
+          EARMARK_PUBLIC_URL: extra.EARMARK_PUBLIC_URL ?? url,
+          EARMARK_METRICS_PORT: String(metricsPort),
+          EARMARK_INSTANCE_NAME: name,
+          ...extra,
+        },
         readyLine: 'api listening',
+        timeoutMs: READY_TIMEOUT_MS,
+        host,
       });
       processes.push(proc);
-      return Object.assign(proc, { url, metricsUrl: `http://127.0.0.1:${metricsPort}` });
+      return Object.assign(proc, { url, metricsUrl: `http://${address}:${metricsPort}` });
     },
-    async startWorker(name, extra = {}) {
-      const metricsPort = await freePort();
+    async startWorker(name, extra = {}, host) {
+      const address = host?.address ?? '127.0.0.1';
+      const metricsPort = host ? HOST_PORTS.workerMetrics : await freePort();
       const proc = await startBuiltProcess({
         name,
         entry: 'worker',
-        env: { ...env, EARMARK_PUBLIC_URL: 'http://127.0.0.1:1', EARMARK_METRICS_PORT: String(metricsPort), EARMARK_INSTANCE_NAME: name, EARMARK_ANALYSIS_SLOTS: '1', ...extra },
+        env: {
+          ...env,
+          ...(host && { ...(await hostEnv(host)), EARMARK_METRICS_HOST: address }),
+          EARMARK_PUBLIC_URL: 'http://127.0.0.1:1',
+          EARMARK_METRICS_PORT: String(metricsPort),
+          EARMARK_INSTANCE_NAME: name,
+          EARMARK_ANALYSIS_SLOTS: '1',
+          ...extra,
+        },
         readyLine: 'worker ready',
+        timeoutMs: READY_TIMEOUT_MS,
+        host,
       });
       processes.push(proc);
-      return Object.assign(proc, { metricsUrl: `http://127.0.0.1:${metricsPort}` });
+      return Object.assign(proc, { metricsUrl: `http://${address}:${metricsPort}` });
+    },
+    relayedConnections() {
+      const out = { database: {}, objectStore: {}, mail: {} } as Record<'database' | 'objectStore' | 'mail', Record<string, number>>;
+      for (const r of started) for (const k of ['database', 'objectStore', 'mail'] as const) Object.assign(out[k], r[k].connectionsFrom());
+      return out;
     },
     async query<T extends pg.QueryResultRow>(sql: string, params: unknown[] = []) {
       return (await superuser.query<T>(sql, params)).rows;
     },
     async close() {
       await Promise.all(processes.map((p) => p.stop()));
+      await (await relayProcess?.catch(() => undefined))?.close();
       await superuser.end();
       await s3.close();
       await smtp.close().catch(() => {});
@@ -133,6 +189,31 @@ export async function startProductionServices(opts: { migrate?: boolean } = {}):
     if (res.code !== 0) throw new Error(`migrate failed:\n${res.output}`);
   }
   return services;
+}
+
+/**
+ * Start-up of a built process is a few CPU-seconds (modules, a warmed analysis thread); three at
+ * once on a shared 2-core machine took over 30 s, loopback or not, so allow more before failing.
+ */
+const READY_TIMEOUT_MS = 90_000;
+
+/** Ports inside a simulated host, where nothing else listens. */
+const HOST_PORTS = { api: 8080, apiMetrics: 9464, workerMetrics: 9465 } as const;
+
+interface HostRelays {
+  database: TcpRelay;
+  objectStore: TcpRelay;
+  mail: TcpRelay;
+}
+
+/**
+ * The services listen on 127.0.0.1 only (the shared test PostgreSQL, the fakes): a process in a
+ * simulated host reaches each through a relay on its gateway address (one relay process for all).
+ */
+async function startHostRelays(relays: TcpRelays, gateway: string, targets: Record<keyof HostRelays, URL>): Promise<HostRelays> {
+  const relay = (url: URL) => relays.relay({ host: gateway }, { host: url.hostname, port: Number(url.port) });
+  const [database, objectStore, mail] = await Promise.all([relay(targets.database), relay(targets.objectStore), relay(targets.mail)]);
+  return { database: database!, objectStore: objectStore!, mail: mail! };
 }
 
 function psql(url: string, args: string[]): string {
