@@ -5,6 +5,8 @@ export default defineProject({
   resolve: { alias: { '@': fileURLToPath(new URL('./src', import.meta.url)) } },
   test: {
     name: 'web',
+    // Generous timeout: the package suites run two files at a time on a 2-core machine.
+    testTimeout: 20000,
     environment: 'jsdom',
     include: ['test/**/*.test.ts', 'test/**/*.test.tsx'],
     setupFiles: ['test/setup.ts'],

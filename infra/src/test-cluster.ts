@@ -1,5 +1,6 @@
 import { createHash } from 'node:crypto';
 import fs from 'node:fs';
+import os from 'node:os';
 import path from 'node:path';
 import pg from 'pg';
 import { initOrm, migrate } from '@earmark/db';
@@ -59,16 +60,20 @@ export async function startTestCluster(log: (l: string) => void = () => {}): Pro
   return { cluster, adminUrl: cluster.url('postgres'), templateDb };
 }
 
-/** Drops the per-file databases a crashed run may have left behind, then stops the cluster. */
+/**
+ * Drops the per-file databases and demo snapshots (tests/support/demo-snapshot.ts) a crashed
+ * run may have left behind, then stops the cluster.
+ */
 export async function cleanUpTestCluster(): Promise<void> {
   const { cluster } = await startTestCluster();
   const admin = new pg.Client({ connectionString: cluster.url('postgres') });
   await admin.connect();
   try {
-    const { rows } = await admin.query<{ datname: string }>(`select datname from pg_database where datname like 'earmark\\_t\\_%'`);
+    const { rows } = await admin.query<{ datname: string }>(`select datname from pg_database where datname like 'earmark\\_t\\_%' or datname like 'earmark\\_demo\\_snapshot\\_%'`);
     for (const { datname } of rows) await admin.query(`drop database if exists "${datname}" with (force)`);
   } finally {
     await admin.end();
   }
+  for (const name of fs.readdirSync(os.tmpdir())) if (name.startsWith('earmark-demo-snapshot-')) fs.rmSync(path.join(os.tmpdir(), name), { recursive: true, force: true });
   cluster.stop();
 }

@@ -22,6 +22,8 @@ export interface Stack {
   workerEnv: Record<string, string>;
   /** The API's object store (captures, plot cache). */
   objectStore: ObjectStore;
+  /** The S3 fake's folder, where that store keeps its objects. */
+  objectsDir: string;
   /** The in-process API's composition root (its metrics registry and probes). */
   apiRuntime: ApiRuntime;
   smtp: { inboxUrl: string; stop(): Promise<void>; restart(): Promise<void> };
@@ -31,9 +33,10 @@ export interface Stack {
 
 /**
  * Everything on loopback for one test file: its own database, the S3 and SMTP fakes,
- * the API in-process and (on demand) real worker processes.
+ * the API in-process and (on demand) real worker processes. `objectsFrom`: an S3 fake's folder
+ * copied in before the fake starts (with a restored database, the objects it refers to).
  */
-export async function startStack(opts: { seed?: 'roles' | 'demo' | 'none'; database?: { url: string; drop(): Promise<void> } } = {}): Promise<Stack> {
+export async function startStack(opts: { seed?: 'roles' | 'demo' | 'none'; database?: { url: string; drop(): Promise<void> }; objectsFrom?: string } = {}): Promise<Stack> {
   // Inside vitest each file clones its own database; scripts (benchmarks) bring one.
   const db = opts.database ?? (await createTestDatabase());
   const orm = await initOrm({ url: db.url, poolMax: 6 });
@@ -43,6 +46,7 @@ export async function startStack(opts: { seed?: 'roles' | 'demo' | 'none'; datab
   const noFixture = null as unknown as RoleFixture;
   const fixture = opts.seed === 'none' ? noFixture : opts.seed === 'demo' ? await seedDemo(orm.em.fork(), secret).then(() => noFixture) : await seedRoles(orm.em.fork());
   const s3Dir = fs.mkdtempSync(path.join(os.tmpdir(), 'earmark-stack-s3-'));
+  if (opts.objectsFrom) fs.cpSync(opts.objectsFrom, s3Dir, { recursive: true });
   const s3: S3Fake = await startS3Fake({ port: 0, directory: s3Dir, bucket: 'earmark-captures' });
   const mail = await onFreePorts(2, async ([smtpPort, inboxPort]) => ({ smtpPort: smtpPort!, inboxPort: inboxPort!, fake: await startSmtpFake({ smtpPort: smtpPort!, webPort: inboxPort! }) }));
   const { smtpPort, inboxPort } = mail;
@@ -88,6 +92,7 @@ export async function startStack(opts: { seed?: 'roles' | 'demo' | 'none'; datab
     ciToken: opts.seed === 'none' ? '' : secret.token,
     workerEnv,
     objectStore,
+    objectsDir: s3Dir,
     apiRuntime: runtime,
     smtp: {
       inboxUrl: smtp.inboxUrl,

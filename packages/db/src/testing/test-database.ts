@@ -29,10 +29,10 @@ async function adminQuery(sql: string): Promise<void> {
 /**
  * A fresh, migrated database for one test file, cloned from the run's template
  * (see tests/setup/postgres.global.ts), so files never share state.
+ * @param template another database to clone (one nobody connects to), e.g. a seeded snapshot
  */
-export async function createTestDatabase(): Promise<TestDatabase> {
+export async function createTestDatabase(template = inject('pgTemplateDb')): Promise<TestDatabase> {
   const name = `earmark_t_${randomBytes(6).toString('hex')}`;
-  const template = inject('pgTemplateDb');
   for (let attempt = 0; ; attempt++) {
     try {
       await adminQuery(`create database ${quote(name)} template ${quote(template)}`);
