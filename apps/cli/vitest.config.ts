@@ -1,5 +1,6 @@
 import { defineProject } from 'vitest/config';
 
 export default defineProject({
-  test: { name: 'cli', include: ['test/**/*.test.ts'] },
+  // Each command test starts node + tsx; with two files at a time on 2 cores that can take seconds.
+  test: { name: 'cli', include: ['test/**/*.test.ts'], testTimeout: 30000 },
 });

@@ -108,7 +108,7 @@ describe('ApiClient', () => {
     const started = Date.now();
     await expect(client.send({ method: 'GET', path: '/x' })).rejects.toThrow('Service unavailable: Maintenance.');
     expect(s.hits()).toBe(1);
-    expect(Date.now() - started).toBeLessThan(1000);
+    expect(Date.now() - started).toBeLessThan(10_000);
   });
 
   it('recreates a streamed body for each attempt', async () => {

@@ -168,7 +168,8 @@ describe.concurrent('earmark submit', { timeout: 30_000 }, () => {
     expect(r.stderr).toMatch(/earmark: timed out after 1\.5 s with 1 of 2 verdicts still pending: eq\.music\.sweep\/evt2-48k slow\.wav \(analysing, capture [0-9a-f-]{36}\)/);
     expect(r.stdout).toMatch(/^PENDING  eq\.music\.sweep  evt2-48k  slow\.wav  \(analysing\)$/m);
     expect(r.stdout).toMatch(/^PASS     eq\.music\.sweep  evt2-48k  pass\.wav$/m);
-    expect(Date.now() - started).toBeLessThan(10_000);
+    // Far below the default --timeout (600 s); the margin is for starting node + tsx on a busy machine.
+    expect(Date.now() - started).toBeLessThan(20_000);
   });
 
   it('--wait holds one request per capture until its verdict (?wait=N) instead of polling', async () => {
