@@ -15,8 +15,12 @@ const ipList = (args: string[]) => spawnSync('ip', args, { encoding: 'utf8' }).s
 const netns = (pid: number | 'self') => fs.readlinkSync(`/proc/${pid}/ns/net`);
 
 /** A node one-liner in `hosts`' namespace `name`; resolves with the child once it printed `ready`. */
+/** Every node started in a host: killed after the file, so a failed assertion leaves none running. */
+const started: ChildProcess[] = [];
+
 async function nodeIn(hosts: Hosts, name: string, script: string): Promise<{ child: ChildProcess; output: () => string }> {
   const child = hosts.host(name).exec([process.execPath, '-e', script], { stdio: ['ignore', 'pipe', 'pipe'] });
+  started.push(child);
   let text = '';
   child.stdout!.setEncoding('utf8').on('data', (c: string) => (text += c));
   child.stderr!.setEncoding('utf8').on('data', (c: string) => (text += c));
@@ -35,7 +39,10 @@ describe('simulated hosts (network namespaces joined by veth pairs)', () => {
   beforeEach((ctx) => {
     if (!support.available) ctx.skip(`simulated hosts are not available here: ${support.reason}`);
   });
-  afterAll(() => hosts?.close());
+  afterAll(() => {
+    for (const child of started) if (child.exitCode === null && child.signalCode === null) child.kill('SIGKILL');
+    hosts?.close();
+  });
 
   it('makes one namespace per host, each on its own /30 with the root side as gateway', () => {
     hosts = createHosts(['alpha', 'beta']);

@@ -235,8 +235,11 @@ afterAll(async () => {
   fs.writeFileSync(file, `${JSON.stringify(figures, null, 2)}\n`);
   console.log(`scale-out figures (${file}):\n${JSON.stringify(figures, null, 2)}`);
   store?.destroy();
-  await services?.close();
-  hosts?.close();
+  try {
+    await services?.close();
+  } finally {
+    hosts?.close(); // namespaces and veths must not outlive a failed teardown
+  }
 }, 60_000);
 
 /** Counts by source address, keyed by the name of the process whose host has that address. */

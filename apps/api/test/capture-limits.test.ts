@@ -72,7 +72,9 @@ describe('upload bounds on hostile captures', () => {
     expect(res.status).toBe(422);
     expect(res.body.code).toBe('too-many-chunks');
     expect(res.body.detail).toMatch(/^The WAV file holds more than 64 chunks .*at most 64 chunks/);
-    expect(elapsed).toBeLessThan(2000); // HTTP and a 3 MB body included; the decoder itself stops after 64 headers
+    // HTTP and a 3 MB body included, with room for a busy machine; the decoder itself stops after 64 headers
+    // (timed in packages/dsp's decode-limits test and the reliability suite).
+    expect(elapsed).toBeLessThan(10_000);
     expect(await storedState()).toEqual(before);
   });
 

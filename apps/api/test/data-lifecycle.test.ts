@@ -115,6 +115,32 @@ describe('per-project storage quota', () => {
     expect((await api.objectStore.list('captures/gamma-race/')).sort()).toEqual(rows.map((r) => r.objectKey).sort());
   });
 
+  it('answers a replay racing its first upload with that capture, not a 413, when the quota has room for one', async () => {
+    const em = api.orm.em.fork();
+    const small = wav(4800);
+    const project = em.create(Project, { key: 'delta-replay', name: 'Delta replay', storageQuotaBytes: small.length + 100 });
+    em.create(TestCase, { project, key: 'tone.997', name: 'tone', stimulus: { kind: 'sine', sampleRate: 48000, seconds: 0.1, frequency: 997, levelDbfs: -12 } });
+    em.create(Target, { project, key: 'board-a', name: 'Board A', sampleRate: 48000 });
+    const secret = generateTokenSecret();
+    em.create(ApiToken, { project, name: 'ci', prefix: secret.prefix, secretHash: secret.hash, scopes: ['submit-captures'], createdBy: api.fixture.users.admin.id });
+    await em.flush();
+
+    // A CI client retrying a slow upload: the same bytes under the same Idempotency-Key, at once.
+    const upload = () =>
+      fetch(`${api.baseUrl}/api/v1/projects/delta-replay/builds/0d0d0d01/captures?testCase=tone.997&target=board-a`, {
+        method: 'POST',
+        headers: { authorization: `Bearer ${secret.token}`, 'content-type': 'audio/wav', 'idempotency-key': 'delta-replay-1' },
+        body: small,
+      }).then(async (res) => ({ status: res.status, body: (await res.json()) as { id?: string; code?: string } }));
+    const answers = await Promise.all(Array.from({ length: 4 }, () => upload()));
+
+    expect(answers.map((a) => a.status).sort()).toEqual([200, 200, 200, 202]);
+    expect(new Set(answers.map((a) => a.body.id)).size).toBe(1);
+    const rows = await em.fork().find(Capture, { project: project.id });
+    expect(rows).toHaveLength(1);
+    expect(await api.objectStore.list('captures/delta-replay/')).toEqual([rows[0]!.objectKey]);
+  });
+
   it('makes only uploads to the same project wait for the quota lock', async () => {
     const em = api.orm.em.fork();
     const small = wav(4800);

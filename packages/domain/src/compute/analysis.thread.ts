@@ -13,6 +13,10 @@ import { analysisMemoryRefusal } from '../judging/analysis-memory.js';
 import { StimulusCache } from '../judging/stimulus-cache.js';
 import { renderDefaultPlot } from '../plots/plot-store.js';
 import type { AnalysisPhases, AnalysisTasks, JudgeOutcome } from './analysis-tasks.js';
+import { DEFAULT_MAX_PLOT_SAMPLES } from './views-tasks.js';
+
+/** Above this many decoded samples the default plot does not share the verdict's capture context. */
+const SHARED_CONTEXT_MAX_SAMPLES = DEFAULT_MAX_PLOT_SAMPLES;
 
 /** One per thread: captures of a test case share their stimulus. */
 const stimuli = new StimulusCache();
@@ -39,12 +43,15 @@ const tasks = {
       const played = stimuli.get(request.settings.stimulus);
       stimulus = played.cached ? 'cached' : 'built';
       lap('stimulusMs');
-      const context = judgingContext(audio, played.stimulus, request);
+      let context: ReturnType<typeof judgingContext> | undefined = judgingContext(audio, played.stimulus, request);
       const judgement = judgeAudio(audio, played.stimulus, request, context);
       lap('judgeMs');
+      // The memory per analysis (ANALYSIS_BYTES_PER_SAMPLE) was measured for judging alone: past the
+      // API's plot budget the verdict's measures are let go before the plot makes its own.
+      if (audio.frames * audio.channels.length > SHARED_CONTEXT_MAX_SAMPLES) context = undefined;
       // The capture page's first view reads this plot instead of decoding and transforming again on the API;
       // drawn from the verdict's context, it measures nothing twice.
-      if (input.plotFor) plot = renderDefaultPlot({ ...input.plotFor, settings: request.settings, checks: request.mask.checks, audio, played: played.stimulus, context, verdictChecks: judgement.checks });
+      if (input.plotFor) plot = renderDefaultPlot({ ...input.plotFor, settings: request.settings, checks: request.mask.checks, audio, played: played.stimulus, ...(context ? { context } : {}), verdictChecks: judgement.checks });
       lap('plotMs');
       return done(judgement);
     } catch (error) {

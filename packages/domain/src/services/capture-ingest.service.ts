@@ -7,7 +7,7 @@ import { decodeRefusalOf } from '../compute/compute-errors.js';
 import type { UploadInspection, ViewsCompute } from '../compute/views-tasks.js';
 import type { JobProducer } from '../jobs/job-producer.js';
 import type { Logger } from 'pino';
-import { ConflictError, ServiceUnavailableError, UnsupportedCaptureError, ValidationError } from '../errors.js';
+import { ConflictError, QuotaExceededError, ServiceUnavailableError, UnsupportedCaptureError, ValidationError } from '../errors.js';
 import { presentCaptures, toCaptureDto } from './capture-presenter.js';
 import { assertCaptureFitsTestCase } from './capture-requirements.js';
 import { findOrCreateBuild } from '../repositories/builds.js';
@@ -125,8 +125,10 @@ export class CaptureIngestService {
       });
     } catch (error) {
       await this.deps.objectStore.delete(objectKey).catch((e: unknown) => this.deps.logger.error({ err: e, objectKey }, 'could not delete an orphaned capture object'));
-      if (error instanceof UniqueConstraintViolationException && idempotencyKey) {
-        // Two requests with one key raced: the other one won; answer with its capture.
+      // Two requests with one key raced and the other one won: answer with its capture. Under a
+      // quota the loser may be refused by the locked check (the winner's bytes now count) before
+      // it reaches the unique index; it is still a replay, not a refusal.
+      if ((error instanceof UniqueConstraintViolationException || error instanceof QuotaExceededError) && idempotencyKey) {
         em.clear();
         const existing = await this.findByIdempotencyKey(em, project, idempotencyKey);
         if (existing) return this.replay(em, existing, testCase, target);

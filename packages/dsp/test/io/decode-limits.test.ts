@@ -70,8 +70,9 @@ describe('RIFF chunk count bound', () => {
     const error = refusal(() => decodeWav(bytes));
     const elapsed = performance.now() - started;
     expect(error.code).toBe('too-many-chunks');
-    // Walking all of them took ~1 s before the bound; 64 headers take microseconds.
-    expect(elapsed).toBeLessThan(50);
+    // Walking all of them took ~1 s before the bound; 64 headers take microseconds (the margin is for
+    // a garbage-collection pause on a busy machine).
+    expect(elapsed).toBeLessThan(250);
   });
 });
 
